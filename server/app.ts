@@ -1,0 +1,74 @@
+import { existsSync } from 'node:fs'
+import path from 'node:path'
+import express from 'express'
+import session from 'express-session'
+import helmet from 'helmet'
+import { SqliteSessionStore } from './auth/sqliteSessionStore.js'
+import type { AppDeps } from './deps.js'
+import { notFound } from './httpError.js'
+import { loadMember } from './middleware/auth.js'
+import { csrfGuard } from './middleware/csrf.js'
+import { errorHandler } from './middleware/errorHandler.js'
+import { projectRoot } from './projectRoot.js'
+import { authRouter } from './routes/auth.js'
+import { healthRouter } from './routes/health.js'
+
+/** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
+export function createApp(deps: AppDeps) {
+  const app = express()
+  app.disable('x-powered-by')
+  app.set('trust proxy', deps.config.trustProxy)
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          defaultSrc: ["'self'"],
+          scriptSrc: ["'self'"],
+          // naive-ui injects its styles at run time as <style> elements.
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          upgradeInsecureRequests: null,
+        },
+      },
+    }),
+  )
+
+  const sessionStore = new SqliteSessionStore(deps.db)
+  const api = express.Router()
+  api.use(express.json({ limit: '2mb' }))
+  api.use(
+    session({
+      name: deps.sessionCookieName,
+      secret: deps.sessionSecret,
+      store: sessionStore,
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: 8 * 60 * 60 * 1000 },
+    }),
+  )
+  api.use(loadMember(deps.db))
+  api.use(csrfGuard(() => (deps.config.publicUrl ? [new URL(deps.config.publicUrl).origin] : [])))
+
+  api.use(healthRouter())
+  api.use(authRouter(deps))
+
+  api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))
+  app.use('/api', api)
+
+  const clientDir = path.join(projectRoot(), 'dist')
+  if (existsSync(path.join(clientDir, 'index.html'))) {
+    app.use(express.static(clientDir, { index: false, maxAge: '1h' }))
+    app.get(/^\/(?!api\/).*/, (_req, res) => {
+      res.sendFile(path.join(clientDir, 'index.html'))
+    })
+  }
+
+  app.use(errorHandler(deps.log))
+  return app
+}

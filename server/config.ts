@@ -1,0 +1,85 @@
+import path from 'node:path'
+import { z } from 'zod'
+import { projectRoot } from './projectRoot.js'
+
+const flag = z
+  .enum(['0', '1', 'true', 'false'])
+  .transform((v) => v === '1' || v === 'true')
+
+/** Every environment variable Ordinate reads, parsed once at boot. README lists them. */
+export const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
+  PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+  HOST: z.string().default('127.0.0.1'),
+  DATABASE_PATH: z.string().optional(),
+  DATA_DIR: z.string().optional(),
+  PUBLIC_URL: z.url().optional(),
+  SESSION_SECRET: z.string().min(16).optional(),
+  DEMO_DATA: flag.optional(),
+  SMTP_URL: z.string().optional(),
+  MAIL_FROM: z.string().default('Ordinate <no-reply@ordinate.test>'),
+  STRIPE_SECRET_KEY: z.string().optional(),
+  STRIPE_API_HOST: z.string().optional(),
+  STRIPE_API_PORT: z.coerce.number().int().positive().optional(),
+  STRIPE_API_PROTOCOL: z.enum(['http', 'https']).optional(),
+  WORKER_THREADS: z.coerce.number().int().min(1).max(64).optional(),
+  RUN_TIME_LIMIT_S: z.coerce.number().positive().default(300),
+  TRUST_PROXY: flag.default(false),
+})
+
+export type Env = z.infer<typeof envSchema>
+
+export interface Config {
+  env: Env['NODE_ENV']
+  port: number
+  host: string
+  dataDir: string
+  databasePath: string
+  publicUrl?: string
+  sessionSecret?: string
+  demoData: boolean
+  smtpUrl?: string
+  mailFrom: string
+  stripe: {
+    secretKey?: string
+    host?: string
+    port?: number
+    protocol?: 'http' | 'https'
+  }
+  workerThreads?: number
+  runTimeLimitS: number
+  trustProxy: boolean
+}
+
+export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = envSchema.safeParse(source)
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`)
+    throw new Error(`Invalid environment:\n${lines.join('\n')}`)
+  }
+  const e = parsed.data
+  const root = projectRoot()
+  const databasePath = path.resolve(root, e.DATABASE_PATH ?? path.join('data', 'ordinate.sqlite'))
+  const dataDir = path.resolve(root, e.DATA_DIR ?? path.dirname(databasePath))
+  return {
+    env: e.NODE_ENV,
+    port: e.PORT,
+    host: e.HOST,
+    dataDir,
+    databasePath,
+    publicUrl: e.PUBLIC_URL,
+    sessionSecret: e.SESSION_SECRET,
+    demoData: e.DEMO_DATA ?? e.NODE_ENV !== 'production',
+    smtpUrl: e.SMTP_URL,
+    mailFrom: e.MAIL_FROM,
+    stripe: {
+      secretKey: e.STRIPE_SECRET_KEY,
+      host: e.STRIPE_API_HOST,
+      port: e.STRIPE_API_PORT,
+      protocol: e.STRIPE_API_PROTOCOL,
+    },
+    workerThreads: e.WORKER_THREADS,
+    runTimeLimitS: e.RUN_TIME_LIMIT_S,
+    trustProxy: e.TRUST_PROXY,
+  }
+}

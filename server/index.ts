@@ -1,0 +1,51 @@
+import type { AddressInfo } from 'node:net'
+import { createApp } from './app.js'
+import { loadConfig } from './config.js'
+import { migrateDb, openDb } from './db/client.js'
+import type { AppDeps } from './deps.js'
+import { seedDemoData } from './services/demoData.js'
+import { resolveSessionSecret } from './sessionSecret.js'
+
+async function main() {
+  const config = loadConfig()
+  const log = (line: string) => console.log(line)
+  const db = openDb(config.databasePath)
+  migrateDb(db)
+  if (config.demoData) {
+    const seeded = await seedDemoData(db)
+    if (seeded) log('Demo data loaded (see README for the demo accounts).')
+  }
+
+  const deps: AppDeps = {
+    db,
+    config,
+    sessionSecret: resolveSessionSecret(config.sessionSecret, config.dataDir),
+    sessionCookieName: 'ordinate.sid',
+    log,
+  }
+  const app = createApp(deps)
+  const server = app.listen(config.port, config.host, () => {
+    const { port } = server.address() as AddressInfo
+    log(`Ordinate listening on http://${config.host}:${port}`)
+  })
+
+  let stopping = false
+  const stop = (signal: string) => {
+    if (stopping) return
+    stopping = true
+    log(`${signal} received: closing.`)
+    server.close(() => {
+      db.$client.close()
+      process.exit(0)
+    })
+    server.closeAllConnections()
+    setTimeout(() => process.exit(0), 5000).unref()
+  }
+  process.on('SIGTERM', () => stop('SIGTERM'))
+  process.on('SIGINT', () => stop('SIGINT'))
+}
+
+main().catch((err: unknown) => {
+  console.error(err instanceof Error ? err.message : err)
+  process.exit(1)
+})
