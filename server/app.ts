@@ -12,6 +12,7 @@ import { errorHandler } from './middleware/errorHandler.js'
 import { projectRoot } from './projectRoot.js'
 import { authRouter } from './routes/auth.js'
 import { healthRouter } from './routes/health.js'
+import { projectsRouter } from './routes/projects.js'
 
 /** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
 export function createApp(deps: AppDeps) {
@@ -57,6 +58,7 @@ export function createApp(deps: AppDeps) {
 
   api.use(healthRouter())
   api.use(authRouter(deps))
+  api.use(projectsRouter(deps))
 
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))
   app.use('/api', api)

@@ -1,0 +1,23 @@
+import { z } from 'zod'
+
+/** POST /api/projects */
+export const createProjectBodySchema = z.strictObject({
+  name: z.string().trim().min(1, 'Give the project a name.').max(200, 'Use at most 200 characters.'),
+  description: z.string().trim().max(2000, 'Use at most 2000 characters.').default(''),
+})
+export type CreateProjectBody = z.infer<typeof createProjectBodySchema>
+
+/** A project as the API answers it. */
+export const projectSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  description: z.string(),
+  isDefault: z.boolean(),
+  createdBy: z.string().nullable(),
+  createdAt: z.number(),
+})
+export type Project = z.infer<typeof projectSchema>
+
+/** GET /api/projects */
+export const projectListSchema = z.object({ items: z.array(projectSchema) })
+export type ProjectList = z.infer<typeof projectListSchema>
