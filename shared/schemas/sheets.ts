@@ -1,0 +1,119 @@
+import { z } from 'zod'
+
+/**
+ * The calc-package sheet of a run or a comparison, as the server builds it
+ * (server/services/exports.ts). The PDF and the browser's print preview lay out this
+ * one model, so they show the same words and numbers. Text fields are display-ready
+ * strings; the chart travels as the inputs of shared/charts/spectrumChart.ts.
+ */
+
+const numbers = z.array(z.number())
+
+export const chartSeriesSchema = z.object({
+  label: z.string(),
+  periodsS: numbers,
+  values: numbers,
+  role: z.enum(['record', 'mean', 'band', 'target', 'target90']),
+  dampingRatio: z.number().optional(),
+  dash: z.string().optional(),
+})
+
+export const spectrumChartInputSchema = z.object({
+  data: z.object({
+    series: z.array(chartSeriesSchema),
+    band: z
+      .object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers })
+      .optional(),
+  }),
+  options: z.object({
+    quantity: z.enum(['PSA', 'SA', 'PSV', 'SV', 'SD']),
+    unit: z.enum(['g', 'm/s²', 'm/s', 'cm/s', 'm', 'cm', 'mm']).optional(),
+    xScale: z.enum(['log', 'linear']).optional(),
+    yScale: z.enum(['log', 'linear']).optional(),
+    widthPx: z.number().optional(),
+    heightPx: z.number().optional(),
+    title: z.string().optional(),
+    note: z.string().optional(),
+    periodRange: z
+      .object({ minS: z.number(), maxS: z.number(), label: z.string().optional() })
+      .optional(),
+    xDomainS: z.tuple([z.number(), z.number()]).optional(),
+    yDomain: z.tuple([z.number(), z.number()]).optional(),
+    id: z.string().optional(),
+  }),
+})
+export type SpectrumChartInput = z.infer<typeof spectrumChartInputSchema>
+
+/** A labelled value: "Δt" → "0.005 s". */
+export const sheetFieldSchema = z.object({ label: z.string(), value: z.string() })
+export type SheetField = z.infer<typeof sheetFieldSchema>
+
+/** A table of display strings; the first column holds the row labels. */
+export const sheetTableSchema = z.object({
+  title: z.string(),
+  columns: z.array(z.string()),
+  rows: z.array(z.object({ label: z.string(), cells: z.array(z.string()), emphasis: z.boolean().optional() })),
+  notes: z.array(z.string()),
+})
+export type SheetTable = z.infer<typeof sheetTableSchema>
+
+export const sheetRecordSchema = z.object({
+  name: z.string(),
+  fields: z.array(sheetFieldSchema),
+})
+export type SheetRecord = z.infer<typeof sheetRecordSchema>
+
+export const reviewStateSchema = z.enum(['draft', 'submitted', 'returned', 'checked'])
+
+export const sheetReviewSchema = z.object({
+  state: reviewStateSchema,
+  stateLabel: z.string(),
+  preparedBy: z.string(),
+  preparedOn: z.string(),
+  submittedOn: z.string().nullable(),
+  checkedBy: z.string().nullable(),
+  checkedOn: z.string().nullable(),
+  /** One line on what the state means for use of the sheet. */
+  note: z.string(),
+})
+export type SheetReview = z.infer<typeof sheetReviewSchema>
+
+export const sheetSchema = z.object({
+  kind: z.enum(['run', 'comparison']),
+  /** The sheet's reference, e.g. "ORD-R-3F2A9C1B". */
+  reference: z.string(),
+  title: z.string(),
+  product: z.object({ name: z.string(), version: z.string() }),
+  firmName: z.string(),
+  projectName: z.string(),
+  revision: z.number().int().positive(),
+  /** The sheet's date: the date of the check for checked work, otherwise when the work was done. */
+  dateMs: z.number(),
+  dateText: z.string(),
+  /** What the date is, e.g. "Date of check". */
+  dateLabel: z.string(),
+  records: z.array(sheetRecordSchema),
+  method: z.array(sheetFieldSchema),
+  chart: spectrumChartInputSchema,
+  /** Ordinates at the standard periods, then any comparison tables. */
+  tables: z.array(sheetTableSchema),
+  comparison: z
+    .object({ target: z.array(sheetFieldSchema), scaling: z.array(sheetFieldSchema) })
+    .nullable(),
+  review: sheetReviewSchema,
+  warnings: z.array(z.string()),
+  cautions: z.array(z.string()),
+})
+export type Sheet = z.infer<typeof sheetSchema>
+
+export const EXPORT_WIDTH_MM = { min: 40, max: 400, default: 170 } as const
+
+/** The query of the plot exports (PNG and SVG): the view the engineer sees. */
+export const plotExportQuerySchema = z.strictObject({
+  widthMm: z.coerce
+    .number({ error: 'widthMm must be a number of millimetres.' })
+    .min(EXPORT_WIDTH_MM.min, `widthMm must be at least ${EXPORT_WIDTH_MM.min} mm.`)
+    .max(EXPORT_WIDTH_MM.max, `widthMm must be at most ${EXPORT_WIDTH_MM.max} mm.`)
+    .default(EXPORT_WIDTH_MM.default),
+})
+export type PlotExportQuery = z.infer<typeof plotExportQuerySchema>
