@@ -9,9 +9,15 @@ import { notFound } from './httpError.js'
 import { loadMember } from './middleware/auth.js'
 import { csrfGuard } from './middleware/csrf.js'
 import { errorHandler } from './middleware/errorHandler.js'
+import { passwordResetLimiters, signInLimiters } from './middleware/rateLimits.js'
 import { projectRoot } from './projectRoot.js'
 import { authRouter } from './routes/auth.js'
+import { creditsRouter } from './routes/credits.js'
+import { devMailboxRouter } from './routes/devMailbox.js'
 import { healthRouter } from './routes/health.js'
+import { invitationsRouter } from './routes/invitations.js'
+import { membersRouter } from './routes/members.js'
+import { passwordResetsRouter } from './routes/passwordResets.js'
 import { projectsRouter } from './routes/projects.js'
 
 /** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
@@ -20,17 +26,20 @@ export function createApp(deps: AppDeps) {
   app.disable('x-powered-by')
   app.set('trust proxy', deps.config.trustProxy)
 
+  // Live card entry uses Stripe.js, which must load from Stripe and talks to it (Stripe's security guide, CSP section).
+  const stripeJs = deps.payments?.cardEntry === 'stripe-js'
   app.use(
     helmet({
       contentSecurityPolicy: {
         directives: {
           defaultSrc: ["'self'"],
-          scriptSrc: ["'self'"],
+          scriptSrc: ["'self'", ...(stripeJs ? ['https://js.stripe.com'] : [])],
+          ...(stripeJs ? { frameSrc: ['https://js.stripe.com', 'https://hooks.stripe.com'] } : {}),
           // naive-ui injects its styles at run time as <style> elements.
           styleSrc: ["'self'", "'unsafe-inline'"],
           imgSrc: ["'self'", 'data:', 'blob:'],
           fontSrc: ["'self'", 'data:'],
-          connectSrc: ["'self'"],
+          connectSrc: ["'self'", ...(stripeJs ? ['https://api.stripe.com'] : [])],
           objectSrc: ["'none'"],
           frameAncestors: ["'none'"],
           upgradeInsecureRequests: null,
@@ -57,8 +66,13 @@ export function createApp(deps: AppDeps) {
   api.use(csrfGuard(() => (deps.config.publicUrl ? [new URL(deps.config.publicUrl).origin] : [])))
 
   api.use(healthRouter())
-  api.use(authRouter(deps))
+  api.use(authRouter(deps, signInLimiters(deps.config.rateLimits)))
+  api.use(passwordResetsRouter(deps, passwordResetLimiters(deps.config.rateLimits)))
+  api.use(membersRouter(deps))
+  api.use(invitationsRouter(deps))
+  if (deps.devMailbox && deps.config.env !== 'production') api.use(devMailboxRouter(deps.devMailbox))
   api.use(projectsRouter(deps))
+  api.use(creditsRouter(deps))
 
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))
   app.use('/api', api)

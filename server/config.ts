@@ -22,9 +22,14 @@ export const envSchema = z.object({
   STRIPE_API_HOST: z.string().optional(),
   STRIPE_API_PORT: z.coerce.number().int().positive().optional(),
   STRIPE_API_PROTOCOL: z.enum(['http', 'https']).optional(),
+  STRIPE_PUBLISHABLE_KEY: z.string().optional(),
   WORKER_THREADS: z.coerce.number().int().min(1).max(64).optional(),
   RUN_TIME_LIMIT_S: z.coerce.number().positive().default(300),
   TRUST_PROXY: flag.default(false),
+  RATE_LIMIT_WINDOW_S: z.coerce.number().int().positive().default(900),
+  SIGN_IN_MAX_FAILURES_PER_EMAIL: z.coerce.number().int().positive().default(5),
+  SIGN_IN_MAX_FAILURES_PER_ADDRESS: z.coerce.number().int().positive().default(20),
+  PASSWORD_RESET_MAX_PER_WINDOW: z.coerce.number().int().positive().default(5),
 })
 
 export type Env = z.infer<typeof envSchema>
@@ -45,10 +50,19 @@ export interface Config {
     host?: string
     port?: number
     protocol?: 'http' | 'https'
+    /** For Stripe.js in the browser, when the SDK talks to Stripe itself. */
+    publishableKey?: string
   }
   workerThreads?: number
   runTimeLimitS: number
   trustProxy: boolean
+  /** Sign-in counts failures only; password-reset requests all count, whatever the address. */
+  rateLimits: {
+    windowMs: number
+    signInFailuresPerEmail: number
+    signInFailuresPerAddress: number
+    passwordResetsPerWindow: number
+  }
 }
 
 export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
@@ -77,9 +91,16 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       host: e.STRIPE_API_HOST,
       port: e.STRIPE_API_PORT,
       protocol: e.STRIPE_API_PROTOCOL,
+      publishableKey: e.STRIPE_PUBLISHABLE_KEY,
     },
     workerThreads: e.WORKER_THREADS,
     runTimeLimitS: e.RUN_TIME_LIMIT_S,
     trustProxy: e.TRUST_PROXY,
+    rateLimits: {
+      windowMs: e.RATE_LIMIT_WINDOW_S * 1000,
+      signInFailuresPerEmail: e.SIGN_IN_MAX_FAILURES_PER_EMAIL,
+      signInFailuresPerAddress: e.SIGN_IN_MAX_FAILURES_PER_ADDRESS,
+      passwordResetsPerWindow: e.PASSWORD_RESET_MAX_PER_WINDOW,
+    },
   }
 }

@@ -3,6 +3,8 @@ import { createApp } from './app.js'
 import { loadConfig } from './config.js'
 import { migrateDb, openDb } from './db/client.js'
 import type { AppDeps } from './deps.js'
+import { startMail } from './mail/startMail.js'
+import { createPayments } from './payments/payments.js'
 import { seedDemoData } from './services/demoData.js'
 import { resolveSessionSecret } from './sessionSecret.js'
 
@@ -16,12 +18,18 @@ async function main() {
     if (seeded) log('Demo data loaded (see README for the demo accounts).')
   }
 
+  const mail = await startMail(db, config, log)
+  const payments = await createPayments(config.stripe, { log })
+  log(`Payments: ${payments.mode} mode, through ${payments.endpoint}.`)
   const deps: AppDeps = {
     db,
     config,
     sessionSecret: resolveSessionSecret(config.sessionSecret, config.dataDir),
     sessionCookieName: 'ordinate.sid',
     log,
+    mailDispatcher: mail.mailDispatcher,
+    devMailbox: mail.devMailbox,
+    payments,
   }
   const app = createApp(deps)
   const server = app.listen(config.port, config.host, () => {
@@ -35,8 +43,10 @@ async function main() {
     stopping = true
     log(`${signal} received: closing.`)
     server.close(() => {
-      db.$client.close()
-      process.exit(0)
+      void Promise.all([mail.stop(), payments.close()]).finally(() => {
+        db.$client.close()
+        process.exit(0)
+      })
     })
     server.closeAllConnections()
     setTimeout(() => process.exit(0), 5000).unref()

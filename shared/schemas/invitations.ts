@@ -1,0 +1,39 @@
+import { z } from 'zod'
+import { passwordSchema, roleSchema } from './accounts.js'
+import { rolesSchema } from './members.js'
+import { emailSchema } from './tokens.js'
+
+/** POST /api/firm/invitations */
+export const createInvitationBodySchema = z.strictObject({ email: emailSchema, roles: rolesSchema })
+export type CreateInvitationBody = z.input<typeof createInvitationBodySchema>
+
+/** A pending invitation as the firm's admins see it. */
+export const invitationSchema = z.object({
+  id: z.string(),
+  email: z.string(),
+  roles: z.array(roleSchema),
+  invitedByName: z.string(),
+  expiresAt: z.number(),
+  createdAt: z.number(),
+})
+export type Invitation = z.infer<typeof invitationSchema>
+
+export const invitationListSchema = z.object({ items: z.array(invitationSchema) })
+export type InvitationList = z.infer<typeof invitationListSchema>
+
+/** GET /api/invitations/:token: what the invitee sees before accepting. */
+export const invitationPreviewSchema = z.object({
+  email: z.string(),
+  firmName: z.string(),
+  roles: z.array(roleSchema),
+  invitedByName: z.string(),
+  expiresAt: z.number(),
+})
+export type InvitationPreview = z.infer<typeof invitationPreviewSchema>
+
+/** POST /api/invitations/:token/accept */
+export const acceptInvitationBodySchema = z.strictObject({
+  name: z.string().trim().min(1, 'Enter your name.').max(120, 'Use at most 120 characters.'),
+  password: passwordSchema,
+})
+export type AcceptInvitationBody = z.input<typeof acceptInvitationBodySchema>
