@@ -106,7 +106,7 @@ export const sheetSchema = z.object({
 })
 export type Sheet = z.infer<typeof sheetSchema>
 
-export const EXPORT_WIDTH_MM = { min: 40, max: 400, default: 170 } as const
+export const EXPORT_WIDTH_MM = { min: 50, max: 400, default: 170 } as const
 
 /** The query of the plot exports (PNG and SVG): the view the engineer sees. */
 export const plotExportQuerySchema = z.strictObject({
