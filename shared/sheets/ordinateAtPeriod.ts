@@ -5,6 +5,7 @@
  * between computed periods (common practice).
  * Nothing is extrapolated beyond the computed range.
  */
+import { interpolateLogLog } from '../spectra/suite.js'
 
 /** The periods a calc-package table reads, in seconds (issue 8); T = 0 stands for the PGA. */
 export const STANDARD_PERIODS_S: readonly number[] = [
@@ -52,8 +53,10 @@ export function ordinateAtPeriod(
   const t1 = periodsS[above] as number
   const v0 = values[below] as number
   const v1 = values[above] as number
-  const f = Math.log(periodS / t0) / Math.log(t1 / t0)
-  const value = v0 > 0 && v1 > 0 ? Math.exp(Math.log(v0) + f * Math.log(v1 / v0)) : v0 + f * (v1 - v0)
+  const value =
+    v0 > 0 && v1 > 0
+      ? (interpolateLogLog([t0, t1], [v0, v1], [periodS])[0] as number)
+      : v0 + (Math.log(periodS / t0) / Math.log(t1 / t0)) * (v1 - v0)
   return { kind: 'interpolated', value, fromS: t0, toS: t1 }
 }
 
