@@ -309,6 +309,12 @@ export const comparisons = sqliteTable('comparisons', {
   dampingRatio: real('damping_ratio').notNull(),
   target: text('target', { mode: 'json' }).$type<Record<string, unknown>>(),
   scaling: text('scaling', { mode: 'json' }).$type<Record<string, unknown>>(),
+  /** 'arithmetic' or 'geometric': the suite mean drawn and checked against the target. */
+  meanKind: text('mean_kind', { enum: ['arithmetic', 'geometric'] }).notNull().default('arithmetic'),
+  /** For runs of record pairs: which combination of the two components is compared. */
+  combination: text('combination', { enum: ['geomean', 'rotd50', 'rotd100'] }),
+  /** The comparison this one revises after its predecessor was checked and locked. */
+  revisionOf: text('revision_of'),
   revision: integer('revision').notNull().default(1),
   createdBy: text('created_by')
     .notNull()
