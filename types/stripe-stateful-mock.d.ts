@@ -1,0 +1,1 @@
+declare module 'stripe-stateful-mock'
