@@ -19,6 +19,8 @@ import { invitationsRouter } from './routes/invitations.js'
 import { membersRouter } from './routes/members.js'
 import { passwordResetsRouter } from './routes/passwordResets.js'
 import { projectsRouter } from './routes/projects.js'
+import { recordPairsRouter } from './routes/recordPairs.js'
+import { recordsRouter } from './routes/records.js'
 
 /** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
 export function createApp(deps: AppDeps) {
@@ -72,6 +74,8 @@ export function createApp(deps: AppDeps) {
   api.use(invitationsRouter(deps))
   if (deps.devMailbox && deps.config.env !== 'production') api.use(devMailboxRouter(deps.devMailbox))
   api.use(projectsRouter(deps))
+  api.use(recordsRouter(deps))
+  api.use(recordPairsRouter(deps))
   api.use(creditsRouter(deps))
 
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))

@@ -1,0 +1,279 @@
+import { createHash } from 'node:crypto'
+import path from 'node:path'
+import { and, count, desc, eq, inArray, or } from 'drizzle-orm'
+import { parseRecord, RecordParseError } from '../../shared/spectra/parseRecord.js'
+import { integrateRecord, recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
+import type { SourceUnits } from '../../shared/spectra/units.js'
+import type { RecordDetail, RecordInfo, RecordSamples } from '../../shared/schemas/records.js'
+import type { Db } from '../db/client.js'
+import { projects, recordPairs, records, runs, users } from '../db/schema.js'
+import { badRequest, conflict, forbidden, notFound } from '../httpError.js'
+import { newId } from '../ids.js'
+import type { Member } from '../middleware/auth.js'
+import { recordAudit } from './audit.js'
+import { decimateMinMax } from './decimateMinMax.js'
+import { removeOriginal, storeOriginal } from './originals.js'
+import { resolveProject } from './projects.js'
+import { decodeSamples, encodeSamples } from './sampleBlob.js'
+
+/** Who adds a record: the signed-in member, or the demo seeder acting as a demo member. */
+export type RecordUploader = Pick<Member, 'userId' | 'firmId'>
+
+export interface CreateRecordInput {
+  /** The file exactly as uploaded; kept unaltered under its SHA-256. */
+  bytes: Uint8Array
+  /** The uploaded file's name, kept for display only (never used as a storage path). */
+  fileName: string
+  name?: string
+  /** The file's units, when the file does not state them. */
+  units?: SourceUnits
+  /** The time step in seconds, when the file does not state it. */
+  dtS?: number
+  component?: string
+  /** Without it, the firm's default project. */
+  projectId?: string
+  /** True for records Ordinate generated (demo data); shown with a "synthetic" label. */
+  synthetic?: boolean
+}
+
+/**
+ * Reads the upload as text. UTF-16 files (with their byte-order mark) are decoded as such;
+ * anything else as UTF-8, where undecodable bytes become U+FFFD and the parser then names the
+ * line they are on.
+ */
+function decodeText(bytes: Uint8Array): string {
+  const encoding =
+    bytes[0] === 0xff && bytes[1] === 0xfe ? 'utf-16le' : bytes[0] === 0xfe && bytes[1] === 0xff ? 'utf-16be' : 'utf-8'
+  return new TextDecoder(encoding).decode(bytes)
+}
+
+function displayFileName(fileName: string): string {
+  const base = path.basename(fileName.replace(/\\/g, '/')).trim()
+  return (base || 'record').slice(0, 255)
+}
+
+function defaultName(fileName: string): string {
+  const ext = path.extname(fileName)
+  return (ext ? fileName.slice(0, -ext.length) : fileName).slice(0, 200) || 'Record'
+}
+
+/**
+ * Validates, parses and stores a record. Every refusal (400 with the line from the parser,
+ * 404 for another firm's project) happens before anything is written. The original bytes
+ * are stored under `<dataDir>/originals/<sha256>` and the row inserted in one transaction;
+ * when the insert fails, a file this call created is removed again unless another record
+ * already references the same hash.
+ */
+export function createRecord(db: Db, dataDir: string, member: RecordUploader, input: CreateRecordInput): RecordInfo {
+  const project = resolveProject(db, member.firmId, input.projectId)
+  let parsed
+  try {
+    parsed = parseRecord(decodeText(input.bytes), { units: input.units, dtS: input.dtS })
+  } catch (err) {
+    if (err instanceof RecordParseError) {
+      const field = err.code === 'units_missing' ? 'units' : err.code === 'dt_missing' ? 'dtS' : 'file'
+      throw badRequest(err.message, `record_${err.code}`, {
+        line: err.line,
+        issues: [{ path: [field], message: err.message }],
+      })
+    }
+    throw err
+  }
+  const parameters = recordParameters(parsed.accelMPerS2, parsed.dtS)
+  const warnings = [...parsed.warnings, ...recordWarnings(parsed.accelMPerS2, parsed.dtS)]
+  const sha256 = createHash('sha256').update(input.bytes).digest('hex')
+  const fileName = displayFileName(input.fileName)
+
+  const info: RecordInfo = {
+    id: newId(),
+    name: input.name?.trim() || defaultName(fileName),
+    projectId: project.id,
+    points: parameters.points,
+    dtS: parameters.dtS,
+    durationS: parameters.durationS,
+    sourceUnits: parsed.sourceUnits,
+    component: input.component?.trim() || null,
+    pgaMPerS2: parameters.pgaMPerS2,
+    pgvMPerS: parameters.pgvMPerS,
+    pgdM: parameters.pgdM,
+    ariasMPerS: parameters.ariasMPerS,
+    d595S: parameters.d595S,
+    cavMPerS: parameters.cavMPerS,
+    sha256,
+    uploadedBy: member.userId,
+    createdAt: Date.now(),
+    warnings,
+  }
+
+  const { created } = storeOriginal(dataDir, sha256, input.bytes)
+  try {
+    db.transaction(
+      (tx) => {
+        tx.insert(records)
+          .values({
+            ...info,
+            firmId: member.firmId,
+            sourceFileName: fileName,
+            format: parsed.format,
+            samples: encodeSamples(parsed.accelMPerS2),
+            synthetic: input.synthetic ?? false,
+          })
+          .run()
+        recordAudit(tx, {
+          firmId: member.firmId,
+          userId: member.userId,
+          action: 'record.uploaded',
+          subjectType: 'record',
+          subjectId: info.id,
+          detail: { name: info.name, sha256, fileName, points: info.points, synthetic: input.synthetic ?? false },
+        })
+      },
+      { behavior: 'immediate' },
+    )
+  } catch (err) {
+    if (created && !hashInUse(db, sha256)) removeOriginal(dataDir, sha256)
+    throw err
+  }
+  return info
+}
+
+function hashInUse(db: Db, sha256: string): boolean {
+  return db.select({ id: records.id }).from(records).where(eq(records.sha256, sha256)).limit(1).get() !== undefined
+}
+
+const detailColumns = {
+  id: records.id,
+  name: records.name,
+  projectId: records.projectId,
+  points: records.points,
+  dtS: records.dtS,
+  durationS: records.durationS,
+  sourceUnits: records.sourceUnits,
+  component: records.component,
+  pgaMPerS2: records.pgaMPerS2,
+  pgvMPerS: records.pgvMPerS,
+  pgdM: records.pgdM,
+  ariasMPerS: records.ariasMPerS,
+  d595S: records.d595S,
+  cavMPerS: records.cavMPerS,
+  sha256: records.sha256,
+  uploadedBy: records.uploadedBy,
+  createdAt: records.createdAt,
+  warnings: records.warnings,
+  projectName: projects.name,
+  uploaderName: users.name,
+  sourceFileName: records.sourceFileName,
+  format: records.format,
+  synthetic: records.synthetic,
+}
+
+function selectDetails(db: Db) {
+  return db
+    .select(detailColumns)
+    .from(records)
+    .innerJoin(projects, eq(projects.id, records.projectId))
+    .innerJoin(users, eq(users.id, records.uploadedBy))
+}
+
+const asDetail = (row: Omit<RecordDetail, 'sourceUnits'> & { sourceUnits: string }): RecordDetail => ({
+  ...row,
+  sourceUnits: row.sourceUnits as SourceUnits,
+})
+
+/** The firm's records, newest first, optionally in one project (another firm's project answers 404). */
+export function listRecords(db: Db, firmId: string, projectId?: string): RecordDetail[] {
+  if (projectId) resolveProject(db, firmId, projectId)
+  const where = projectId
+    ? and(eq(records.firmId, firmId), eq(records.projectId, projectId))
+    : eq(records.firmId, firmId)
+  return selectDetails(db).where(where).orderBy(desc(records.createdAt)).all().map(asDetail)
+}
+
+/** One of the firm's records; another firm's id answers 404, never 403. */
+export function getRecord(db: Db, firmId: string, recordId: string): RecordDetail {
+  const row = selectDetails(db)
+    .where(and(eq(records.firmId, firmId), eq(records.id, recordId)))
+    .get()
+  if (!row) throw notFound('The record')
+  return asDetail(row)
+}
+
+/** For the run service: the record and its samples in m/s², scoped to the firm (404 otherwise). */
+export function loadRecordSamples(
+  db: Db,
+  firmId: string,
+  recordId: string,
+): { record: RecordDetail; accelMPerS2: Float64Array } {
+  const record = getRecord(db, firmId, recordId)
+  const row = db.select({ samples: records.samples }).from(records).where(eq(records.id, recordId)).get()
+  if (!row) throw notFound('The record')
+  return { record, accelMPerS2: decodeSamples(row.samples) }
+}
+
+/**
+ * The record in SI for plotting: acceleration, and velocity and displacement by the engine's
+ * trapezoidal integration of the full record, then thinned to at most maxPoints by min/max
+ * buckets so every peak survives.
+ */
+export function recordSamplesForPlot(db: Db, firmId: string, recordId: string, maxPoints: number): RecordSamples {
+  const { record, accelMPerS2 } = loadRecordSamples(db, firmId, recordId)
+  const { velMPerS, dispM } = integrateRecord(accelMPerS2, record.dtS)
+  const { timeS, series } = decimateMinMax([accelMPerS2, velMPerS, dispM], record.dtS, maxPoints)
+  const [accel, vel, disp] = series as [Float64Array, Float64Array, Float64Array]
+  return { timeS: Array.from(timeS), accelMPerS2: Array.from(accel), velMPerS: Array.from(vel), dispM: Array.from(disp) }
+}
+
+/**
+ * Deletes a record: only its uploader or an admin. While a run uses the record, directly or
+ * through a pair, it answers 409. Pairs the record belongs to are removed with it. The
+ * original file goes too, unless another record still references the same bytes.
+ */
+export function removeRecord(db: Db, dataDir: string, member: Member, recordId: string): void {
+  const record = getRecord(db, member.firmId, recordId)
+  if (record.uploadedBy !== member.userId && !member.roles.includes('admin')) {
+    throw forbidden('Only the member who uploaded this record, or someone with the admin role, may delete it.')
+  }
+  db.transaction(
+    (tx) => {
+      const pairIds = tx
+        .select({ id: recordPairs.id })
+        .from(recordPairs)
+        .where(and(eq(recordPairs.firmId, member.firmId), or(eq(recordPairs.record1Id, recordId), eq(recordPairs.record2Id, recordId))))
+        .all()
+        .map((p) => p.id)
+      const usedBy = tx
+        .select({ n: count() })
+        .from(runs)
+        .where(pairIds.length ? or(eq(runs.recordId, recordId), inArray(runs.pairId, pairIds)) : eq(runs.recordId, recordId))
+        .get()
+      if ((usedBy?.n ?? 0) > 0) {
+        throw conflict(
+          `This record is used by ${usedBy!.n === 1 ? 'a run' : `${usedBy!.n} runs`}; records that runs depend on cannot be deleted.`,
+          'record_in_use',
+        )
+      }
+      for (const pairId of pairIds) {
+        tx.delete(recordPairs).where(eq(recordPairs.id, pairId)).run()
+        recordAudit(tx, {
+          firmId: member.firmId,
+          userId: member.userId,
+          action: 'record_pair.deleted',
+          subjectType: 'record_pair',
+          subjectId: pairId,
+          detail: { reason: 'record deleted', recordId },
+        })
+      }
+      tx.delete(records).where(eq(records.id, recordId)).run()
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: 'record.deleted',
+        subjectType: 'record',
+        subjectId: recordId,
+        detail: { name: record.name, sha256: record.sha256 },
+      })
+    },
+    { behavior: 'immediate' },
+  )
+  if (!hashInUse(db, record.sha256)) removeOriginal(dataDir, record.sha256)
+}
