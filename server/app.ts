@@ -12,6 +12,7 @@ import { errorHandler } from './middleware/errorHandler.js'
 import { passwordResetLimiters, signInLimiters } from './middleware/rateLimits.js'
 import { projectRoot } from './projectRoot.js'
 import { authRouter } from './routes/auth.js'
+import { comparisonsRouter } from './routes/comparisons.js'
 import { creditsRouter } from './routes/credits.js'
 import { devMailboxRouter } from './routes/devMailbox.js'
 import { healthRouter } from './routes/health.js'
@@ -21,6 +22,8 @@ import { passwordResetsRouter } from './routes/passwordResets.js'
 import { projectsRouter } from './routes/projects.js'
 import { recordPairsRouter } from './routes/recordPairs.js'
 import { recordsRouter } from './routes/records.js'
+import { reviewsRouter } from './routes/reviews.js'
+import { targetsRouter } from './routes/targets.js'
 
 /** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
 export function createApp(deps: AppDeps) {
@@ -77,6 +80,9 @@ export function createApp(deps: AppDeps) {
   api.use(recordsRouter(deps))
   api.use(recordPairsRouter(deps))
   api.use(creditsRouter(deps))
+  api.use(targetsRouter(deps))
+  api.use(comparisonsRouter(deps))
+  api.use(reviewsRouter(deps))
 
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))
   app.use('/api', api)

@@ -1,0 +1,41 @@
+import { Router } from 'express'
+import { idParamsSchema } from '../../shared/schemas/common.js'
+import {
+  comparisonListQuerySchema,
+  createComparisonBodySchema,
+  updateComparisonBodySchema,
+} from '../../shared/schemas/comparisons.js'
+import type { AppDeps } from '../deps.js'
+import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import {
+  createComparison,
+  getComparisonView,
+  listComparisons,
+  updateComparison,
+} from '../services/comparisons.js'
+
+export function comparisonsRouter(deps: AppDeps) {
+  const router = Router()
+
+  router.get('/comparisons', requireMember, (req, res) => {
+    const { projectId } = comparisonListQuerySchema.parse(req.query)
+    res.json({ items: listComparisons(deps.db, memberOf(req).firmId, projectId) })
+  })
+
+  router.get('/comparisons/:id', requireMember, (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    res.json(getComparisonView(deps.db, memberOf(req).firmId, id))
+  })
+
+  // Role table (accounts issue): engineers and checkers create and edit comparisons.
+  router.post('/comparisons', requireRole('engineer', 'checker'), (req, res) => {
+    res.status(201).json(createComparison(deps.db, memberOf(req), createComparisonBodySchema.parse(req.body)))
+  })
+
+  router.patch('/comparisons/:id', requireRole('engineer', 'checker'), (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    res.json(updateComparison(deps.db, memberOf(req), id, updateComparisonBodySchema.parse(req.body)))
+  })
+
+  return router
+}

@@ -1,0 +1,408 @@
+import { and, asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm'
+import type {
+  Review,
+  ReviewComment,
+  ReviewCommentBody,
+  ReviewDecisionBody,
+  ReviewDetail,
+  ReviewListQuery,
+  ReviewState,
+  ReviewSubjectType,
+  SubmitReviewBody,
+} from '../../shared/schemas/reviews.js'
+import type { Db } from '../db/client.js'
+import { comparisons, recordPairs, records, reviewComments, reviews, runs, users } from '../db/schema.js'
+import { conflict, forbidden, notFound } from '../httpError.js'
+import { newId } from '../ids.js'
+import type { Member } from '../middleware/auth.js'
+import { recordAudit } from './audit.js'
+import type { DbOrTx } from './credits.js'
+
+/** The work a review is about, as the review rules need it. */
+interface Subject {
+  type: ReviewSubjectType
+  id: string
+  name: string
+  createdBy: string
+  /** Everyone whose runs are part of the work: the run's author, or every run's author of a comparison. */
+  ranBy: string[]
+  /** Runs must have succeeded before they can be checked. */
+  ready: boolean
+}
+
+function loadSubject(db: Pick<Db, 'select'>, firmId: string, type: ReviewSubjectType, id: string): Subject {
+  if (type === 'run') {
+    const run = db
+      .select({
+        createdBy: runs.createdBy,
+        status: runs.status,
+        name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
+      })
+      .from(runs)
+      .leftJoin(records, eq(records.id, runs.recordId))
+      .leftJoin(recordPairs, eq(recordPairs.id, runs.pairId))
+      .where(and(eq(runs.firmId, firmId), eq(runs.id, id)))
+      .get()
+    if (!run) throw notFound('The run')
+    return {
+      type,
+      id,
+      name: run.name,
+      createdBy: run.createdBy,
+      ranBy: [run.createdBy],
+      ready: run.status === 'succeeded',
+    }
+  }
+  const comparison = db
+    .select({ createdBy: comparisons.createdBy, name: comparisons.name, runIds: comparisons.runIds })
+    .from(comparisons)
+    .where(and(eq(comparisons.firmId, firmId), eq(comparisons.id, id)))
+    .get()
+  if (!comparison) throw notFound('The comparison')
+  const runAuthors =
+    comparison.runIds.length === 0
+      ? []
+      : db
+          .select({ createdBy: runs.createdBy })
+          .from(runs)
+          .where(and(eq(runs.firmId, firmId), inArray(runs.id, comparison.runIds)))
+          .all()
+          .map((r) => r.createdBy)
+  return { type, id, name: comparison.name, createdBy: comparison.createdBy, ranBy: runAuthors, ready: true }
+}
+
+/** Review states of several subjects of one type; subjects never submitted are 'draft'. */
+export function reviewStates(
+  db: Pick<Db, 'select'>,
+  firmId: string,
+  subjectType: ReviewSubjectType,
+  subjectIds: string[],
+): Map<string, ReviewState> {
+  const states = new Map<string, ReviewState>(subjectIds.map((id) => [id, 'draft']))
+  if (subjectIds.length === 0) return states
+  const rows = db
+    .select({ subjectId: reviews.subjectId, state: reviews.state })
+    .from(reviews)
+    .where(
+      and(
+        eq(reviews.firmId, firmId),
+        eq(reviews.subjectType, subjectType),
+        inArray(reviews.subjectId, subjectIds),
+      ),
+    )
+    .all()
+  for (const r of rows) states.set(r.subjectId, r.state)
+  return states
+}
+
+export function reviewStateOf(
+  db: Pick<Db, 'select'>,
+  firmId: string,
+  subjectType: ReviewSubjectType,
+  subjectId: string,
+): ReviewState {
+  return reviewStates(db, firmId, subjectType, [subjectId]).get(subjectId) ?? 'draft'
+}
+
+/**
+ * Refuses changes to work that is being checked (409 under_review) or has been checked (409 locked):
+ * checked work is locked, and a change makes a new revision instead.
+ */
+export function assertEditable(
+  db: Pick<Db, 'select'>,
+  firmId: string,
+  subjectType: ReviewSubjectType,
+  subjectId: string,
+): void {
+  const state = reviewStateOf(db, firmId, subjectType, subjectId)
+  const what = subjectType === 'run' ? 'run' : 'comparison'
+  if (state === 'checked') {
+    throw conflict(`This ${what} has been checked and is locked. Make a new revision instead.`, 'locked')
+  }
+  if (state === 'submitted') {
+    throw conflict(
+      `This ${what} is waiting for a checker's decision; it can change once it is returned.`,
+      'under_review',
+    )
+  }
+}
+
+function people(db: Pick<Db, 'select'>, ids: (string | null)[]): Map<string, { id: string; name: string }> {
+  const wanted = [...new Set(ids.filter((id): id is string => !!id))]
+  if (wanted.length === 0) return new Map()
+  const rows = db
+    .select({ id: users.id, name: users.name })
+    .from(users)
+    .where(inArray(users.id, wanted))
+    .all()
+  return new Map(rows.map((r) => [r.id, r]))
+}
+
+const reviewColumns = {
+  id: reviews.id,
+  subjectType: reviews.subjectType,
+  subjectId: reviews.subjectId,
+  state: reviews.state,
+  submittedBy: reviews.submittedBy,
+  submittedAt: reviews.submittedAt,
+  decidedBy: reviews.decidedBy,
+  decidedAt: reviews.decidedAt,
+  createdAt: reviews.createdAt,
+  commentCount: sql<number>`(select count(*) from ${reviewComments} where ${reviewComments.reviewId} = ${reviews.id})`,
+}
+
+type ReviewRow = Awaited<ReturnType<ReturnType<typeof selectReviews>['all']>>[number]
+
+function selectReviews(db: Pick<Db, 'select'>, where: SQL | undefined) {
+  return db.select(reviewColumns).from(reviews).where(where)
+}
+
+/** Adds names of people and subjects to review rows, with a handful of queries for the whole list. */
+function toReviews(db: Pick<Db, 'select'>, firmId: string, rows: ReviewRow[]): Review[] {
+  const runIds = rows.filter((r) => r.subjectType === 'run').map((r) => r.subjectId)
+  const comparisonIds = rows.filter((r) => r.subjectType === 'comparison').map((r) => r.subjectId)
+  const subjects = new Map<string, { name: string; createdBy: string }>()
+  if (runIds.length > 0) {
+    db.select({
+      id: runs.id,
+      createdBy: runs.createdBy,
+      name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
+    })
+      .from(runs)
+      .leftJoin(records, eq(records.id, runs.recordId))
+      .leftJoin(recordPairs, eq(recordPairs.id, runs.pairId))
+      .where(and(eq(runs.firmId, firmId), inArray(runs.id, runIds)))
+      .all()
+      .forEach((s) => subjects.set(`run:${s.id}`, s))
+  }
+  if (comparisonIds.length > 0) {
+    db.select({ id: comparisons.id, createdBy: comparisons.createdBy, name: comparisons.name })
+      .from(comparisons)
+      .where(and(eq(comparisons.firmId, firmId), inArray(comparisons.id, comparisonIds)))
+      .all()
+      .forEach((s) => subjects.set(`comparison:${s.id}`, s))
+  }
+  const names = people(db, [
+    ...rows.flatMap((r) => [r.submittedBy, r.decidedBy]),
+    ...[...subjects.values()].map((s) => s.createdBy),
+  ])
+  const person = (id: string) => names.get(id) ?? { id, name: '' }
+  return rows.map((r) => {
+    const subject = subjects.get(`${r.subjectType}:${r.subjectId}`)
+    return {
+      ...r,
+      subjectName: subject?.name ?? '',
+      subjectAuthor: person(subject?.createdBy ?? ''),
+      submittedBy: person(r.submittedBy),
+      decidedBy: r.decidedBy ? person(r.decidedBy) : null,
+    }
+  })
+}
+
+/** The firm's reviews, newest activity first, filtered by state, submitter or subject. */
+export function listReviews(db: Db, member: Member, query: ReviewListQuery, limit = 500): Review[] {
+  const where = and(
+    eq(reviews.firmId, member.firmId),
+    query.state ? eq(reviews.state, query.state) : undefined,
+    query.mine === 'true' ? eq(reviews.submittedBy, member.userId) : undefined,
+    query.subjectType ? eq(reviews.subjectType, query.subjectType) : undefined,
+    query.subjectId ? eq(reviews.subjectId, query.subjectId) : undefined,
+  )
+  const rows = selectReviews(db, where)
+    .orderBy(desc(sql`coalesce(${reviews.decidedAt}, ${reviews.submittedAt})`), desc(reviews.id))
+    .limit(limit)
+    .all()
+  return toReviews(db, member.firmId, rows)
+}
+
+/** One review with its comment thread, oldest first; another firm's id answers 404. */
+export function getReview(db: Pick<Db, 'select'>, firmId: string, reviewId: string): ReviewDetail {
+  const row = selectReviews(db, and(eq(reviews.firmId, firmId), eq(reviews.id, reviewId))).get()
+  if (!row) throw notFound('The review')
+  const [review] = toReviews(db, firmId, [row])
+  const commentRows = db
+    .select({
+      id: reviewComments.id,
+      authorId: reviewComments.authorId,
+      body: reviewComments.body,
+      createdAt: reviewComments.createdAt,
+    })
+    .from(reviewComments)
+    .where(eq(reviewComments.reviewId, reviewId))
+    .orderBy(asc(reviewComments.createdAt), asc(sql`rowid`))
+    .all()
+  const names = people(
+    db,
+    commentRows.map((c) => c.authorId),
+  )
+  const comments: ReviewComment[] = commentRows.map(({ authorId, ...c }) => ({
+    ...c,
+    author: names.get(authorId) ?? { id: authorId, name: '' },
+  }))
+  return { ...(review as Review), comments }
+}
+
+function insertComment(tx: DbOrTx, reviewId: string, authorId: string, body: string, at: number): string {
+  const id = newId()
+  tx.insert(reviewComments).values({ id, reviewId, authorId, body, createdAt: at }).run()
+  return id
+}
+
+/**
+ * Submits a run or comparison for checking: draft → submitted, or returned → submitted again.
+ * Engineers submit their own work only; a run must have succeeded. Writes the audit row in the
+ * same transaction. Answers the review and whether it was created (201) or resubmitted (200).
+ */
+export function submitReview(
+  db: Db,
+  member: Member,
+  body: SubmitReviewBody,
+): { review: ReviewDetail; created: boolean } {
+  const { reviewId, created } = db.transaction(
+    (tx) => {
+      const subject = loadSubject(tx, member.firmId, body.subjectType, body.subjectId)
+      if (subject.createdBy !== member.userId) {
+        throw forbidden(`You can submit only your own work; this ${subject.type} was made by someone else.`)
+      }
+      if (!subject.ready)
+        throw conflict('Only a run that has succeeded can be submitted for checking.', 'run_not_finished')
+      const existing = tx
+        .select({ id: reviews.id, state: reviews.state })
+        .from(reviews)
+        .where(and(eq(reviews.subjectType, body.subjectType), eq(reviews.subjectId, body.subjectId)))
+        .get()
+      if (existing?.state === 'submitted')
+        throw conflict('This work is already waiting for a checker.', 'already_submitted')
+      if (existing?.state === 'checked') {
+        throw conflict('This work has been checked and is locked. Make a new revision instead.', 'locked')
+      }
+      const now = Date.now()
+      const id = existing?.id ?? newId()
+      if (existing) {
+        tx.update(reviews)
+          .set({
+            state: 'submitted',
+            submittedBy: member.userId,
+            submittedAt: now,
+            decidedBy: null,
+            decidedAt: null,
+          })
+          .where(eq(reviews.id, id))
+          .run()
+      } else {
+        tx.insert(reviews)
+          .values({
+            id,
+            firmId: member.firmId,
+            subjectType: body.subjectType,
+            subjectId: body.subjectId,
+            state: 'submitted',
+            submittedBy: member.userId,
+            submittedAt: now,
+            createdAt: now,
+          })
+          .run()
+      }
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: existing ? 'review.resubmitted' : 'review.submitted',
+        subjectType: body.subjectType,
+        subjectId: body.subjectId,
+        detail: {
+          reviewId: id,
+          from: existing?.state ?? 'draft',
+          to: 'submitted',
+          subjectName: subject.name,
+        },
+      })
+      return { reviewId: id, created: !existing }
+    },
+    { behavior: 'immediate' },
+  )
+  return { review: getReview(db, member.firmId, reviewId), created }
+}
+
+/**
+ * A checker's decision: submitted → checked, or submitted → returned (with a comment). Nobody
+ * decides on work they submitted, made, or ran (for a comparison: any of its runs).
+ */
+export function decideReview(
+  db: Db,
+  member: Member,
+  reviewId: string,
+  body: ReviewDecisionBody,
+): ReviewDetail {
+  db.transaction(
+    (tx) => {
+      const review = tx
+        .select({
+          state: reviews.state,
+          subjectType: reviews.subjectType,
+          subjectId: reviews.subjectId,
+          submittedBy: reviews.submittedBy,
+        })
+        .from(reviews)
+        .where(and(eq(reviews.firmId, member.firmId), eq(reviews.id, reviewId)))
+        .get()
+      if (!review) throw notFound('The review')
+      const subject = loadSubject(tx, member.firmId, review.subjectType, review.subjectId)
+      if (review.submittedBy === member.userId || subject.createdBy === member.userId) {
+        throw forbidden('You cannot check work you submitted or made yourself; another checker must decide.')
+      }
+      if (subject.ranBy.includes(member.userId)) {
+        throw forbidden('You ran part of this work yourself, so another checker must decide.')
+      }
+      if (review.state !== 'submitted') {
+        throw conflict(`This review is ${review.state}, not waiting for a decision.`, 'not_submitted')
+      }
+      const now = Date.now()
+      tx.update(reviews)
+        .set({ state: body.decision, decidedBy: member.userId, decidedAt: now })
+        .where(eq(reviews.id, reviewId))
+        .run()
+      const commentId = body.comment
+        ? insertComment(tx, reviewId, member.userId, body.comment, now)
+        : undefined
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: `review.${body.decision}`,
+        subjectType: review.subjectType,
+        subjectId: review.subjectId,
+        detail: { reviewId, from: 'submitted', to: body.decision, commentId },
+      })
+    },
+    { behavior: 'immediate' },
+  )
+  return getReview(db, member.firmId, reviewId)
+}
+
+/** Adds a comment to a review's thread. */
+export function addReviewComment(
+  db: Db,
+  member: Member,
+  reviewId: string,
+  body: ReviewCommentBody,
+): ReviewComment {
+  const at = Date.now()
+  const id = db.transaction((tx) => {
+    const review = tx
+      .select({ subjectType: reviews.subjectType, subjectId: reviews.subjectId })
+      .from(reviews)
+      .where(and(eq(reviews.firmId, member.firmId), eq(reviews.id, reviewId)))
+      .get()
+    if (!review) throw notFound('The review')
+    const commentId = insertComment(tx, reviewId, member.userId, body.body, at)
+    recordAudit(tx, {
+      firmId: member.firmId,
+      userId: member.userId,
+      action: 'review.commented',
+      subjectType: review.subjectType,
+      subjectId: review.subjectId,
+      detail: { reviewId, commentId },
+    })
+    return commentId
+  })
+  return { id, author: { id: member.userId, name: member.name }, body: body.body, createdAt: at }
+}
