@@ -23,6 +23,7 @@ import { projectsRouter } from './routes/projects.js'
 import { recordPairsRouter } from './routes/recordPairs.js'
 import { recordsRouter } from './routes/records.js'
 import { reviewsRouter } from './routes/reviews.js'
+import { runsRouter } from './routes/runs.js'
 import { targetsRouter } from './routes/targets.js'
 
 /** Builds the Express app: middleware, the API route table, the built client, JSON 404 and errors. Never listens. */
@@ -79,6 +80,7 @@ export function createApp(deps: AppDeps) {
   api.use(projectsRouter(deps))
   api.use(recordsRouter(deps))
   api.use(recordPairsRouter(deps))
+  api.use(runsRouter(deps))
   api.use(creditsRouter(deps))
   api.use(targetsRouter(deps))
   api.use(comparisonsRouter(deps))

@@ -5,6 +5,7 @@ import { migrateDb, openDb } from './db/client.js'
 import type { AppDeps } from './deps.js'
 import { startMail } from './mail/startMail.js'
 import { createPayments } from './payments/payments.js'
+import { RunQueue } from './runs/runQueue.js'
 import { seedDemoData } from './services/demoData.js'
 import { resolveSessionSecret } from './sessionSecret.js'
 
@@ -21,6 +22,9 @@ async function main() {
   const mail = await startMail(db, config, log)
   const payments = await createPayments(config.stripe, { log })
   log(`Payments: ${payments.mode} mode, through ${payments.endpoint}.`)
+  const runQueue = new RunQueue({ db, workerCount: config.workerThreads, runTimeLimitS: config.runTimeLimitS, log })
+  runQueue.start()
+  log(`Run queue: up to ${runQueue.workerCount} worker thread(s).`)
   const deps: AppDeps = {
     db,
     config,
@@ -30,6 +34,7 @@ async function main() {
     mailDispatcher: mail.mailDispatcher,
     devMailbox: mail.devMailbox,
     payments,
+    runQueue,
   }
   const app = createApp(deps)
   const server = app.listen(config.port, config.host, () => {
@@ -43,7 +48,7 @@ async function main() {
     stopping = true
     log(`${signal} received: closing.`)
     server.close(() => {
-      void Promise.all([mail.stop(), payments.close()]).finally(() => {
+      void Promise.all([mail.stop(), payments.close(), runQueue.stop(3000)]).finally(() => {
         db.$client.close()
         process.exit(0)
       })

@@ -1,0 +1,83 @@
+import { z } from 'zod'
+import { runMethodSchema } from './runs.js'
+
+/**
+ * Messages between the run queue (server/runs/runQueue.ts) and workers/spectrumWorker.ts.
+ * Both sides parse what they receive. Samples and result series travel as transferred
+ * buffers, never copied.
+ */
+
+const float64ArraySchema = z.custom<Float64Array>((v) => v instanceof Float64Array, 'expected a Float64Array')
+
+/** One record's samples (m/s², uniform Δt). A record pair adds a second `kind` beside this one. */
+export const spectrumJobSchema = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('record'),
+    dtS: z.number().positive(),
+    samples: z.instanceof(ArrayBuffer, { message: 'expected the samples as an ArrayBuffer' }),
+  }),
+])
+export type SpectrumJob = z.infer<typeof spectrumJobSchema>
+
+/** The engine-facing part of a run's settings. */
+export const workerSettingsSchema = z.object({
+  method: runMethodSchema,
+  dampingRatios: z.array(z.number().min(0).lt(0.5)).min(1),
+  periodsS: z.array(z.number().positive()).min(1),
+})
+
+export const workerRequestSchema = z.discriminatedUnion('type', [
+  z.object({ type: z.literal('run'), runId: z.string(), job: spectrumJobSchema, settings: workerSettingsSchema }),
+])
+export type WorkerRequest = z.infer<typeof workerRequestSchema>
+
+/** One damping ratio's peaks, in SI, in the order of the run's periods (the engine's SpectrumCurve). */
+export const workerCurveSchema = z.object({
+  dampingRatio: z.number(),
+  sdM: float64ArraySchema,
+  svMPerS: float64ArraySchema,
+  saMPerS2: float64ArraySchema,
+  psvMPerS: float64ArraySchema,
+  psaMPerS2: float64ArraySchema,
+  sdTimeS: float64ArraySchema,
+  saTimeS: float64ArraySchema,
+})
+
+/** The engine's MethodStatement: what produced the numbers. */
+export const methodStatementSchema = z.object({
+  method: runMethodSchema,
+  solver: z.string(),
+  newmarkGamma: z.number().nullable(),
+  newmarkBeta: z.number().nullable(),
+  recordDtS: z.number(),
+  initialConditions: z.string(),
+  subStepRule: z.string(),
+  subStepsMin: z.number(),
+  subStepsMax: z.number(),
+  freeVibrationTail: z.string(),
+  accuracyTarget: z.string(),
+  kernel: z.enum(['wasm-simd', 'js']),
+  engineVersion: z.string(),
+})
+
+/** The engine's SpectrumComputation, as the worker posts it (series as transferred buffers). */
+export const workerComputationSchema = z.object({
+  periodsS: float64ArraySchema,
+  curves: z.array(workerCurveSchema).min(1),
+  methodStatement: methodStatementSchema,
+  warnings: z.array(z.string()),
+  oscillatorSteps: z.number(),
+})
+
+export const workerReplySchema = z.discriminatedUnion('type', [
+  z.object({ type: z.literal('progress'), runId: z.string(), progress: z.number().min(0).max(1) }),
+  z.object({
+    type: z.literal('result'),
+    runId: z.string(),
+    computation: workerComputationSchema,
+    /** Wall time of the computation inside the worker. */
+    computeMs: z.number().nonnegative(),
+  }),
+  z.object({ type: z.literal('error'), runId: z.string(), message: z.string() }),
+])
+export type WorkerReply = z.infer<typeof workerReplySchema>

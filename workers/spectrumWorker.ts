@@ -1,0 +1,52 @@
+/**
+ * Worker thread of the run queue: takes one run at a time by message, computes its spectrum with
+ * the engine and posts the result with its buffers transferred. The thread stays up between
+ * runs; the queue ends it when it has been idle. No logic of its own.
+ */
+import { parentPort } from 'node:worker_threads'
+import { workerRequestSchema, type WorkerReply } from '../shared/schemas/spectrumWorker.js'
+import { computeSpectrum } from '../shared/spectra/computeSpectrum.js'
+
+/** Progress is posted in steps of this fraction, so a run sends at most about 20 updates. */
+const PROGRESS_STEP = 0.05
+
+if (!parentPort) throw new Error('spectrumWorker must run as a worker thread')
+const port = parentPort
+
+function post(reply: WorkerReply, transfer: ArrayBuffer[] = []) {
+  port.postMessage(reply, transfer)
+}
+
+port.on('message', (message: unknown) => {
+  const parsed = workerRequestSchema.safeParse(message)
+  if (!parsed.success) {
+    const runId = (message as { runId?: unknown } | null)?.runId
+    post({ type: 'error', runId: typeof runId === 'string' ? runId : '', message: 'The run message was not valid.' })
+    return
+  }
+  const { runId, job, settings } = parsed.data
+  const startedAt = performance.now()
+  let posted = 0
+  try {
+    const computation = computeSpectrum(
+      { accelMPerS2: new Float64Array(job.samples), dtS: job.dtS },
+      {
+        ...settings,
+        onProgress: (fraction) => {
+          if (fraction >= 1 || fraction - posted < PROGRESS_STEP) return
+          posted = Math.floor(fraction / PROGRESS_STEP) * PROGRESS_STEP
+          post({ type: 'progress', runId, progress: posted })
+        },
+      },
+    )
+    const buffers = new Set<ArrayBuffer>([computation.periodsS.buffer as ArrayBuffer])
+    for (const curve of computation.curves) {
+      for (const series of [curve.sdM, curve.svMPerS, curve.saMPerS2, curve.psvMPerS, curve.psaMPerS2, curve.sdTimeS, curve.saTimeS]) {
+        buffers.add(series.buffer as ArrayBuffer)
+      }
+    }
+    post({ type: 'result', runId, computation, computeMs: performance.now() - startedAt }, [...buffers])
+  } catch (err) {
+    post({ type: 'error', runId, message: err instanceof Error ? err.message : String(err) })
+  }
+})
