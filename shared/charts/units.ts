@@ -48,3 +48,16 @@ export function checkUnit(kind: MotionKind, unit: DisplayUnit): void {
 export function fromSI(valueSI: number, unit: DisplayUnit): number {
   return valueSI / displayUnits[unit].siPerUnit
 }
+
+/**
+ * A number for tables and readouts: `digits` significant figures in plain
+ * decimal notation, trailing zeros kept so a column shows its precision.
+ */
+export function formatSignificant(value: number, digits = 4): string {
+  if (!Number.isFinite(value)) return '—'
+  const rounded = Number(value.toPrecision(digits))
+  if (rounded === 0) return '0'
+  const magnitude = Math.floor(Math.log10(Math.abs(rounded)))
+  const decimals = Math.max(0, digits - 1 - magnitude)
+  return rounded.toFixed(Math.min(decimals, 20))
+}

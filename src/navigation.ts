@@ -1,0 +1,33 @@
+import type { Role } from '../shared/schemas/accounts'
+
+/**
+ * One entry of the main navigation. Add a page to the navigation with one
+ * line here (after adding its route in src/router/index.ts with the same
+ * `roles` in its `meta`).
+ *
+ * Planned entries and who may use them (the access table of the accounts issue):
+ * Records `/records`, Runs `/runs`, Comparisons `/comparisons`, Review
+ * `/reviews` and Credits `/credits` for engineer, checker and admin; Members
+ * `/members` for admin only.
+ */
+export interface NavEntry {
+  /** The path the entry opens. */
+  to: string
+  label: string
+  /** Who sees the entry; every signed-in member when omitted. */
+  roles?: Role[]
+  /** SVG path data on a 20 × 20 grid, stroked in the text colour. */
+  iconPath?: string
+}
+
+export const navigation: NavEntry[] = [
+  { to: '/', label: 'Overview', iconPath: 'M3 17V3M3 17h14M5 14c3-1 4-9 6-9s3 6 6 7' },
+  { to: '/records', label: 'Records', iconPath: 'M2 10h3l2-5 2 10 2-8 2 6 1.5-3H18' },
+  { to: '/credits', label: 'Credits', iconPath: 'M3 6h14v9H3zM3 9h14M6 12.5h3' },
+  { to: '/members', label: 'Members', roles: ['admin'], iconPath: 'M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6M2 17c0-3 2.2-5 5-5s5 2 5 5M13 4.5a2.5 2.5 0 0 1 0 5M15 12c1.8.6 3 2.4 3 5' },
+]
+
+/** The entries a member holding `roles` may use, in navigation order. */
+export function navigationFor(roles: readonly Role[]): NavEntry[] {
+  return navigation.filter((e) => !e.roles || e.roles.some((r) => roles.includes(r)))
+}

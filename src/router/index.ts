@@ -1,0 +1,135 @@
+import { createRouter, createWebHistory, type RouteLocationNormalized } from 'vue-router'
+import type { Role } from '../../shared/schemas/accounts'
+import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useSessionStore } from '@/stores/session'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Open to signed-out visitors (sign-in, invitations, password resets). */
+    public?: boolean
+    /** Shown without the app shell (the signed-out pages). */
+    bare?: boolean
+    /** Only members holding one of these roles may open the page. */
+    roles?: Role[]
+    /** The document title, before " · Ordinate". */
+    title?: string
+  }
+}
+
+const router = createRouter({
+  history: createWebHistory(import.meta.env.BASE_URL),
+  routes: [
+    {
+      path: '/sign-in',
+      name: 'sign-in',
+      component: () => import('@/views/SignInView.vue'),
+      meta: { public: true, bare: true, title: 'Sign in' },
+    },
+    {
+      path: '/invitations/:token',
+      name: 'invitation',
+      component: () => import('@/views/InvitationView.vue'),
+      props: true,
+      meta: { public: true, bare: true, title: 'Accept an invitation' },
+    },
+    {
+      path: '/reset-password/:token?',
+      name: 'reset-password',
+      component: () => import('@/views/ResetPasswordView.vue'),
+      props: true,
+      meta: { public: true, bare: true, title: 'Reset your password' },
+    },
+    {
+      path: '/',
+      name: 'overview',
+      component: () => import('@/views/OverviewView.vue'),
+      meta: { title: 'Overview' },
+    },
+    {
+      path: '/records',
+      name: 'records',
+      component: () => import('@/views/RecordsView.vue'),
+      meta: { title: 'Records' },
+    },
+    {
+      path: '/records/:id',
+      name: 'record',
+      component: () => import('@/views/RecordView.vue'),
+      props: true,
+      meta: { title: 'Record' },
+    },
+    {
+      path: '/credits',
+      name: 'credits',
+      component: () => import('@/views/CreditsView.vue'),
+      meta: { title: 'Credits' },
+    },
+    {
+      path: '/runs/:id/sheet',
+      name: 'run-sheet',
+      component: () => import('@/views/SheetView.vue'),
+      props: (route) => ({ subject: 'run', id: String(route.params.id) }),
+      meta: { title: 'Calc sheet' },
+    },
+    {
+      path: '/comparisons/:id/sheet',
+      name: 'comparison-sheet',
+      component: () => import('@/views/SheetView.vue'),
+      props: (route) => ({ subject: 'comparison', id: String(route.params.id) }),
+      meta: { title: 'Calc sheet' },
+    },
+    {
+      path: '/members',
+      name: 'members',
+      component: () => import('@/views/MembersView.vue'),
+      meta: { roles: ['admin'], title: 'Members' },
+    },
+    {
+      path: '/dev/mailbox',
+      name: 'dev-mailbox',
+      component: () => import('@/views/DevMailboxView.vue'),
+      meta: { public: true, bare: true, title: 'Development mailbox' },
+    },
+    {
+      path: '/:pathMatch(.*)*',
+      name: 'not-found',
+      component: () => import('@/views/NotFoundView.vue'),
+      meta: { public: true, title: 'Page not found' },
+    },
+  ],
+  scrollBehavior: (_to, _from, saved) => saved ?? { top: 0 },
+})
+
+/**
+ * Where to go after signing in: only a path on this site, so a crafted link
+ * cannot send a member elsewhere.
+ */
+export function safeNext(next: unknown): string {
+  return typeof next === 'string' && next.startsWith('/') && !next.startsWith('//') ? next : '/'
+}
+
+function rolesNeeded(to: RouteLocationNormalized): Role[] | undefined {
+  return to.matched.find((record) => record.meta.roles)?.meta.roles
+}
+
+router.beforeEach(async (to) => {
+  const session = useSessionStore()
+  if (!session.loaded) await session.load()
+  if (to.name === 'sign-in' && session.signedIn) return safeNext(to.query.next)
+  if (to.meta.public) return true
+  if (!session.signedIn) return { name: 'sign-in', query: { next: to.fullPath } }
+  const roles = rolesNeeded(to)
+  if (roles && !session.hasRole(...roles)) {
+    useErrorReporter().report(
+      new Error(`That page needs the ${roles.join(' or ')} role. Ask your firm's admin if you need it.`),
+    )
+    return to.name === 'overview' ? false : { name: 'overview' }
+  }
+  return true
+})
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Ordinate` : 'Ordinate'
+})
+
+export default router

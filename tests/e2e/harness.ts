@@ -1,0 +1,169 @@
+/**
+ * Browser-test harness: starts the built server (dist/ + dist-server/, made by
+ * `npm run build`; this harness builds nothing) on a free loopback port with a
+ * fresh database and the demo data, and drives Debian's chromium through
+ * playwright-core as STACK.md describes.
+ */
+import { type ChildProcess, spawn } from 'node:child_process'
+import { existsSync, mkdirSync } from 'node:fs'
+import { mkdtemp, rm } from 'node:fs/promises'
+import { tmpdir } from 'node:os'
+import path from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { type BrowserContext, type Page, chromium } from 'playwright-core'
+
+export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
+export const artifactsDir = path.join(repoRoot, 'test-artifacts')
+const serverEntry = path.join(repoRoot, 'dist-server/server/index.js')
+const clientEntry = path.join(repoRoot, 'dist/index.html')
+
+/** The demo members loaded into a new database (README, "Demo accounts"). */
+export const DEMO_PASSWORD = 'ordinate-demo'
+export const demoMembers = {
+  engineer: { email: 'engineer@ordinate.test', roles: ['engineer'] },
+  checker: { email: 'checker@ordinate.test', roles: ['checker'] },
+  admin: { email: 'admin@ordinate.test', roles: ['admin'] },
+} as const
+
+export interface RunningServer {
+  /** e.g. http://127.0.0.1:41234 */
+  url: string
+  /** Everything the server printed so far (for failure messages). */
+  output: () => string
+  stop: () => Promise<void>
+}
+
+const LISTENING = /Ordinate listening on (http:\/\/\S+)/
+
+function waitForExit(child: ChildProcess, ms: number): Promise<boolean> {
+  if (child.exitCode !== null || child.signalCode !== null) return Promise.resolve(true)
+  return new Promise((resolve) => {
+    const timer = setTimeout(() => resolve(false), ms)
+    child.once('exit', () => {
+      clearTimeout(timer)
+      resolve(true)
+    })
+  })
+}
+
+function killGroup(child: ChildProcess, signal: NodeJS.Signals) {
+  if (child.pid === undefined) return
+  try {
+    process.kill(-child.pid, signal)
+  } catch {
+    // the group has already gone
+  }
+}
+
+/**
+ * Starts `node dist-server/server/index.js` in its own process group with
+ * PORT=0 and waits for its "Ordinate listening on …" line.
+ */
+export async function startServer(env: Record<string, string> = {}): Promise<RunningServer> {
+  for (const file of [serverEntry, clientEntry]) {
+    if (!existsSync(file)) throw new Error(`${path.relative(repoRoot, file)} is missing: run \`npm run build\` first`)
+  }
+  const dataDir = await mkdtemp(path.join(tmpdir(), 'ordinate-e2e-'))
+  const child = spawn(process.execPath, [serverEntry], {
+    cwd: repoRoot,
+    detached: true,
+    stdio: ['ignore', 'pipe', 'pipe'],
+    env: {
+      PATH: process.env.PATH ?? '/usr/bin:/bin',
+      NODE_ENV: 'test',
+      PORT: '0',
+      HOST: '127.0.0.1',
+      DATA_DIR: dataDir,
+      DATABASE_PATH: path.join(dataDir, 'ordinate.sqlite'),
+      DEMO_DATA: '1',
+      ...env,
+    },
+  })
+  let output = ''
+  const url = await new Promise<string>((resolve, reject) => {
+    const timer = setTimeout(() => fail(new Error('the server did not report listening within 30 s')), 30_000)
+    function fail(err: Error) {
+      clearTimeout(timer)
+      killGroup(child, 'SIGKILL')
+      reject(new Error(`${err.message}\n--- server output ---\n${output}`))
+    }
+    const onData = (chunk: Buffer) => {
+      output += chunk.toString()
+      const match = LISTENING.exec(output)
+      if (match?.[1]) {
+        clearTimeout(timer)
+        resolve(match[1])
+      }
+    }
+    child.stdout?.on('data', onData)
+    child.stderr?.on('data', (chunk: Buffer) => (output += chunk.toString()))
+    child.once('error', fail)
+    child.once('exit', (code, signal) => fail(new Error(`the server exited early (code ${code}, signal ${signal})`)))
+  })
+  child.removeAllListeners('exit')
+  return {
+    url,
+    output: () => output,
+    async stop() {
+      killGroup(child, 'SIGTERM')
+      if (!(await waitForExit(child, 5_000))) {
+        killGroup(child, 'SIGKILL')
+        await waitForExit(child, 5_000)
+      }
+      await rm(dataDir, { recursive: true, force: true })
+    },
+  }
+}
+
+export interface Browser {
+  context: BrowserContext
+  newPage: () => Promise<Page>
+  close: () => Promise<void>
+}
+
+/**
+ * Debian's chromium through playwright-core (STACK.md): the system binary,
+ * these flags, and a fresh user-data directory given to
+ * launchPersistentContext (never to launch()).
+ */
+export async function launchBrowser(): Promise<Browser> {
+  const userDataDir = await mkdtemp(path.join(tmpdir(), 'ordinate-chromium-'))
+  const context = await chromium.launchPersistentContext(userDataDir, {
+    executablePath: '/usr/bin/chromium',
+    headless: true,
+    args: [
+      '--headless',
+      '--no-sandbox',
+      '--disable-gpu',
+      '--disable-quic',
+      '--no-first-run',
+      '--disable-background-networking',
+      '--disable-component-update',
+      '--disable-sync',
+    ],
+    viewport: { width: 1280, height: 860 },
+  })
+  return {
+    context,
+    newPage: () => context.newPage(),
+    async close() {
+      await context.close()
+      await rm(userDataDir, { recursive: true, force: true })
+    },
+  }
+}
+
+/** A path under test-artifacts/ (gitignored), creating the folder. */
+export function artifactPath(name: string): string {
+  mkdirSync(artifactsDir, { recursive: true })
+  return path.join(artifactsDir, name)
+}
+
+/** Signs in through the form, as a person would, and waits for the app shell. */
+export async function signInThroughForm(page: Page, baseUrl: string, email: string, password = DEMO_PASSWORD) {
+  await page.goto(`${baseUrl}/sign-in`)
+  await page.getByLabel('E-mail').fill(email)
+  await page.getByLabel('Password').fill(password)
+  await page.getByRole('button', { name: 'Sign in' }).click()
+  await page.getByRole('navigation', { name: 'Main' }).waitFor()
+}
