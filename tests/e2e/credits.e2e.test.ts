@@ -1,0 +1,86 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { creditPacks } from '../../shared/credits/creditPacks.js'
+import {
+  type Browser,
+  type RunningServer,
+  artifactPath,
+  demoMembers,
+  launchBrowser,
+  signInThroughForm,
+  startServer,
+} from './harness.js'
+
+let server: RunningServer
+let browser: Browser
+
+beforeAll(async () => {
+  // No STRIPE_* settings: the server starts stripe-stateful-mock in-process, as on a fresh machine.
+  server = await startServer()
+  browser = await launchBrowser()
+})
+
+afterAll(async () => {
+  await browser?.close()
+  await server?.stop()
+})
+
+const small = creditPacks[0]
+
+describe('the credits page', () => {
+  it('lets the admin buy a pack with a test card, and the balance goes up by its credits', async () => {
+    expect(server.output()).toMatch(
+      /Payments: test mode, through in-process Stripe mock at http:\/\/127\.0\.0\.1:\d+/,
+    )
+    const page = await browser.newPage()
+    await signInThroughForm(page, server.url, demoMembers.admin.email)
+    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Credits' }).click()
+    await page.waitForURL((u) => u.pathname === '/credits')
+
+    await expect(page.locator('[data-test="test-mode-banner"]').innerText()).resolves.toMatch(/TEST MODE/)
+    const balance = page.locator('[data-test="credit-balance"]')
+    await expect(balance.innerText()).resolves.toBe('25')
+
+    // naive-ui hides the native radio inputs; a person clicks the visible choice.
+    await page.locator('[data-test="pack-choice"]', { hasText: small.name }).click()
+    await page.locator('[data-test="test-card"]', { hasText: 'test card: succeeds' }).click()
+    await page.locator('[data-test="buy-credits"]').click()
+    await page
+      .locator('[data-test="purchase-outcome"]')
+      .getByText(/Bought 10 run credits/)
+      .waitFor()
+    await page.waitForFunction(
+      () => document.querySelector('[data-test="credit-balance"]')?.textContent === '35',
+    )
+    expect(await page.locator('[data-test="ledger-table"]').innerText()).toContain('Credits bought')
+    expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/paid/)
+    await page.screenshot({ path: artifactPath('credits-admin-bought.png'), fullPage: true })
+
+    await page.locator('[data-test="test-card"]', { hasText: 'declined (insufficient funds)' }).click()
+    await page.locator('[data-test="buy-credits"]').click()
+    await page
+      .locator('[data-test="purchase-outcome"]')
+      .getByText(/insufficient funds/)
+      .waitFor()
+    expect(await balance.innerText()).toBe('35')
+    expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/declined/)
+    await page.screenshot({ path: artifactPath('credits-admin-declined.png'), fullPage: true })
+    await page.getByRole('button', { name: 'Sign out' }).click()
+    await page.waitForURL(/\/sign-in/)
+    await page.close()
+  })
+
+  it('shows an engineer the balance and who can buy, with no card form', async () => {
+    const page = await browser.newPage()
+    await signInThroughForm(page, server.url, demoMembers.engineer.email)
+    await page.goto(`${server.url}/credits`)
+    await page.locator('[data-test="credit-balance"]').waitFor()
+    await page.locator('[data-test="ledger-table"]').waitFor()
+    expect(await page.getByText('Only your firm’s admin can buy credits.').isVisible()).toBe(true)
+    expect(await page.locator('[data-test="buy-credits"]').count()).toBe(0)
+    expect(await page.locator('[data-test="purchase-history"]').count()).toBe(0)
+    await page.screenshot({ path: artifactPath('credits-engineer.png'), fullPage: true })
+    await page.getByRole('button', { name: 'Sign out' }).click()
+    await page.waitForURL(/\/sign-in/)
+    await page.close()
+  })
+})
