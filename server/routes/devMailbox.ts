@@ -4,7 +4,7 @@ import { notFound } from '../httpError.js'
 import type { SmtpSink } from '../mail/smtpSink.js'
 
 /** True for 127.0.0.0/8, ::1 and IPv4-mapped loopback: the socket's own address, never a forwarded one. */
-function isLoopback(address: string | undefined): boolean {
+export function isLoopback(address: string | undefined): boolean {
   if (!address || !isIP(address)) return false
   const v4 = address.startsWith('::ffff:') ? address.slice(7) : address
   return v4.startsWith('127.') || address === '::1'

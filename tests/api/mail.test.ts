@@ -4,6 +4,7 @@ import { afterEach, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { mailOutbox } from '../../server/db/schema.js'
 import { SmtpSink } from '../../server/mail/smtpSink.js'
+import { isLoopback } from '../../server/routes/devMailbox.js'
 import { escapeHtml, invitationMail, passwordResetMail } from '../../server/mail/templates.js'
 import { MailDispatcher, createMailTransport, defaultBackoffMs, enqueueMail } from '../../server/services/mail.js'
 import { sinkMessageListSchema } from '../../shared/schemas/devMailbox.js'
@@ -165,6 +166,18 @@ describe('GET /api/dev/mailbox', () => {
   it('is not there without a sink', async () => {
     const ctx = await context()
     expect((await request(ctx.app).get('/api/dev/mailbox')).status).toBe(404)
+  })
+
+  it('answers loopback clients only, judged by the socket address', () => {
+    expect(['127.0.0.1', '127.8.9.10', '::1', '::ffff:127.0.0.1'].map(isLoopback)).toEqual([true, true, true, true])
+    expect(['10.0.0.2', '192.168.1.5', '::ffff:10.1.2.3', 'fe80::1', '', undefined].map(isLoopback)).toEqual([
+      false,
+      false,
+      false,
+      false,
+      false,
+      false,
+    ])
   })
 
   it('is not there in production, even with a sink', async () => {
