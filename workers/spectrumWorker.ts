@@ -21,7 +21,11 @@ port.on('message', (message: unknown) => {
   const parsed = workerRequestSchema.safeParse(message)
   if (!parsed.success) {
     const runId = (message as { runId?: unknown } | null)?.runId
-    post({ type: 'error', runId: typeof runId === 'string' ? runId : '', message: 'The run message was not valid.' })
+    post({
+      type: 'error',
+      runId: typeof runId === 'string' ? runId : '',
+      message: 'The run message was not valid.',
+    })
     return
   }
   const { runId, job, settings } = parsed.data
@@ -41,7 +45,15 @@ port.on('message', (message: unknown) => {
     )
     const buffers = new Set<ArrayBuffer>([computation.periodsS.buffer as ArrayBuffer])
     for (const curve of computation.curves) {
-      for (const series of [curve.sdM, curve.svMPerS, curve.saMPerS2, curve.psvMPerS, curve.psaMPerS2, curve.sdTimeS, curve.saTimeS]) {
+      for (const series of [
+        curve.sdM,
+        curve.svMPerS,
+        curve.saMPerS2,
+        curve.psvMPerS,
+        curve.psaMPerS2,
+        curve.sdTimeS,
+        curve.saTimeS,
+      ]) {
         buffers.add(series.buffer as ArrayBuffer)
       }
     }

@@ -1,6 +1,11 @@
 import { Router, type Response } from 'express'
 import { idParamsSchema } from '../../shared/schemas/common.js'
-import { createRunBodySchema, isFinished, runListQuerySchema, type RunStatusEvent } from '../../shared/schemas/runs.js'
+import {
+  createRunBodySchema,
+  isFinished,
+  runListQuerySchema,
+  type RunStatusEvent,
+} from '../../shared/schemas/runs.js'
 import type { AppDeps } from '../deps.js'
 import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
 import type { RunEvent } from '../runs/runQueue.js'

@@ -3,7 +3,11 @@ import { availableParallelism } from 'node:os'
 import { fileURLToPath } from 'node:url'
 import type { Worker } from 'node:worker_threads'
 import Pool from 'worker-threads-pool'
-import { workerReplySchema, type WorkerReply, type WorkerRequest } from '../../shared/schemas/spectrumWorker.js'
+import {
+  workerReplySchema,
+  type WorkerReply,
+  type WorkerRequest,
+} from '../../shared/schemas/spectrumWorker.js'
 import type { RunStatus } from '../../shared/schemas/runs.js'
 import type { Db } from '../db/client.js'
 import { isCompiled } from '../projectRoot.js'
@@ -100,7 +104,8 @@ export class RunQueue {
   /** Queues again the runs a previous process left running, then starts work. */
   start(): void {
     const { requeued, failed } = requeueInterruptedRuns(this.db)
-    if (requeued || failed) this.log(`Run queue: ${requeued} interrupted run(s) queued again, ${failed} failed.`)
+    if (requeued || failed)
+      this.log(`Run queue: ${requeued} interrupted run(s) queued again, ${failed} failed.`)
     this.kick()
   }
 
@@ -162,6 +167,11 @@ export class RunQueue {
     return () => this.events.off(name, listener)
   }
 
+  /** How many listeners follow a run (event streams unsubscribe when their client goes away). */
+  subscriberCount(runId: string): number {
+    return this.events.listenerCount(`run:${runId}`)
+  }
+
   /** Runs being computed now (for tests and diagnostics). */
   activeRunIds(): string[] {
     return [...this.slots].flatMap((s) => (s.run ? [s.run.claimed.id] : []))
@@ -203,7 +213,8 @@ export class RunQueue {
     for (const slot of this.slots) {
       if (slot.run) {
         clearTimeout(slot.run.timer)
-        if (requeueRun(this.db, slot.run.claimed)) this.log(`Run ${slot.run.claimed.id} queued again at shutdown.`)
+        if (requeueRun(this.db, slot.run.claimed))
+          this.log(`Run ${slot.run.claimed.id} queued again at shutdown.`)
         slot.run = undefined
       }
       slot.closing = true
@@ -300,9 +311,12 @@ export class RunQueue {
           runMs: finishedAt - claimed.startedAt,
         },
       })
-      if (ok) this.publish({ type: 'status', runId: claimed.id, status: 'succeeded', progress: 1, error: null })
+      if (ok)
+        this.publish({ type: 'status', runId: claimed.id, status: 'succeeded', progress: 1, error: null })
     } catch (err) {
-      this.log(`Run ${claimed.id}: storing the result failed: ${err instanceof Error ? err.stack : String(err)}`)
+      this.log(
+        `Run ${claimed.id}: storing the result failed: ${err instanceof Error ? err.stack : String(err)}`,
+      )
       this.finishFailed(claimed, 'The result could not be stored.')
     }
   }
@@ -329,7 +343,10 @@ export class RunQueue {
 
   private onTimeLimit(slot: Slot): void {
     this.close(slot)
-    this.endActive(slot, `The run took longer than the limit of ${this.timeLimitMs / 1000} s and was stopped.`)
+    this.endActive(
+      slot,
+      `The run took longer than the limit of ${this.timeLimitMs / 1000} s and was stopped.`,
+    )
   }
 
   private onExit(slot: Slot, code: number): void {

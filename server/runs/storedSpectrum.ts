@@ -13,7 +13,13 @@ type WorkerResult = Extract<WorkerReply, { type: 'result' }>
 export function storedSpectrum(db: Db, run: ClaimedRun, reply: WorkerResult): Record<string, unknown> {
   const record = run.recordId
     ? db
-        .select({ name: records.name, sha256: records.sha256, sourceFileName: records.sourceFileName, points: records.points, dtS: records.dtS })
+        .select({
+          name: records.name,
+          sha256: records.sha256,
+          sourceFileName: records.sourceFileName,
+          points: records.points,
+          dtS: records.dtS,
+        })
         .from(records)
         .where(and(eq(records.firmId, run.firmId), eq(records.id, run.recordId)))
         .get()

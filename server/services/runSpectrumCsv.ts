@@ -67,7 +67,12 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
   const spectrum = csvSpectrumSchema.parse(result)
   const record = run.recordId
     ? db
-        .select({ name: records.name, sourceFileName: records.sourceFileName, points: records.points, synthetic: records.synthetic })
+        .select({
+          name: records.name,
+          sourceFileName: records.sourceFileName,
+          points: records.points,
+          synthetic: records.synthetic,
+        })
         .from(records)
         .where(and(eq(records.firmId, firmId), eq(records.id, run.recordId)))
         .get()
@@ -79,15 +84,23 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
     comment(
       `Record: ${run.subjectName}${record ? ` (file ${record.sourceFileName}, ${record.points} points${record.synthetic ? ', synthetic' : ''})` : ''}; SHA-256 ${run.recordSha256}`,
     ),
-    comment(`Computed: ${run.finishedAt ? new Date(run.finishedAt).toISOString() : 'unknown'} by ${m.engineVersion}`),
+    comment(
+      `Computed: ${run.finishedAt ? new Date(run.finishedAt).toISOString() : 'unknown'} by ${m.engineVersion}`,
+    ),
     comment(`Solver: ${m.solver}`),
     comment(`Time step of the record: Δt = ${num(m.recordDtS)} s; sub-steps per oscillator: ${subSteps}`),
     comment(`Sub-step rule: ${m.subStepRule}`),
     comment(`Initial conditions: ${m.initialConditions} Free-vibration tail: ${m.freeVibrationTail}`),
     comment(`Accuracy: ${m.accuracyTarget}`),
-    comment(`Damping ratios: ${spectrum.curves.map((c) => `${num(c.dampingRatio)} (${percent(c.dampingRatio)})`).join(', ')}`),
-    comment(`Periods: ${spectrum.periodsS.length} (${run.settings.periodChoice === 'default' ? 'default grid, 100 per decade from 0.01 to 10 s' : run.settings.periodChoice === 'grid' ? 'log-spaced grid' : 'as listed'})`),
-    comment(`Units: SI (m, m/s, m/s²); psa_g uses g = ${STANDARD_GRAVITY_M_PER_S2} m/s². SV is relative, SA absolute; PSV = ωSD, PSA = ω²SD.`),
+    comment(
+      `Damping ratios: ${spectrum.curves.map((c) => `${num(c.dampingRatio)} (${percent(c.dampingRatio)})`).join(', ')}`,
+    ),
+    comment(
+      `Periods: ${spectrum.periodsS.length} (${run.settings.periodChoice === 'default' ? 'default grid, 100 per decade from 0.01 to 10 s' : run.settings.periodChoice === 'grid' ? 'log-spaced grid' : 'as listed'})`,
+    ),
+    comment(
+      `Units: SI (m, m/s, m/s²); psa_g uses g = ${STANDARD_GRAVITY_M_PER_S2} m/s². SV is relative, SA absolute; PSV = ωSD, PSA = ω²SD.`,
+    ),
     ...spectrum.warnings.map((w) => comment(`Warning: ${w}`)),
     comment(`Caution: ${CSV_CAUTION}`),
     CSV_COLUMNS.join(','),

@@ -19,10 +19,16 @@ import { reserveRunCredit, returnRunCredit } from './credits.js'
 /** Turns the request's settings into the settings the run is computed with (periods resolved). */
 export function resolveRunSettings(input: Omit<CreateRunBody, 'recordId'>): RunSettings {
   const base = { method: input.method, dampingRatios: [...input.dampingRatios] }
-  if (input.periodsS) return { ...base, periodsS: [...input.periodsS], periodChoice: 'list', periodGrid: null }
+  if (input.periodsS)
+    return { ...base, periodsS: [...input.periodsS], periodChoice: 'list', periodGrid: null }
   if (input.periodGrid) {
     const { minS, maxS, count } = input.periodGrid
-    return { ...base, periodsS: Array.from(logPeriodGrid(minS, maxS, count)), periodChoice: 'grid', periodGrid: { minS, maxS, count } }
+    return {
+      ...base,
+      periodsS: Array.from(logPeriodGrid(minS, maxS, count)),
+      periodChoice: 'grid',
+      periodGrid: { minS, maxS, count },
+    }
   }
   return { ...base, periodsS: Array.from(defaultPeriodsS()), periodChoice: 'default', periodGrid: null }
 }
@@ -138,7 +144,11 @@ export function createRun(db: Db, member: Member, body: CreateRunBody): Run {
 }
 
 /** The stored spectrum of a succeeded run, with the run's settings under `settings`. */
-export function getRunSpectrum(db: Db, firmId: string, runId: string): { run: Run; result: Record<string, unknown> } {
+export function getRunSpectrum(
+  db: Db,
+  firmId: string,
+  runId: string,
+): { run: Run; result: Record<string, unknown> } {
   const run = getRun(db, firmId, runId)
   if (run.status !== 'succeeded') {
     throw conflict(
@@ -309,10 +319,24 @@ export function completeRun(db: Db, run: ClaimedRun, outcome: RunOutcome): boole
   )
 }
 
-function failInTx(tx: Pick<Db, 'select' | 'insert' | 'update' | 'delete'>, runId: string, firmId: string, message: string) {
-  tx.update(runs).set({ status: 'failed', error: message, creditsCharged: 0, finishedAt: Date.now() }).where(eq(runs.id, runId)).run()
+function failInTx(
+  tx: Pick<Db, 'select' | 'insert' | 'update' | 'delete'>,
+  runId: string,
+  firmId: string,
+  message: string,
+) {
+  tx.update(runs)
+    .set({ status: 'failed', error: message, creditsCharged: 0, finishedAt: Date.now() })
+    .where(eq(runs.id, runId))
+    .run()
   returnRunCredit(tx, firmId, runId, message)
-  recordAudit(tx, { firmId, action: 'run.failed', subjectType: 'run', subjectId: runId, detail: { error: message } })
+  recordAudit(tx, {
+    firmId,
+    action: 'run.failed',
+    subjectType: 'run',
+    subjectId: runId,
+    detail: { error: message },
+  })
 }
 
 /**

@@ -27,7 +27,12 @@ export const workerSettingsSchema = z.object({
 })
 
 export const workerRequestSchema = z.discriminatedUnion('type', [
-  z.object({ type: z.literal('run'), runId: z.string(), job: spectrumJobSchema, settings: workerSettingsSchema }),
+  z.object({
+    type: z.literal('run'),
+    runId: z.string(),
+    job: spectrumJobSchema,
+    settings: workerSettingsSchema,
+  }),
 ])
 export type WorkerRequest = z.infer<typeof workerRequestSchema>
 

@@ -1,71 +1,763 @@
-import { and, count, eq } from 'drizzle-orm'
+import type { AddressInfo } from 'node:net'
+import { and, asc, count, eq } from 'drizzle-orm'
 import type request from 'supertest'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { creditLedger, runs, spectra } from '../../server/db/schema.js'
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
+import { creditLedger, memberships, runs, spectra, users } from '../../server/db/schema.js'
+import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
+import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
-import { insertRecord, setCredits, type InsertedRecord } from '../support/runFixtures.js'
+import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
+import { DEFAULT_PERIOD_GRID, logPeriodGrid } from '../../shared/spectra/periods.js'
+import { insertRecord, setCredits, syntheticMotion, type InsertedRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
 let queue: RunQueue
 let engineer: request.Agent
+let checker: request.Agent
+let admin: request.Agent
+let adminEngineer: request.Agent
+let outsider: request.Agent
 let record: InsertedRecord
 let firmId: string
+let projectId: string
 
 /** A small job: 12 periods, 2 damping ratios. */
 const SMALL = { dampingRatios: [0.05, 0.1], periodsS: [0.05, 0.1, 0.2, 0.3, 0.5, 0.7, 1, 1.5, 2, 3, 4, 5] }
 
-/** Resolves with the run's final status, whether it ended before or after the call. */
-function finished(runId: string): Promise<{ status: string; error: string | null }> {
+const isEnd = (status: string) => status === 'succeeded' || status === 'failed'
+
+/** Resolves with the run's final status, whether it ends before or after the call. */
+function finished(
+  q: RunQueue,
+  db: TestContext['db'],
+  runId: string,
+): Promise<{ status: string; error: string | null }> {
   return new Promise((resolve) => {
-    const off = queue.subscribe(runId, (event: RunEvent) => {
-      if (event.type === 'status' && (event.status === 'succeeded' || event.status === 'failed')) {
+    const off = q.subscribe(runId, (event: RunEvent) => {
+      if (event.type === 'status' && isEnd(event.status)) {
         off()
         resolve(event)
       }
     })
-    const row = ctx.db.select({ status: runs.status, error: runs.error }).from(runs).where(eq(runs.id, runId)).get()
-    if (row && (row.status === 'succeeded' || row.status === 'failed')) {
+    const row = db
+      .select({ status: runs.status, error: runs.error })
+      .from(runs)
+      .where(eq(runs.id, runId))
+      .get()
+    if (row && isEnd(row.status)) {
       off()
       resolve(row)
     }
   })
 }
 
+/** Resolves at the run's first progress event. */
+function firstProgress(q: RunQueue, runId: string): Promise<void> {
+  return new Promise((resolve) => {
+    const off = q.subscribe(runId, (event) => {
+      if (event.type === 'progress') {
+        off()
+        resolve()
+      }
+    })
+  })
+}
+
+const runCount = (db: TestContext['db']) => db.select({ n: count() }).from(runs).get()!.n
+const ledgerRows = (db: TestContext['db'], runId: string) =>
+  db
+    .select({ kind: creditLedger.kind, delta: creditLedger.delta })
+    .from(creditLedger)
+    .where(eq(creditLedger.runId, runId))
+    .all()
+
+/** Parses a server-sent event stream into its events. */
+function parseEvents(text: string): { event: string; data: Record<string, unknown> }[] {
+  return text
+    .split('\n\n')
+    .filter((block) => block.includes('event:'))
+    .map((block) => {
+      const lines = block.split('\n')
+      const event = lines.find((l) => l.startsWith('event: '))!.slice(7)
+      const data = JSON.parse(lines.find((l) => l.startsWith('data: '))!.slice(6)) as Record<string, unknown>
+      return { event, data }
+    })
+}
+
+async function addMember(email: string, roles: string[]): Promise<void> {
+  const userId = newId()
+  ctx.db
+    .insert(users)
+    .values({
+      id: userId,
+      email,
+      name: 'Aud Linnea Sorvik',
+      passwordHash: await hashPassword('ordinate-demo', 4),
+    })
+    .run()
+  ctx.db.insert(memberships).values({ id: newId(), firmId, userId, roles }).run()
+}
+
 beforeAll(async () => {
   ctx = await createTestContext((deps) => {
-    queue = new RunQueue({ db: deps.db, workerCount: 2, runTimeLimitS: 60, idleMs: 2000 })
+    queue = new RunQueue({ db: deps.db, workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
     deps.runQueue = queue
   })
   queue.start()
   firmId = ctx.seed.firmIds[0]!
-  record = insertRecord(ctx.db, { firmId, projectId: ctx.seed.projectIds[0]!, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! })
-  setCredits(ctx.db, firmId, 200)
-  engineer = await ctx.signIn('engineer@ordinate.test')
+  projectId = ctx.seed.projectIds[0]!
+  record = insertRecord(ctx.db, {
+    firmId,
+    projectId,
+    uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
+  })
+  setCredits(ctx.db, firmId, 500)
+  await addMember('admin-engineer@ordinate.test', ['admin', 'engineer'])
+  ;[engineer, checker, admin, adminEngineer, outsider] = await Promise.all([
+    ctx.signIn('engineer@ordinate.test'),
+    ctx.signIn('checker@ordinate.test'),
+    ctx.signIn('admin@ordinate.test'),
+    ctx.signIn('admin-engineer@ordinate.test'),
+    ctx.signIn('outsider@ordinate.test'),
+  ])
 })
 afterAll(async () => {
   await queue.stop(0)
   ctx.close()
 })
 
+/** Replaces the app's queue with a fresh one on the same database (as a server restart does). */
+function restartSharedQueue() {
+  queue = new RunQueue({ db: ctx.db, workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
+  ctx.deps.runQueue = queue
+  queue.start()
+}
+
+/** Posts a run as `agent` and waits for it to end; answers the run as GET /api/runs/:id gives it. */
+async function runToEnd(agent: request.Agent, body: Record<string, unknown>) {
+  const res = await agent.post('/api/runs').send(body)
+  expect(res.status, JSON.stringify(res.body)).toBe(202)
+  await finished(queue, ctx.db, res.body.id as string)
+  return (await agent.get(`/api/runs/${res.body.id}`)).body as Record<string, unknown> & { id: string }
+}
+
+let smallRun: Record<string, unknown> & { id: string }
+
 describe('POST /api/runs', () => {
-  it('queues a run, reserves a credit and computes it on a worker thread', async () => {
+  it('queues a run (202), reserves one credit, and a worker thread computes it', async () => {
     const before = creditBalance(ctx.db, firmId)
     const res = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
     expect(res.status).toBe(202)
-    expect(res.body.status).toBe('queued')
+    expect(res.body).toMatchObject({
+      status: 'queued',
+      recordId: record.id,
+      projectId,
+      creditsCharged: 0,
+      recordSha256: record.sha256,
+    })
     expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
-    expect(await finished(res.body.id)).toMatchObject({ status: 'succeeded' })
-    const run = await engineer.get(`/api/runs/${res.body.id}`)
-    expect(run.body).toMatchObject({ status: 'succeeded', progress: 1, creditsCharged: 1 })
-    const spectrum = await engineer.get(`/api/runs/${res.body.id}/spectrum`)
-    expect(spectrum.status).toBe(200)
-    expect(spectrum.body.curves).toHaveLength(2)
+    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+    smallRun = (await engineer.get(`/api/runs/${res.body.id}`)).body
+    expect(smallRun).toMatchObject({ status: 'succeeded', progress: 1, error: null, creditsCharged: 1 })
+    expect(smallRun.engineVersion).toMatch(/ordinate-spectra/)
+    expect(Object.keys(smallRun.timings as object).sort()).toEqual(['computeMs', 'queuedMs', 'runMs'])
+    // Spent, not returned: one reservation and nothing else.
+    expect(ledgerRows(ctx.db, res.body.id)).toEqual([{ kind: 'run_reserved', delta: -1 }])
+    expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
     expect(ctx.db.select({ n: count() }).from(spectra).where(eq(spectra.runId, res.body.id)).get()!.n).toBe(1)
-    expect(
-      ctx.db.select({ n: count() }).from(creditLedger).where(and(eq(creditLedger.runId, res.body.id))).get()!.n,
-    ).toBe(1)
-    expect(ctx.db.select().from(runs).where(eq(runs.id, res.body.id)).get()!.engineVersion).toMatch(/ordinate-spectra/)
+  })
+
+  it('lets a checker start a run (independent re-runs)', async () => {
+    const run = await runToEnd(checker, { recordId: record.id, ...SMALL })
+    expect(run.status).toBe('succeeded')
+  })
+
+  it('lets an admin who is also an engineer start a run', async () => {
+    const res = await adminEngineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+    expect(res.status).toBe(202)
+    await finished(queue, ctx.db, res.body.id)
+  })
+
+  it('refuses an admin without the engineer or checker role with 403 naming the roles, storing nothing', async () => {
+    const before = runCount(ctx.db)
+    const res = await admin.post('/api/runs').send({ recordId: record.id })
+    expect(res.status).toBe(403)
+    expect(res.body.error.message).toMatch(/engineer/)
+    expect(res.body.error.message).toMatch(/checker/)
+    expect(runCount(ctx.db)).toBe(before)
+  })
+
+  it('answers 401 when signed out', async () => {
+    const res = await ctx.anonymous().post('/api/runs').send({ recordId: record.id })
+    expect(res.status).toBe(401)
+  })
+
+  it("answers 404 for another firm's record and spends none of the caller's credits", async () => {
+    const outsiderFirm = ctx.seed.firmIds[1]!
+    const before = creditBalance(ctx.db, outsiderFirm)
+    const res = await outsider.post('/api/runs').send({ recordId: record.id })
+    expect(res.status).toBe(404)
+    expect(res.body.error.code).toBe('not_found')
+    expect(creditBalance(ctx.db, outsiderFirm)).toBe(before)
+  })
+
+  it('uses the default grid (100 per decade, 0.01–10 s), 5% damping and average-acceleration Newmark when nothing is given', async () => {
+    const res = await engineer.post('/api/runs').send({ recordId: record.id })
+    expect(res.status).toBe(202)
+    expect(res.body.settings).toEqual({
+      method: 'newmark-average',
+      dampingRatios: [0.05],
+      periodsS: [...DEFAULT_PERIOD_GRID],
+      periodChoice: 'default',
+      periodGrid: null,
+    })
+    expect(res.body.settings.periodsS).toHaveLength(301)
+    await finished(queue, ctx.db, res.body.id)
+  })
+
+  it('uses periodsS exactly as given, in the given order', async () => {
+    const periodsS = [2, 0.5, 1.25, 0.0375]
+    const run = await runToEnd(engineer, { recordId: record.id, periodsS, method: 'piecewise-exact' })
+    expect(run.settings).toMatchObject({ periodsS, periodChoice: 'list', method: 'piecewise-exact' })
+    const spectrum = await engineer.get(`/api/runs/${run.id}/spectrum`)
+    expect(spectrum.body.periodsS).toEqual(periodsS)
+  })
+
+  it('spreads a periodGrid log-evenly from minS to maxS', async () => {
+    const res = await engineer
+      .post('/api/runs')
+      .send({ recordId: record.id, periodGrid: { minS: 0.1, maxS: 4, count: 25 }, method: 'newmark-linear' })
+    expect(res.status).toBe(202)
+    expect(res.body.settings.periodsS).toEqual(logPeriodGrid(0.1, 4, 25))
+    expect(res.body.settings).toMatchObject({
+      periodChoice: 'grid',
+      periodGrid: { minS: 0.1, maxS: 4, count: 25 },
+    })
+    await finished(queue, ctx.db, res.body.id)
+  })
+
+  describe('with bad settings', () => {
+    const cases: [string, Record<string, unknown>, RegExp][] = [
+      ['a damping ratio of 0.5', { dampingRatios: [0.5] }, /^dampingRatios\.0: .*below 0\.5/],
+      ['a negative damping ratio', { dampingRatios: [-0.01] }, /^dampingRatios\.0:/],
+      [
+        '11 damping ratios',
+        { dampingRatios: Array.from({ length: 11 }, (_, i) => i / 100) },
+        /^dampingRatios: .*at most 10/,
+      ],
+      ['no damping ratio', { dampingRatios: [] }, /^dampingRatios:/],
+      ['a zero period', { periodsS: [0, 1] }, /^periodsS\.0: .*positive/],
+      ['a period over 20 s', { periodsS: [1, 20.5] }, /^periodsS\.1: .*at most 20 s/],
+      [
+        '2,001 periods',
+        { periodsS: Array.from({ length: 2001 }, (_, i) => 0.01 + i * 0.001) },
+        /^periodsS: .*at most 2000/,
+      ],
+      ['no periods', { periodsS: [] }, /^periodsS:/],
+      ['a repeated period', { periodsS: [1, 1] }, /^periodsS: .*once/],
+      ['an unknown method', { method: 'runge-kutta' }, /^method:/],
+      [
+        'both periodsS and periodGrid',
+        { periodsS: [1], periodGrid: { minS: 0.1, maxS: 1, count: 10 } },
+        /either periodsS or periodGrid/,
+      ],
+      ['a grid reaching past 20 s', { periodGrid: { minS: 0.1, maxS: 30, count: 10 } }, /^periodGrid\.maxS:/],
+      ['a grid of 2,001 points', { periodGrid: { minS: 0.1, maxS: 10, count: 2001 } }, /^periodGrid\.count:/],
+      ['an unknown field', { colour: 'red' }, /colour/],
+      ['a text damping ratio', { dampingRatios: ['5%'] }, /^dampingRatios\.0:/],
+    ]
+    it.each(cases)(
+      'answers 400 for %s, storing no run and spending no credit',
+      async (_name, settings, message) => {
+        const before = { runs: runCount(ctx.db), balance: creditBalance(ctx.db, firmId) }
+        const res = await engineer.post('/api/runs').send({ recordId: record.id, ...settings })
+        expect(res.status).toBe(400)
+        expect(res.body.error.code).toBe('invalid_input')
+        expect(res.body.error.message).toMatch(message)
+        expect({ runs: runCount(ctx.db), balance: creditBalance(ctx.db, firmId) }).toEqual(before)
+      },
+    )
+
+    it('answers 400 without a recordId', async () => {
+      const res = await engineer.post('/api/runs').send({ dampingRatios: [0.05] })
+      expect(res.status).toBe(400)
+      expect(res.body.error.message).toMatch(/^recordId:/)
+    })
+  })
+
+  describe('when the firm has no credits', () => {
+    it("answers 402 { code: 'no_credits' } and stores no run", async () => {
+      const outsiderFirm = ctx.seed.firmIds[1]!
+      const theirs = insertRecord(ctx.db, {
+        firmId: outsiderFirm,
+        projectId: ctx.seed.projectIds[1]!,
+        uploadedBy: ctx.seed.userIds['outsider@ordinate.test']!,
+      })
+      setCredits(ctx.db, outsiderFirm, 0)
+      const before = runCount(ctx.db)
+      const res = await outsider.post('/api/runs').send({ recordId: theirs.id })
+      expect(res.status).toBe(402)
+      expect(res.body.error.code).toBe('no_credits')
+      expect(res.body.error.message).toMatch(/credit/)
+      expect(runCount(ctx.db)).toBe(before)
+      expect(creditBalance(ctx.db, outsiderFirm)).toBe(0)
+    })
+  })
+})
+
+describe('30 runs posted at once with 25 credits', () => {
+  it('accepts exactly 25, refuses 5 with 402, and the balance never goes below zero', async () => {
+    // A second app on its own database and no queue, so the 25 runs stay queued.
+    const other = await createTestContext()
+    try {
+      const otherFirm = other.seed.firmIds[0]!
+      const theirs = insertRecord(other.db, {
+        firmId: otherFirm,
+        projectId: other.seed.projectIds[0]!,
+        uploadedBy: other.seed.userIds['engineer@ordinate.test']!,
+      })
+      setCredits(other.db, otherFirm, 25)
+      const agent = await other.signIn('engineer@ordinate.test')
+      const answers = await Promise.all(
+        Array.from({ length: 30 }, () => agent.post('/api/runs').send({ recordId: theirs.id, ...SMALL })),
+      )
+      const statuses = answers.map((a) => a.status)
+      expect(statuses.filter((s) => s === 202)).toHaveLength(25)
+      expect(statuses.filter((s) => s === 402)).toHaveLength(5)
+      expect(runCount(other.db)).toBe(25)
+      expect(creditBalance(other.db, otherFirm)).toBe(0)
+      // Walk the append-only ledger in order: no prefix sum is negative.
+      let running = 0
+      for (const row of other.db
+        .select({ delta: creditLedger.delta })
+        .from(creditLedger)
+        .where(eq(creditLedger.firmId, otherFirm))
+        .orderBy(asc(creditLedger.id))
+        .all()) {
+        running += row.delta
+        expect(running).toBeGreaterThanOrEqual(0)
+      }
+    } finally {
+      other.close()
+    }
+  })
+})
+
+describe('GET /api/runs', () => {
+  it.each([
+    ['engineer', () => engineer],
+    ['checker', () => checker],
+    ['admin', () => admin],
+  ])("lists the firm's runs, newest first, for the %s", async (_role, agent) => {
+    const res = await agent().get('/api/runs')
+    expect(res.status).toBe(200)
+    const items = res.body.items as { id: string; createdAt: number; subjectName: string }[]
+    expect(items.map((r) => r.id)).toContain(smallRun.id)
+    expect(items.find((r) => r.id === smallRun.id)!.subjectName).toBe('Synthetic test motion')
+    const times = items.map((r) => r.createdAt)
+    expect(times).toEqual([...times].sort((a, b) => b - a))
+  })
+
+  it('filters by record and by project', async () => {
+    const another = insertRecord(
+      ctx.db,
+      { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
+      { name: 'Second motion', points: 400 },
+    )
+    const run = await runToEnd(engineer, { recordId: another.id, ...SMALL })
+    const byRecord = await engineer.get('/api/runs').query({ recordId: another.id })
+    expect(byRecord.body.items.map((r: { id: string }) => r.id)).toEqual([run.id])
+    const byProject = await engineer.get('/api/runs').query({ projectId })
+    expect(byProject.body.items.length).toBeGreaterThan(1)
+  })
+
+  it("shows another firm none of this firm's runs", async () => {
+    const res = await outsider.get('/api/runs')
+    expect(res.status).toBe(200)
+    expect(res.body.items.map((r: { id: string }) => r.id)).not.toContain(smallRun.id)
+  })
+
+  it('answers 400 for a malformed filter and 401 when signed out', async () => {
+    expect((await engineer.get('/api/runs').query({ recordId: 'nope' })).status).toBe(400)
+    expect((await ctx.anonymous().get('/api/runs')).status).toBe(401)
+  })
+})
+
+describe('GET /api/runs/:id', () => {
+  it.each([
+    ['engineer', () => engineer],
+    ['checker', () => checker],
+    ['admin', () => admin],
+  ])('answers the run to the %s', async (_role, agent) => {
+    const res = await agent().get(`/api/runs/${smallRun.id}`)
+    expect(res.status).toBe(200)
+    expect(res.body).toMatchObject({
+      id: smallRun.id,
+      status: 'succeeded',
+      pairId: null,
+      createdBy: { name: 'Ines Marlowe' },
+    })
+  })
+
+  it("answers 404 for another firm's run, 400 for a malformed id and 401 when signed out", async () => {
+    expect((await outsider.get(`/api/runs/${smallRun.id}`)).status).toBe(404)
+    expect((await engineer.get('/api/runs/not-an-id')).status).toBe(400)
+    expect((await ctx.anonymous().get(`/api/runs/${smallRun.id}`)).status).toBe(401)
+  })
+})
+
+describe('GET /api/runs/:id/spectrum', () => {
+  it('answers the stored spectrum with the run settings, equal bit for bit to the engine on the same record', async () => {
+    const res = await checker.get(`/api/runs/${smallRun.id}/spectrum`)
+    expect(res.status).toBe(200)
+    expect(res.body.settings).toEqual(smallRun.settings)
+    const direct = computeSpectrum(
+      { accelMPerS2: record.samples, dtS: record.dtS },
+      { ...SMALL, method: 'newmark-average' },
+    )
+    expect(res.body.periodsS).toEqual(Array.from(direct.periodsS))
+    expect(res.body.curves).toHaveLength(direct.curves.length)
+    direct.curves.forEach((curve, d) => {
+      const api = res.body.curves[d]
+      expect(api.dampingRatio).toBe(curve.dampingRatio)
+      for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'psvMPerS', 'psaMPerS2'] as const) {
+        expect(api[key], key).toEqual(Array.from(curve[key]))
+      }
+    })
+  })
+
+  it('answers 409 for a run that has not succeeded', async () => {
+    const id = newId()
+    ctx.db
+      .insert(runs)
+      .values({
+        id,
+        firmId,
+        projectId,
+        recordId: record.id,
+        status: 'failed',
+        error: 'test',
+        settings: smallRun.settings as Record<string, unknown>,
+        recordSha256: record.sha256,
+        createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
+      })
+      .run()
+    const res = await engineer.get(`/api/runs/${id}/spectrum`)
+    expect(res.status).toBe(409)
+    expect(res.body.error.code).toBe('run_not_finished')
+  })
+
+  it("answers 404 for another firm's run and 401 when signed out", async () => {
+    expect((await outsider.get(`/api/runs/${smallRun.id}/spectrum`)).status).toBe(404)
+    expect((await ctx.anonymous().get(`/api/runs/${smallRun.id}/spectrum`)).status).toBe(401)
+  })
+})
+
+describe('GET /api/runs/:id/spectrum.csv', () => {
+  it('labels the data (product, record and SHA-256, method, caution) and carries the same numbers with units in the columns', async () => {
+    const res = await admin.get(`/api/runs/${smallRun.id}/spectrum.csv`)
+    expect(res.status).toBe(200)
+    expect(res.headers['content-type']).toMatch(/^text\/csv/)
+    expect(res.headers['content-disposition']).toMatch(
+      /^attachment; filename="?[\w-]+-spectrum-[0-9a-f]{8}\.csv"?$/,
+    )
+    const lines = res.text.trimEnd().split('\r\n')
+    const header = lines.filter((l) => l.startsWith('#')).join('\n')
+    expect(header).toMatch(/^# Ordinate \d+\.\d+\.\d+/)
+    expect(header).toContain('Synthetic test motion')
+    expect(header).toContain(`SHA-256 ${record.sha256}`)
+    expect(header).toMatch(/Solver: Newmark-β, average acceleration/)
+    expect(header).toMatch(/Δt = 0\.01 s; sub-steps per oscillator: \d+/)
+    expect(header).toMatch(/Damping ratios: 0\.05 \(5%\), 0\.1 \(10%\)/)
+    expect(header).toMatch(
+      /Caution: Ordinate is a calculation aid; the licensed engineer of record is responsible/,
+    )
+    const rows = lines.filter((l) => !l.startsWith('#'))
+    expect(rows[0]).toBe('period_s,damping_ratio,sd_m,sv_m_per_s,sa_m_per_s2,psv_m_per_s,psa_m_per_s2,psa_g')
+    expect(rows).toHaveLength(1 + SMALL.periodsS.length * SMALL.dampingRatios.length)
+    const spectrum = (await admin.get(`/api/runs/${smallRun.id}/spectrum`)).body
+    const [period, damping, sd, , , , psa, psaG] = rows[1 + SMALL.periodsS.length]!.split(',').map(Number)
+    expect(period).toBe(SMALL.periodsS[0])
+    expect(damping).toBe(0.1)
+    expect(sd).toBe(spectrum.curves[1].sdM[0])
+    expect(psa).toBe(spectrum.curves[1].psaMPerS2[0])
+    expect(psaG).toBeCloseTo(psa! / 9.80665, 15) // g = 9.80665 m/s² (3rd CGPM, 1901)
+  })
+
+  it("answers 404 for another firm's run and 401 when signed out", async () => {
+    expect((await outsider.get(`/api/runs/${smallRun.id}/spectrum.csv`)).status).toBe(404)
+    expect((await ctx.anonymous().get(`/api/runs/${smallRun.id}/spectrum.csv`)).status).toBe(401)
+  })
+})
+
+describe('GET /api/runs/:id/events', () => {
+  it('streams progress and then the final status, and closes', async () => {
+    const res = await engineer
+      .post('/api/runs')
+      .send({ recordId: record.id, dampingRatios: [0.02, 0.05, 0.1, 0.2] })
+    const stream = await engineer.get(`/api/runs/${res.body.id}/events`).buffer(true)
+    expect(stream.status).toBe(200)
+    expect(stream.headers['content-type']).toMatch(/^text\/event-stream/)
+    const events = parseEvents(stream.text)
+    expect(events[0]!.event).toBe('status')
+    const progress = events.filter((e) => e.event === 'progress').map((e) => e.data.progress as number)
+    expect(progress.length).toBeGreaterThan(0)
+    expect(progress).toEqual([...progress].sort((a, b) => a - b))
+    expect(progress.every((p) => p > 0 && p < 1)).toBe(true)
+    expect(events.at(-1)).toMatchObject({
+      event: 'status',
+      data: { status: 'succeeded', progress: 1, error: null },
+    })
+  })
+
+  it('answers a finished run with its status alone', async () => {
+    const stream = await checker.get(`/api/runs/${smallRun.id}/events`).buffer(true)
+    expect(parseEvents(stream.text)).toEqual([
+      { event: 'status', data: { runId: smallRun.id, status: 'succeeded', progress: 1, error: null } },
+    ])
+  })
+
+  it('stops listening when the client goes away', async () => {
+    // A run no queue will take, so its stream stays open until the client leaves.
+    const id = newId()
+    ctx.db
+      .insert(runs)
+      .values({
+        id,
+        firmId,
+        projectId,
+        recordId: record.id,
+        status: 'running',
+        attempts: 1,
+        settings: smallRun.settings as Record<string, unknown>,
+        recordSha256: record.sha256,
+        createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
+      })
+      .run()
+    const server = ctx.app.listen(0, '127.0.0.1')
+    await new Promise((resolve) => server.once('listening', resolve))
+    try {
+      const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`
+      const signIn = await fetch(`${base}/api/auth/sign-in`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json', 'x-ordinate-client': '1' },
+        body: JSON.stringify({ email: 'engineer@ordinate.test', password: 'ordinate-demo' }),
+      })
+      const cookie = signIn.headers.get('set-cookie')!.split(';')[0]!
+      const abort = new AbortController()
+      const res = await fetch(`${base}/api/runs/${id}/events`, { headers: { cookie }, signal: abort.signal })
+      const first = await res.body!.getReader().read()
+      expect(new TextDecoder().decode(first.value)).toMatch(/event: status/)
+      expect(queue.subscriberCount(id)).toBe(1)
+      abort.abort()
+      await vi.waitFor(() => expect(queue.subscriberCount(id)).toBe(0))
+    } finally {
+      server.closeAllConnections()
+      server.close()
+      ctx.db.update(runs).set({ status: 'failed', error: 'test' }).where(eq(runs.id, id)).run()
+    }
+  })
+
+  it("answers 404 for another firm's run and 401 when signed out", async () => {
+    expect((await outsider.get(`/api/runs/${smallRun.id}/events`)).status).toBe(404)
+    expect((await ctx.anonymous().get(`/api/runs/${smallRun.id}/events`)).status).toBe(401)
+  })
+})
+
+describe('the run queue', () => {
+  /** A long job: 2,000 periods and 10 damping ratios on a 6,000-point record. */
+  let longRecord: InsertedRecord
+  const LONG = {
+    dampingRatios: [0, 0.01, 0.02, 0.03, 0.05, 0.07, 0.1, 0.15, 0.2, 0.3],
+    periodGrid: { minS: 0.01, maxS: 20, count: 2000 },
+  }
+  beforeAll(() => {
+    longRecord = insertRecord(
+      ctx.db,
+      { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
+      { name: 'Long synthetic motion', points: 6000, dtS: 0.005 },
+    )
+  })
+
+  it('fails a run whose worker is killed mid-run, returns its credit, and goes on with other runs', async () => {
+    const before = creditBalance(ctx.db, firmId)
+    const victim = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...LONG })
+    await firstProgress(queue, victim.body.id)
+    const other = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+    await queue.workerFor(victim.body.id)!.terminate()
+    expect(await finished(queue, ctx.db, victim.body.id)).toMatchObject({
+      status: 'failed',
+      error: expect.stringMatching(/stopped unexpectedly/),
+    })
+    const failed = (await engineer.get(`/api/runs/${victim.body.id}`)).body
+    expect(failed).toMatchObject({ status: 'failed', creditsCharged: 0 })
+    expect(ledgerRows(ctx.db, victim.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
+    expect(await finished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
+  })
+
+  it('hands consecutive runs to the same live thread instead of starting one per run', async () => {
+    await queue.stop(0)
+    const single = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 5000 })
+    try {
+      const ids: string[] = []
+      for (let i = 0; i < 3; i++)
+        ids.push((await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })).body.id)
+      const threadIds: number[] = []
+      for (const id of ids) {
+        single.subscribe(id, (event) => {
+          if (event.type === 'status' && event.status === 'running')
+            threadIds.push(single.workerFor(id)!.threadId)
+        })
+      }
+      single.start()
+      for (const id of ids) expect(await finished(single, ctx.db, id)).toMatchObject({ status: 'succeeded' })
+      expect(threadIds).toHaveLength(3)
+      expect(new Set(threadIds).size).toBe(1)
+      expect(single.threads).toBe(1)
+    } finally {
+      await single.stop(0)
+      restartSharedQueue()
+    }
+  })
+
+  it('lets an idle thread exit after the idle period', async () => {
+    await queue.stop(0)
+    const brief = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 100 })
+    try {
+      const res = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+      brief.start()
+      expect(await finished(brief, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+      expect(brief.threads).toBe(1)
+      await vi.waitFor(() => expect(brief.threads).toBe(0), { timeout: 5000 })
+    } finally {
+      await brief.stop(0)
+      restartSharedQueue()
+    }
+  })
+
+  it('fails a run over the time limit, terminates its thread and returns the credit', async () => {
+    await queue.stop(0)
+    const strict = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 0.05, idleMs: 5000 })
+    try {
+      const res = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...LONG })
+      strict.start()
+      expect(await finished(strict, ctx.db, res.body.id)).toMatchObject({
+        status: 'failed',
+        error: expect.stringMatching(/longer than the limit of 0\.05 s/),
+      })
+      expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
+      await vi.waitFor(() => expect(strict.threads).toBe(0), { timeout: 5000 })
+    } finally {
+      await strict.stop(0)
+      restartSharedQueue()
+    }
+  })
+
+  it('puts a run back in the queue at a graceful stop, and the next start finishes it exactly once', async () => {
+    const before = creditBalance(ctx.db, firmId)
+    const res = await engineer
+      .post('/api/runs')
+      .send({
+        recordId: longRecord.id,
+        dampingRatios: [0.05],
+        periodGrid: { minS: 0.01, maxS: 20, count: 400 },
+      })
+    await firstProgress(queue, res.body.id)
+    await queue.stop(0)
+    const row = ctx.db
+      .select({ status: runs.status, attempts: runs.attempts })
+      .from(runs)
+      .where(eq(runs.id, res.body.id))
+      .get()
+    expect(row).toEqual({ status: 'queued', attempts: 0 })
+    restartSharedQueue()
+    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved'])
+    expect(ctx.db.select({ n: count() }).from(spectra).where(eq(spectra.runId, res.body.id)).get()!.n).toBe(1)
+    expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
+  })
+})
+
+describe('a restart with queued and running runs', () => {
+  it('queues the interrupted runs again and finishes each exactly once, spending each credit once', async () => {
+    const other = await createTestContext()
+    let restarted: RunQueue | undefined
+    try {
+      const otherFirm = other.seed.firmIds[0]!
+      const theirs = insertRecord(
+        other.db,
+        {
+          firmId: otherFirm,
+          projectId: other.seed.projectIds[0]!,
+          uploadedBy: other.seed.userIds['engineer@ordinate.test']!,
+        },
+        { samples: syntheticMotion(800, 0.01) },
+      )
+      setCredits(other.db, otherFirm, 10)
+      const agent = await other.signIn('engineer@ordinate.test')
+      const ids: string[] = []
+      for (let i = 0; i < 6; i++)
+        ids.push((await agent.post('/api/runs').send({ recordId: theirs.id, ...SMALL })).body.id)
+      // As a crash leaves them: three were running (one of them already started three times).
+      other.db
+        .update(runs)
+        .set({ status: 'running', attempts: 1, startedAt: Date.now() })
+        .where(eq(runs.id, ids[0]!))
+        .run()
+      other.db
+        .update(runs)
+        .set({ status: 'running', attempts: 2, startedAt: Date.now() })
+        .where(eq(runs.id, ids[1]!))
+        .run()
+      other.db
+        .update(runs)
+        .set({ status: 'running', attempts: 3, startedAt: Date.now() })
+        .where(eq(runs.id, ids[2]!))
+        .run()
+      expect(creditBalance(other.db, otherFirm)).toBe(4)
+
+      restarted = new RunQueue({ db: other.db, workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
+      restarted.start()
+      const outcomes = await Promise.all(ids.map((id) => finished(restarted!, other.db, id)))
+      expect(outcomes.map((o) => o.status)).toEqual([
+        'succeeded',
+        'succeeded',
+        'failed',
+        'succeeded',
+        'succeeded',
+        'succeeded',
+      ])
+      expect(outcomes[2]!.error).toMatch(/interrupted 3 times/)
+      for (const [k, id] of ids.entries()) {
+        const spectrumRows = other.db.select({ n: count() }).from(spectra).where(eq(spectra.runId, id)).get()!
+          .n
+        const kinds = other.db
+          .select({ kind: creditLedger.kind })
+          .from(creditLedger)
+          .where(and(eq(creditLedger.runId, id)))
+          .all()
+          .map((r) => r.kind)
+        if (k === 2) {
+          expect(spectrumRows).toBe(0)
+          expect(kinds).toEqual(['run_reserved', 'run_returned'])
+        } else {
+          expect(spectrumRows).toBe(1)
+          expect(kinds).toEqual(['run_reserved'])
+        }
+      }
+      expect(creditBalance(other.db, otherFirm)).toBe(5)
+      // A second start finds nothing left to do.
+      await restarted.stop(0)
+      restarted = new RunQueue({ db: other.db, workerCount: 2, runTimeLimitS: 60 })
+      restarted.start()
+      expect(restarted.activeRunIds()).toEqual([])
+      expect(other.db.select({ n: count() }).from(spectra).get()!.n).toBe(5)
+    } finally {
+      await restarted?.stop(0)
+      other.close()
+    }
   })
 })

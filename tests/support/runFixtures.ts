@@ -19,7 +19,9 @@ export function syntheticMotion(points: number, dtS: number): Float64Array {
     const envelope = Math.sin((Math.PI * t) / durationS) ** 2
     out[i] =
       envelope *
-      (1.2 * Math.sin(2 * Math.PI * 0.8 * t) + 0.9 * Math.sin(2 * Math.PI * 2.5 * t + 0.4) + 0.5 * Math.sin(2 * Math.PI * 7 * t + 1.1))
+      (1.2 * Math.sin(2 * Math.PI * 0.8 * t) +
+        0.9 * Math.sin(2 * Math.PI * 2.5 * t + 0.4) +
+        0.5 * Math.sin(2 * Math.PI * 7 * t + 1.1))
   }
   return out
 }
