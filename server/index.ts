@@ -15,7 +15,7 @@ async function main() {
   const db = openDb(config.databasePath)
   migrateDb(db)
   if (config.demoData) {
-    const seeded = await seedDemoData(db)
+    const seeded = await seedDemoData(db, { dataDir: config.dataDir })
     if (seeded) log('Demo data loaded (see README for the demo accounts).')
   }
 

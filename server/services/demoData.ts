@@ -1,8 +1,10 @@
 import type { Role } from '../../shared/schemas/accounts.js'
+import { demoRecords } from '../../shared/spectra/demo/demoRecords.js'
 import type { Db } from '../db/client.js'
 import { creditLedger, firms, memberships, projects, users } from '../db/schema.js'
 import { newId } from '../ids.js'
 import { hashPassword } from './auth.js'
+import { createRecord } from './records.js'
 
 export const DEMO_PASSWORD = 'ordinate-demo'
 
@@ -30,13 +32,25 @@ export interface DemoSeed {
   firmIds: string[]
   projectIds: string[]
   userIds: Record<string, string>
+  /** The synthetic demo records, when seeded with a data folder for their original files. */
+  recordIds: string[]
+}
+
+export interface SeedOptions {
+  /**
+   * The data folder (config.dataDir). When given, the engine's three synthetic records are added
+   * to the demo firm's default project, uploaded by the demo engineer, with their originals kept
+   * under `<dataDir>/originals/` like any upload. (None of the three share Δt and length, so no
+   * demo pair is made.)
+   */
+  dataDir?: string
 }
 
 /** Inserts the demo firms, members, default projects and opening credits into an empty database. */
-export async function seedDemoData(db: Db): Promise<DemoSeed | undefined> {
+export async function seedDemoData(db: Db, options: SeedOptions = {}): Promise<DemoSeed | undefined> {
   if (db.select({ id: firms.id }).from(firms).limit(1).get()) return undefined
   const passwordHash = await hashPassword(DEMO_PASSWORD)
-  const seed: DemoSeed = { firmIds: [], projectIds: [], userIds: {} }
+  const seed: DemoSeed = { firmIds: [], projectIds: [], userIds: {}, recordIds: [] }
   db.transaction((tx) => {
     for (const f of DEMO_FIRMS) {
       const firmId = newId()
@@ -58,5 +72,17 @@ export async function seedDemoData(db: Db): Promise<DemoSeed | undefined> {
       seed.projectIds.push(projectId)
     }
   })
+  if (options.dataDir) {
+    const engineer = { userId: seed.userIds['engineer@ordinate.test']!, firmId: seed.firmIds[0]! }
+    for (const r of demoRecords()) {
+      const record = createRecord(db, options.dataDir, engineer, {
+        bytes: Buffer.from(r.text, 'utf8'),
+        fileName: r.fileName,
+        name: r.name,
+        synthetic: true,
+      })
+      seed.recordIds.push(record.id)
+    }
+  }
   return seed
 }

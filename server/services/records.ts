@@ -47,6 +47,13 @@ function decodeText(bytes: Uint8Array): string {
   return new TextDecoder(encoding).decode(bytes)
 }
 
+/** The form field a parse refusal concerns, so the upload form can show it there. */
+function fieldOfParseError(err: RecordParseError, input: CreateRecordInput): 'file' | 'units' | 'dtS' {
+  if (err.code === 'units_missing' || (err.code === 'units_conflict' && input.units !== undefined)) return 'units'
+  if (err.code === 'dt_missing' || (err.code === 'dt_conflict' && input.dtS !== undefined)) return 'dtS'
+  return 'file'
+}
+
 function displayFileName(fileName: string): string {
   const base = path.basename(fileName.replace(/\\/g, '/')).trim()
   return (base || 'record').slice(0, 255)
@@ -71,7 +78,7 @@ export function createRecord(db: Db, dataDir: string, member: RecordUploader, in
     parsed = parseRecord(decodeText(input.bytes), { units: input.units, dtS: input.dtS })
   } catch (err) {
     if (err instanceof RecordParseError) {
-      const field = err.code === 'units_missing' ? 'units' : err.code === 'dt_missing' ? 'dtS' : 'file'
+      const field = fieldOfParseError(err, input)
       throw badRequest(err.message, `record_${err.code}`, {
         line: err.line,
         issues: [{ path: [field], message: err.message }],

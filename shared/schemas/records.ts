@@ -1,10 +1,11 @@
 import { z } from 'zod'
+import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
 import { SOURCE_UNITS, type SourceUnits } from '../spectra/units.js'
 import { idSchema } from './common.js'
 
 /** The upload limits of POST /api/records. */
 export const MAX_UPLOAD_BYTES = 50 * 1024 * 1024
-export const MAX_RECORD_POINTS = 2_000_000
+export { MAX_RECORD_POINTS }
 
 export const sourceUnitsSchema = z.enum(SOURCE_UNITS as [SourceUnits, ...SourceUnits[]], {
   error: `Choose one of ${SOURCE_UNITS.join(', ')}.`,

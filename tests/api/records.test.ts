@@ -201,6 +201,7 @@ describe('POST /api/records', () => {
         code: 'record_units_conflict',
         line: 1,
         match: /states g/,
+        field: 'units',
       },
       {
         title: 'too few points',
@@ -231,7 +232,7 @@ describe('POST /api/records', () => {
           expect(res.body.error.code).toBe(c.code)
           expect(res.body.error.message).toMatch(c.match)
           expect(res.body.error.line).toBe(c.line)
-          if (c.field) expect(res.body.error.issues[0].path).toEqual([c.field])
+          expect(res.body.error.issues[0].path).toEqual([c.field ?? 'file'])
           expect(recordRowCount()).toBe(rowsBefore)
           expect(storedOriginals()).toHaveLength(filesBefore)
         })
