@@ -205,7 +205,7 @@ export function buildSpectrumChart(
     ...(data.band ? [{ kind: 'band' as const, label: data.band.label }] : []),
     ...data.series.map((s, i) => ({ kind: 'series' as const, index: i, label: s.label })),
   ]
-  const legendColumns = widthPx >= 560 ? 2 : 1
+  const legendColumns = legendEntries.length > 1 && widthPx >= 560 ? 2 : 1
   const legendRows = Math.ceil(legendEntries.length / legendColumns)
   const plot: PlotRect = {
     left: 72,
