@@ -7,8 +7,8 @@ import { parentPort } from 'node:worker_threads'
 import { workerRequestSchema, type WorkerReply } from '../shared/schemas/spectrumWorker.js'
 import { computeSpectrum } from '../shared/spectra/computeSpectrum.js'
 
-/** Progress is posted in steps of this fraction, so a run sends at most about 20 updates. */
-const PROGRESS_STEP = 0.05
+/** Progress is posted in 1/PROGRESS_STEPS steps (5%), so a run sends at most 19 updates. */
+const PROGRESS_STEPS = 20
 
 if (!parentPort) throw new Error('spectrumWorker must run as a worker thread')
 const port = parentPort
@@ -30,16 +30,17 @@ port.on('message', (message: unknown) => {
   }
   const { runId, job, settings } = parsed.data
   const startedAt = performance.now()
-  let posted = 0
+  let postedSteps = 0
   try {
     const computation = computeSpectrum(
       { accelMPerS2: new Float64Array(job.samples), dtS: job.dtS },
       {
         ...settings,
         onProgress: (fraction) => {
-          if (fraction >= 1 || fraction - posted < PROGRESS_STEP) return
-          posted = Math.floor(fraction / PROGRESS_STEP) * PROGRESS_STEP
-          post({ type: 'progress', runId, progress: posted })
+          const steps = Math.floor(fraction * PROGRESS_STEPS)
+          if (steps <= postedSteps || steps >= PROGRESS_STEPS) return
+          postedSteps = steps
+          post({ type: 'progress', runId, progress: steps / PROGRESS_STEPS })
         },
       },
     )

@@ -1,5 +1,8 @@
 import { and, eq } from 'drizzle-orm'
+import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
 import type { WorkerReply } from '../../shared/schemas/spectrumWorker.js'
+import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
+import { isSourceUnits } from '../../shared/spectra/units.js'
 import type { Db } from '../db/client.js'
 import { records } from '../db/schema.js'
 import type { ClaimedRun } from '../services/runs.js'
@@ -7,38 +10,31 @@ import type { ClaimedRun } from '../services/runs.js'
 type WorkerResult = Extract<WorkerReply, { type: 'result' }>
 
 /**
- * The spectrum row of a finished run: the engine's JSON shape of the computation the worker
- * posted, labelled with the record it came from.
+ * The spectrum row of a finished run: the engine's JSON of the computation the worker posted
+ * (the same function the command line uses), with the record's parameters and warnings.
  */
-export function storedSpectrum(db: Db, run: ClaimedRun, reply: WorkerResult): Record<string, unknown> {
+export function storedSpectrum(db: Db, run: ClaimedRun, reply: WorkerResult): SpectrumResult {
   const record = run.recordId
     ? db
         .select({
-          name: records.name,
-          sha256: records.sha256,
-          sourceFileName: records.sourceFileName,
           points: records.points,
           dtS: records.dtS,
+          durationS: records.durationS,
+          sourceUnits: records.sourceUnits,
+          pgaMPerS2: records.pgaMPerS2,
+          pgvMPerS: records.pgvMPerS,
+          pgdM: records.pgdM,
+          ariasMPerS: records.ariasMPerS,
+          d595S: records.d595S,
+          cavMPerS: records.cavMPerS,
+          warnings: records.warnings,
         })
         .from(records)
         .where(and(eq(records.firmId, run.firmId), eq(records.id, run.recordId)))
         .get()
     : undefined
   if (!record) throw new Error('The record of this run no longer exists.')
-  const c = reply.computation
-  return {
-    engineVersion: c.methodStatement.engineVersion,
-    record,
-    methodStatement: c.methodStatement,
-    periodsS: Array.from(c.periodsS),
-    curves: c.curves.map((curve) => ({
-      dampingRatio: curve.dampingRatio,
-      sdM: Array.from(curve.sdM),
-      svMPerS: Array.from(curve.svMPerS),
-      saMPerS2: Array.from(curve.saMPerS2),
-      psvMPerS: Array.from(curve.psvMPerS),
-      psaMPerS2: Array.from(curve.psaMPerS2),
-    })),
-    warnings: c.warnings,
-  }
+  const { warnings, sourceUnits, ...parameters } = record
+  if (!isSourceUnits(sourceUnits)) throw new Error(`The record's units "${sourceUnits}" are not known.`)
+  return toSpectrumJson({ ...parameters, sourceUnits }, reply.computation, warnings)
 }

@@ -1,38 +1,10 @@
 import { and, eq } from 'drizzle-orm'
-import { z } from 'zod'
+import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import type { Db } from '../db/client.js'
 import { records } from '../db/schema.js'
 import { ordinateVersion } from '../exports/sheetParts.js'
 import { getRunSpectrum } from './runs.js'
-
-/** The parts of a stored spectrum the CSV reads (shared/schemas/spectrum.ts holds the full shape). */
-const csvSpectrumSchema = z.object({
-  periodsS: z.array(z.number()),
-  curves: z.array(
-    z.object({
-      dampingRatio: z.number(),
-      combination: z.string().optional(),
-      sdM: z.array(z.number()),
-      svMPerS: z.array(z.number()),
-      saMPerS2: z.array(z.number()),
-      psvMPerS: z.array(z.number()),
-      psaMPerS2: z.array(z.number()),
-    }),
-  ),
-  methodStatement: z.object({
-    solver: z.string(),
-    recordDtS: z.number(),
-    subStepRule: z.string(),
-    subStepsMin: z.number(),
-    subStepsMax: z.number(),
-    initialConditions: z.string(),
-    freeVibrationTail: z.string(),
-    accuracyTarget: z.string(),
-    engineVersion: z.string(),
-  }),
-  warnings: z.array(z.string()).default([]),
-})
 
 export const CSV_CAUTION =
   'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.'
@@ -64,7 +36,7 @@ const percent = (ratio: number) => `${Number((ratio * 100).toPrecision(6))}%`
  */
 export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileName: string; text: string } {
   const { run, result } = getRunSpectrum(db, firmId, runId)
-  const spectrum = csvSpectrumSchema.parse(result)
+  const spectrum = spectrumResultSchema.parse(result)
   const record = run.recordId
     ? db
         .select({
@@ -86,6 +58,9 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
     ),
     comment(
       `Computed: ${run.finishedAt ? new Date(run.finishedAt).toISOString() : 'unknown'} by ${m.engineVersion}`,
+    ),
+    comment(
+      `Processing: read from ${spectrum.record.sourceUnits} and converted to m/s²; no baseline correction or filtering applied by Ordinate`,
     ),
     comment(`Solver: ${m.solver}`),
     comment(`Time step of the record: Δt = ${num(m.recordDtS)} s; sub-steps per oscillator: ${subSteps}`),

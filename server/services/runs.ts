@@ -5,6 +5,7 @@ import {
   type RunListQuery,
   type RunSettings,
 } from '../../shared/schemas/runs.js'
+import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
 import type { SpectrumJob } from '../../shared/schemas/spectrumWorker.js'
 import { defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import type { Db } from '../db/client.js'
@@ -277,7 +278,7 @@ export function recordRunProgress(db: Db, run: Pick<ClaimedRun, 'id' | 'attempt'
 }
 
 export interface RunOutcome {
-  result: Record<string, unknown>
+  result: SpectrumResult
   engineVersion: string
   timings: Record<string, number>
 }

@@ -7,7 +7,13 @@ import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
+import { createRecord } from '../../server/services/records.js'
+import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
+import { demoRecord } from '../../shared/spectra/demo/demoRecords.js'
+import { parseRecord } from '../../shared/spectra/parseRecord.js'
+import { recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
+import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { DEFAULT_PERIOD_GRID, logPeriodGrid } from '../../shared/spectra/periods.js'
 import { insertRecord, setCredits, syntheticMotion, type InsertedRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -409,23 +415,43 @@ describe('GET /api/runs/:id', () => {
 })
 
 describe('GET /api/runs/:id/spectrum', () => {
-  it('answers the stored spectrum with the run settings, equal bit for bit to the engine on the same record', async () => {
+  it('answers the engine JSON shape (spectrumResultSchema) with the run settings under settings', async () => {
     const res = await checker.get(`/api/runs/${smallRun.id}/spectrum`)
     expect(res.status).toBe(200)
-    expect(res.body.settings).toEqual(smallRun.settings)
-    const direct = computeSpectrum(
-      { accelMPerS2: record.samples, dtS: record.dtS },
-      { ...SMALL, method: 'newmark-average' },
+    const parsed = spectrumResultSchema.parse(res.body)
+    expect(parsed.settings).toEqual(smallRun.settings)
+    expect(parsed.record).toMatchObject({ points: 1500, dtS: 0.01, sourceUnits: 'm/s2' })
+    expect(parsed.methodStatement.method).toBe('newmark-average')
+  })
+
+  it('equals, bit for bit, what the command-line path (parse, compute, toSpectrumJson) gives for the same file', async () => {
+    const demo = demoRecord('synthetic-far-field')
+    const uploaded = createRecord(
+      ctx.db,
+      ctx.dataDir,
+      { firmId, userId: ctx.seed.userIds['engineer@ordinate.test']! },
+      { bytes: Buffer.from(demo.text), fileName: demo.fileName, synthetic: true },
     )
-    expect(res.body.periodsS).toEqual(Array.from(direct.periodsS))
-    expect(res.body.curves).toHaveLength(direct.curves.length)
-    direct.curves.forEach((curve, d) => {
-      const api = res.body.curves[d]
-      expect(api.dampingRatio).toBe(curve.dampingRatio)
-      for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'psvMPerS', 'psaMPerS2'] as const) {
-        expect(api[key], key).toEqual(Array.from(curve[key]))
-      }
-    })
+    const settings = {
+      dampingRatios: [0.02, 0.05],
+      periodsS: [0.01, 0.1, 0.25, 1, 3, 10],
+      method: 'piecewise-exact' as const,
+    }
+    const run = await runToEnd(engineer, { recordId: uploaded.id, ...settings })
+    const api = (await engineer.get(`/api/runs/${run.id}/spectrum`)).body
+
+    const parsed = parseRecord(demo.text)
+    const local = toSpectrumJson(
+      { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits },
+      computeSpectrum({ accelMPerS2: parsed.accelMPerS2, dtS: parsed.dtS }, settings),
+      recordWarnings(parsed.accelMPerS2, parsed.dtS),
+    )
+    const { settings: _settings, ...fromApi } = api
+    // JSON keeps every double exactly (shortest round-trip form), so equality is bit for bit.
+    expect(fromApi.curves).toEqual(local.curves)
+    expect(fromApi.periodsS).toEqual(local.periodsS)
+    expect(fromApi.methodStatement).toEqual(local.methodStatement)
+    expect(fromApi.record).toEqual(local.record)
   })
 
   it('answers 409 for a run that has not succeeded', async () => {
@@ -658,13 +684,11 @@ describe('the run queue', () => {
 
   it('puts a run back in the queue at a graceful stop, and the next start finishes it exactly once', async () => {
     const before = creditBalance(ctx.db, firmId)
-    const res = await engineer
-      .post('/api/runs')
-      .send({
-        recordId: longRecord.id,
-        dampingRatios: [0.05],
-        periodGrid: { minS: 0.01, maxS: 20, count: 400 },
-      })
+    const res = await engineer.post('/api/runs').send({
+      recordId: longRecord.id,
+      dampingRatios: [0.05],
+      periodGrid: { minS: 0.01, maxS: 20, count: 400 },
+    })
     await firstProgress(queue, res.body.id)
     await queue.stop(0)
     const row = ctx.db
