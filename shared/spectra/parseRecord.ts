@@ -52,6 +52,7 @@ export interface ParsedRecord {
 export type RecordParseErrorCode =
   | 'invalid_option'
   | 'empty'
+  | 'not_text'
   | 'no_values'
   | 'malformed_csv'
   | 'non_numeric'
@@ -344,6 +345,28 @@ function timeValueSeries(rows: Rows): { accel: Float64Array; dtS: number; accelL
       )
     }
   }
+  // When times are printed as coarsely as the step itself, every single step passes the check
+  // above, yet a record whose step changes part-way would have samples attributed to the wrong
+  // instant. Measure each time's distance from the constant-step grid; where the step changes,
+  // that distance peaks, so the farthest sample names the line.
+  let farthestRow = 0
+  let farthestS = 0
+  for (let row = 1; row < n; row++) {
+    const offS = Math.abs(time(row) - (time(0) + row * dtS))
+    if (offS > farthestS) {
+      farthestS = offS
+      farthestRow = row
+    }
+  }
+  const printing = (rows.firstQuantum[farthestRow] ?? 0) + (rows.firstQuantum[0] ?? 0)
+  if (farthestS > 0.5 * dtS + printing) {
+    const line = rows.lines[farthestRow] ?? 0
+    throw new RecordParseError(
+      'time_not_uniform',
+      `Line ${line}: time ${time(farthestRow)} s is ${formatSeconds(farthestS)} s away from ${formatSeconds(time(0) + farthestRow * dtS)} s, where the record's average step of ${formatSeconds(dtS)} s puts it; the time step changes around this line. Ordinate needs a constant time step; resample the record first.`,
+      line,
+    )
+  }
   const accel = new Float64Array(n)
   for (let row = 0; row < n; row++) accel[row] = rows.values[2 * row + 1] ?? NaN
   return { accel, dtS, accelLines: rows.lines, startS: time(0) }
@@ -369,6 +392,13 @@ function lineOfValue(rows: Rows, index: number): number {
  */
 export function parseRecord(text: string, options: ParseRecordOptions = {}): ParsedRecord {
   checkOptions(options)
+  // Text records never hold a NUL character; images, spreadsheets and archives almost always do.
+  if (text.includes('\u0000')) {
+    throw new RecordParseError(
+      'not_text',
+      'The file is not plain text (it holds binary bytes, as a spreadsheet, archive or image does). Save the record as text: CSV, or one value per line.',
+    )
+  }
   const lines = splitLines(text)
   const statements = emptyHeaderStatements()
   let first = -1
