@@ -105,12 +105,7 @@ export function xAxisMarkup(
 }
 
 /** Tick marks, numbers and the rotated axis title left of a plot. `label` is escaped here. */
-export function yAxisMarkup(
-  map: (v: number) => number,
-  ticks: Ticks,
-  plot: PlotRect,
-  label: string,
-): string {
+export function yAxisMarkup(map: (v: number) => number, ticks: Ticks, plot: PlotRect, label: string): string {
   const parts = ticks.labelled.map((t) => {
     const y = map(t)
     return (

@@ -41,13 +41,6 @@ export const palette = {
  * Curves after the first record cycle through these, chosen to stay apart in
  * greyscale print as well as in colour.
  */
-export const seriesColours = [
-  palette.ink,
-  '#5d7f38',
-  '#7a4c86',
-  '#2b7f83',
-  '#8a6a2c',
-  '#4b5560',
-] as const
+export const seriesColours = [palette.ink, '#5d7f38', '#7a4c86', '#2b7f83', '#8a6a2c', '#4b5560'] as const
 
 export type PaletteColour = (typeof palette)[keyof typeof palette]

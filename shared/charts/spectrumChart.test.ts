@@ -4,7 +4,9 @@ import { buildSpectrumChart, spectrumChartSvg, type SpectrumChartData } from './
 import { STANDARD_GRAVITY_MPERS2 } from './units.js'
 
 const periodsS = Array.from({ length: 31 }, (_, i) => 0.01 * 10 ** (i / 10))
-const recordPsa = periodsS.map((t) => STANDARD_GRAVITY_MPERS2 * (0.3 + 0.4 / (1 + (Math.log10(t / 0.3) * 2) ** 2)))
+const recordPsa = periodsS.map(
+  (t) => STANDARD_GRAVITY_MPERS2 * (0.3 + 0.4 / (1 + (Math.log10(t / 0.3) * 2) ** 2)),
+)
 
 function demoData(label = 'Synthetic record A'): SpectrumChartData {
   return {
@@ -13,7 +15,12 @@ function demoData(label = 'Synthetic record A'): SpectrumChartData {
       { label: 'Target', periodsS, values: recordPsa.map((v) => v * 1.1), role: 'target' },
       { label: '90% of target', periodsS, values: recordPsa.map((v) => v * 0.99), role: 'target90' },
     ],
-    band: { label: 'mean ± σ', periodsS, lower: recordPsa.map((v) => v * 0.8), upper: recordPsa.map((v) => v * 1.2) },
+    band: {
+      label: 'mean ± σ',
+      periodsS,
+      lower: recordPsa.map((v) => v * 0.8),
+      upper: recordPsa.map((v) => v * 1.2),
+    },
   }
 }
 
@@ -32,7 +39,10 @@ describe('spectrumChartSvg', () => {
   })
 
   it('is well-formed SVG that a strict renderer accepts', () => {
-    const svg = spectrumChartSvg(demoData('A & B <i>"quoted"</i>'), { quantity: 'PSA', title: "O'Neil <site>" })
+    const svg = spectrumChartSvg(demoData('A & B <i>"quoted"</i>'), {
+      quantity: 'PSA',
+      title: "O'Neil <site>",
+    })
     const png = new Resvg(svg).render()
     expect(png.width).toBe(720)
   })
@@ -51,20 +61,33 @@ describe('spectrumChartSvg', () => {
   })
 
   it('names the quantity and its unit on the ordinate axis', () => {
-    expect(spectrumChartSvg(demoData(), { quantity: 'PSA' })).toContain('Pseudo-spectral acceleration, PSA (g)')
+    expect(spectrumChartSvg(demoData(), { quantity: 'PSA' })).toContain(
+      'Pseudo-spectral acceleration, PSA (g)',
+    )
     expect(spectrumChartSvg(demoData(), { quantity: 'SA', unit: 'm/s²' })).toContain('SA (m/s²)')
-    expect(spectrumChartSvg(demoData(), { quantity: 'SD', unit: 'mm' })).toContain('Spectral displacement, SD (mm)')
+    expect(spectrumChartSvg(demoData(), { quantity: 'SD', unit: 'mm' })).toContain(
+      'Spectral displacement, SD (mm)',
+    )
     expect(spectrumChartSvg(demoData(), { quantity: 'PSV' })).toContain('PSV (m/s)')
     expect(spectrumChartSvg(demoData(), { quantity: 'PSA' })).toContain('Period T (s)')
   })
 
   it('converts SI ordinates into the display unit (g = 9.80665 m/s², standard gravity)', () => {
     const flat: SpectrumChartData = {
-      series: [{ label: 'flat', periodsS: [0.1, 1], values: [STANDARD_GRAVITY_MPERS2, STANDARD_GRAVITY_MPERS2], role: 'record' }],
+      series: [
+        {
+          label: 'flat',
+          periodsS: [0.1, 1],
+          values: [STANDARD_GRAVITY_MPERS2, STANDARD_GRAVITY_MPERS2],
+          role: 'record',
+        },
+      ],
     }
     expect(buildSpectrumChart(flat, { quantity: 'PSA' }).frame.yDomain).toEqual([0, 1])
     expect(buildSpectrumChart(flat, { quantity: 'PSA', unit: 'm/s²' }).frame.yDomain).toEqual([0, 10])
-    const sd: SpectrumChartData = { series: [{ label: 'sd', periodsS: [0.1, 1], values: [0.004, 0.02], role: 'record' }] }
+    const sd: SpectrumChartData = {
+      series: [{ label: 'sd', periodsS: [0.1, 1], values: [0.004, 0.02], role: 'record' }],
+    }
     expect(buildSpectrumChart(sd, { quantity: 'SD', unit: 'mm' }).frame.yDomain).toEqual([0, 20])
   })
 
@@ -74,7 +97,9 @@ describe('spectrumChartSvg', () => {
   })
 
   it('refuses a series whose periods and values differ in length', () => {
-    const bad: SpectrumChartData = { series: [{ label: 'short', periodsS: [0.1, 1], values: [1], role: 'record' }] }
+    const bad: SpectrumChartData = {
+      series: [{ label: 'short', periodsS: [0.1, 1], values: [1], role: 'record' }],
+    }
     expect(() => spectrumChartSvg(bad, { quantity: 'PSA' })).toThrow(/short.*2 periods but 1 values/)
   })
 
@@ -136,7 +161,9 @@ describe('spectrumChartSvg', () => {
   it('describes the chart in text for screen readers', () => {
     const svg = spectrumChartSvg(demoData(), { quantity: 'PSA', title: 'Demo' })
     expect(svg).toMatch(/role="img" aria-labelledby="ordinate-spectrum-title ordinate-spectrum-desc"/)
-    expect(svg).toContain('<desc id="ordinate-spectrum-desc">Pseudo-spectral acceleration, PSA (g) against period T (s)')
+    expect(svg).toContain(
+      '<desc id="ordinate-spectrum-desc">Pseudo-spectral acceleration, PSA (g) against period T (s)',
+    )
     expect(svg).toContain('Curves: Synthetic record A (ζ = 5%); Target; 90% of target.')
   })
 })

@@ -19,13 +19,7 @@ import {
 } from './axes.js'
 import { palette, seriesColours } from './palette.js'
 import { FONT_FAMILY, escapeXml, px, safeId, truncateToWidth } from './svgMarkup.js'
-import {
-  type DisplayUnit,
-  type SpectrumQuantity,
-  checkUnit,
-  fromSI,
-  spectrumQuantities,
-} from './units.js'
+import { type DisplayUnit, type SpectrumQuantity, checkUnit, fromSI, spectrumQuantities } from './units.js'
 
 /**
  * What a curve is, which decides how it is drawn:
@@ -140,9 +134,7 @@ function styleFor(series: SpectrumSeries, recordIndex: number): RoleStyle {
 
 function checkLengths(label: string, periodsS: ArrayLike<number>, values: ArrayLike<number>) {
   if (periodsS.length !== values.length) {
-    throw new RangeError(
-      `series "${label}" has ${periodsS.length} periods but ${values.length} values`,
-    )
+    throw new RangeError(`series "${label}" has ${periodsS.length} periods but ${values.length} values`)
   }
 }
 
@@ -183,10 +175,7 @@ function periodExtent(data: SpectrumChartData, xScale: AxisScale): [number, numb
  * Builds the chart. Throws a RangeError when a series' periods and values
  * differ in length or the unit does not suit the quantity.
  */
-export function buildSpectrumChart(
-  data: SpectrumChartData,
-  options: SpectrumChartOptions,
-): SpectrumChart {
+export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumChartOptions): SpectrumChart {
   const quantity = spectrumQuantities[options.quantity]
   const unit = options.unit ?? quantity.defaultUnit
   checkUnit(quantity.kind, unit)
@@ -230,8 +219,7 @@ export function buildSpectrumChart(
   const yRange = [plot.top + plot.height, plot.top]
   const x = (xKind === 'log' ? scaleLog() : scaleLinear()).domain(xDomainS).range(xRange)
   const y = (yKind === 'log' ? scaleLog() : scaleLinear()).domain(yDomain).range(yRange)
-  const xTicks: Ticks =
-    xKind === 'log' ? logTicks(xDomainS[0], xDomainS[1]) : linearTicks(x.ticks(8))
+  const xTicks: Ticks = xKind === 'log' ? logTicks(xDomainS[0], xDomainS[1]) : linearTicks(x.ticks(8))
   const yTicks: Ticks = yKind === 'log' ? logTicks(yDomain[0], yDomain[1]) : linearTicks(y.ticks(6))
 
   const drawable = (t: number, v: number) =>

@@ -5,7 +5,10 @@ import { STANDARD_GRAVITY_MPERS2 } from './units.js'
 
 const dtS = 0.01
 const n = 2001
-const acceleration = Array.from({ length: n }, (_, i) => 0.5 * STANDARD_GRAVITY_MPERS2 * Math.sin(2 * Math.PI * i * dtS) * Math.exp(-i / 800))
+const acceleration = Array.from(
+  { length: n },
+  (_, i) => 0.5 * STANDARD_GRAVITY_MPERS2 * Math.sin(2 * Math.PI * i * dtS) * Math.exp(-i / 800),
+)
 const velocity = acceleration.map((v) => v * 0.01)
 const displacement = acceleration.map((v) => v * 0.001)
 
@@ -27,7 +30,12 @@ describe('thinForDrawing', () => {
 
 describe('timeHistoryChartSvg', () => {
   it('draws three panels with units and peaks, deterministically', () => {
-    const data = { dtS, accelerationMPerS2: acceleration, velocityMPerS: velocity, displacementM: displacement }
+    const data = {
+      dtS,
+      accelerationMPerS2: acceleration,
+      velocityMPerS: velocity,
+      displacementM: displacement,
+    }
     const svg = timeHistoryChartSvg(data, { displacementUnit: 'mm', title: 'Record <1>' })
     expect(svg).toBe(timeHistoryChartSvg(data, { displacementUnit: 'mm', title: 'Record <1>' }))
     expect(svg).toContain('Acceleration (g)')
@@ -50,7 +58,11 @@ describe('timeHistoryChartSvg', () => {
 
   it('rejects a non-positive time step and series of different lengths', () => {
     expect(() => timeHistoryChartSvg({ dtS: 0, accelerationMPerS2: acceleration })).toThrow(RangeError)
-    expect(() => timeHistoryChartSvg({ dtS, accelerationMPerS2: acceleration, velocityMPerS: [1, 2] })).toThrow(/velocity has 2 samples/)
-    expect(() => timeHistoryChartSvg({ dtS, accelerationMPerS2: acceleration }, { accelerationUnit: 'mm' })).toThrow(RangeError)
+    expect(() =>
+      timeHistoryChartSvg({ dtS, accelerationMPerS2: acceleration, velocityMPerS: [1, 2] }),
+    ).toThrow(/velocity has 2 samples/)
+    expect(() =>
+      timeHistoryChartSvg({ dtS, accelerationMPerS2: acceleration }, { accelerationUnit: 'mm' }),
+    ).toThrow(RangeError)
   })
 })

@@ -4,14 +4,7 @@
  */
 import { scaleLinear } from 'd3-scale'
 import { line } from 'd3-shape'
-import {
-  type PlotRect,
-  linearTicks,
-  xAxisMarkup,
-  xGridMarkup,
-  yAxisMarkup,
-  yGridMarkup,
-} from './axes.js'
+import { type PlotRect, linearTicks, xAxisMarkup, xGridMarkup, yAxisMarkup, yGridMarkup } from './axes.js'
 import { palette } from './palette.js'
 import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
 import { type DisplayUnit, type MotionKind, checkUnit, fromSI } from './units.js'
@@ -85,12 +78,7 @@ const peakFormat = (v: number) => Number(v.toPrecision(4)).toString()
  * otherwise the first, lowest and highest sample of each pixel column, in time
  * order, so peaks survive the thinning.
  */
-export function thinForDrawing(
-  values: ArrayLike<number>,
-  i0: number,
-  i1: number,
-  columns: number,
-): number[] {
+export function thinForDrawing(values: ArrayLike<number>, i0: number, i1: number, columns: number): number[] {
   const count = i1 - i0 + 1
   if (count <= 0) return []
   const all: number[] = []
@@ -168,7 +156,9 @@ export function buildTimeHistoryChart(
     30,
     (heightPx - top - bottomPx - PANEL_GAP_PX * (panelsIn.length - 1)) / panelsIn.length,
   )
-  const x = scaleLinear().domain(timeDomainS).range([plotLeft, plotLeft + plotWidth])
+  const x = scaleLinear()
+    .domain(timeDomainS)
+    .range([plotLeft, plotLeft + plotWidth])
   const xTicks = linearTicks(x.ticks(10))
   const i0 = Math.max(0, Math.floor((timeDomainS[0] - t0) / data.dtS))
   const i1 = Math.min(n - 1, Math.ceil((timeDomainS[1] - t0) / data.dtS))
@@ -211,7 +201,9 @@ export function buildTimeHistoryChart(
       `<g>${xGridMarkup(x, xTicks, plot)}${yGridMarkup(y, yTicks, plot)}</g>`,
       `<line x1="${px(plot.left)}" y1="${px(y(0))}" x2="${px(plot.left + plot.width)}" y2="${px(y(0))}" stroke="${palette.ruleStrong}"/>`,
       `<g clip-path="url(#${clip})">`,
-      d ? `<path d="${d}" fill="none" stroke="${KIND_COLOURS[p.kind]}" stroke-width="1" stroke-linejoin="round"/>` : '',
+      d
+        ? `<path d="${d}" fill="none" stroke="${KIND_COLOURS[p.kind]}" stroke-width="1" stroke-linejoin="round"/>`
+        : '',
       peakTimeS >= timeDomainS[0] && peakTimeS <= timeDomainS[1]
         ? `<circle cx="${px(x(peakTimeS))}" cy="${px(y(values[peakIndex] ?? 0))}" r="3" fill="none" stroke="${palette.ochre}" stroke-width="1.5"/>`
         : '',
@@ -250,9 +242,6 @@ export function buildTimeHistoryChart(
 }
 
 /** The chart as SVG text; see {@link buildTimeHistoryChart}. */
-export function timeHistoryChartSvg(
-  data: TimeHistoryData,
-  options?: TimeHistoryChartOptions,
-): string {
+export function timeHistoryChartSvg(data: TimeHistoryData, options?: TimeHistoryChartOptions): string {
   return buildTimeHistoryChart(data, options).svg
 }

@@ -98,7 +98,11 @@ export async function apiRequest<S extends z.ZodType>(
     })
   } catch (err) {
     if (err instanceof DOMException && err.name === 'AbortError') throw err
-    throw new ApiError(0, 'network', 'Ordinate could not reach its server. Check the connection and try again.')
+    throw new ApiError(
+      0,
+      'network',
+      'Ordinate could not reach its server. Check the connection and try again.',
+    )
   }
   if (!response.ok) throw await errorFrom(response)
   const text = await response.text()
@@ -107,14 +111,23 @@ export async function apiRequest<S extends z.ZodType>(
     try {
       body = JSON.parse(text)
     } catch {
-      throw new ApiError(response.status, 'bad_response', 'The server sent an answer Ordinate could not read.')
+      throw new ApiError(
+        response.status,
+        'bad_response',
+        'The server sent an answer Ordinate could not read.',
+      )
     }
   }
   const parsed = schema.safeParse(body)
   if (!parsed.success) {
-    throw new ApiError(response.status, 'bad_response', 'The server sent an answer Ordinate did not expect.', {
-      issues: parsed.error.issues,
-    })
+    throw new ApiError(
+      response.status,
+      'bad_response',
+      'The server sent an answer Ordinate did not expect.',
+      {
+        issues: parsed.error.issues,
+      },
+    )
   }
   return parsed.data
 }

@@ -11,10 +11,15 @@ import { apiRequest } from './client'
  * message whether or not the address has an account; 429 when rate-limited.
  */
 export async function requestPasswordReset(body: RequestPasswordResetBody): Promise<string> {
-  return (await apiRequest('/api/auth/password-reset', passwordResetRequestedSchema, { method: 'POST', body })).message
+  return (
+    await apiRequest('/api/auth/password-reset', passwordResetRequestedSchema, { method: 'POST', body })
+  ).message
 }
 
 /** `POST /api/auth/password-reset/:token`: sets the new password (204). */
 export async function completePasswordReset(token: string, body: CompletePasswordResetBody): Promise<void> {
-  await apiRequest(`/api/auth/password-reset/${encodeURIComponent(token)}`, z.undefined(), { method: 'POST', body })
+  await apiRequest(`/api/auth/password-reset/${encodeURIComponent(token)}`, z.undefined(), {
+    method: 'POST',
+    body,
+  })
 }

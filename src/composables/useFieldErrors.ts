@@ -10,7 +10,9 @@ function asIssues(raw: readonly unknown[] | undefined): Issue[] {
   return (raw ?? []).flatMap((item) => {
     if (typeof item !== 'object' || item === null) return []
     const { path, message } = item as { path?: unknown; message?: unknown }
-    return Array.isArray(path) && typeof message === 'string' ? [{ path: path as PropertyKey[], message }] : []
+    return Array.isArray(path) && typeof message === 'string'
+      ? [{ path: path as PropertyKey[], message }]
+      : []
   })
 }
 

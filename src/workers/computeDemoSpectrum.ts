@@ -1,4 +1,8 @@
-import { type MethodStatement, type SpectrumCurve, computeSpectrum } from '../../shared/spectra/computeSpectrum'
+import {
+  type MethodStatement,
+  type SpectrumCurve,
+  computeSpectrum,
+} from '../../shared/spectra/computeSpectrum'
 import { DEMO_RECORD_IDS, demoRecord } from '../../shared/spectra/demo/demoRecords'
 import { parseRecord } from '../../shared/spectra/parseRecord'
 import { defaultPeriodsS } from '../../shared/spectra/periods'

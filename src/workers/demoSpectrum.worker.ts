@@ -11,7 +11,10 @@ const requestSchema = z.object({ dampingRatio: z.number().min(0).lt(MAX_DAMPING_
 self.onmessage = (event: MessageEvent<unknown>) => {
   const request = requestSchema.safeParse(event.data)
   if (!request.success) {
-    self.postMessage({ ok: false, message: `Bad request to the spectrum worker: ${request.error.issues[0]?.message ?? ''}` })
+    self.postMessage({
+      ok: false,
+      message: `Bad request to the spectrum worker: ${request.error.issues[0]?.message ?? ''}`,
+    })
     return
   }
   try {

@@ -11,6 +11,7 @@ import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { type BrowserContext, type Page, chromium } from 'playwright-core'
+import { afterAll, beforeAll } from 'vitest'
 
 export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..')
 export const artifactsDir = path.join(repoRoot, 'test-artifacts')
@@ -61,7 +62,8 @@ function killGroup(child: ChildProcess, signal: NodeJS.Signals) {
  */
 export async function startServer(env: Record<string, string> = {}): Promise<RunningServer> {
   for (const file of [serverEntry, clientEntry]) {
-    if (!existsSync(file)) throw new Error(`${path.relative(repoRoot, file)} is missing: run \`npm run build\` first`)
+    if (!existsSync(file))
+      throw new Error(`${path.relative(repoRoot, file)} is missing: run \`npm run build\` first`)
   }
   const dataDir = await mkdtemp(path.join(tmpdir(), 'ordinate-e2e-'))
   const child = spawn(process.execPath, [serverEntry], {
@@ -98,7 +100,9 @@ export async function startServer(env: Record<string, string> = {}): Promise<Run
     child.stdout?.on('data', onData)
     child.stderr?.on('data', (chunk: Buffer) => (output += chunk.toString()))
     child.once('error', fail)
-    child.once('exit', (code, signal) => fail(new Error(`the server exited early (code ${code}, signal ${signal})`)))
+    child.once('exit', (code, signal) =>
+      fail(new Error(`the server exited early (code ${code}, signal ${signal})`)),
+    )
   })
   child.removeAllListeners('exit')
   return {
@@ -160,10 +164,37 @@ export function artifactPath(name: string): string {
 }
 
 /** Signs in through the form, as a person would, and waits for the app shell. */
-export async function signInThroughForm(page: Page, baseUrl: string, email: string, password = DEMO_PASSWORD) {
+export async function signInThroughForm(
+  page: Page,
+  baseUrl: string,
+  email: string,
+  password = DEMO_PASSWORD,
+) {
   await page.goto(`${baseUrl}/sign-in`)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()
   await page.getByRole('navigation', { name: 'Main' }).waitFor()
+}
+
+export interface BrowserTestEnvironment {
+  server: RunningServer
+  browser: Browser
+}
+
+/**
+ * For a browser-test file: starts the server and the browser before its tests
+ * and stops both after them. Read `env.server` and `env.browser` inside tests.
+ */
+export function useBrowserTestEnvironment(env: Record<string, string> = {}): BrowserTestEnvironment {
+  const holder = {} as BrowserTestEnvironment
+  beforeAll(async () => {
+    holder.server = await startServer(env)
+    holder.browser = await launchBrowser()
+  })
+  afterAll(async () => {
+    await holder.browser?.close()
+    await holder.server?.stop()
+  })
+  return holder
 }

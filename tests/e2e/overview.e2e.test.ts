@@ -1,39 +1,22 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import { formatSignificant, fromSI } from '../../shared/charts/units.js'
 import { computeDemoSpectrum } from '../../src/workers/computeDemoSpectrum.js'
-import {
-  type Browser,
-  type RunningServer,
-  artifactPath,
-  demoMembers,
-  launchBrowser,
-  signInThroughForm,
-  startServer,
-} from './harness.js'
+import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
 
-let server: RunningServer
-let browser: Browser
-
-beforeAll(async () => {
-  server = await startServer()
-  browser = await launchBrowser()
-})
-
-afterAll(async () => {
-  await browser?.close()
-  await server?.stop()
-})
+const env = useBrowserTestEnvironment()
 
 describe('Overview', () => {
   it('shows the demo record spectrum computed in the browser, equal to the engine run in Node', async () => {
-    const page = await browser.newPage()
-    await signInThroughForm(page, server.url, demoMembers.engineer.email)
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
     const table = page.locator('[data-test="ordinates-table"]')
     await table.waitFor({ timeout: 30_000 })
 
     expect(await page.locator('[data-test="synthetic-label"]').innerText()).toBe('synthetic demo record')
     const chart = page.locator('figure svg[role="img"]').first()
-    expect(await chart.locator('desc').textContent()).toContain('Pseudo-spectral acceleration, PSA (g) against period T (s)')
+    expect(await chart.locator('desc').textContent()).toContain(
+      'Pseudo-spectral acceleration, PSA (g) against period T (s)',
+    )
     expect(await page.locator('[data-test="cautions"]').innerText()).toContain('licensed engineer of record')
 
     // The default grid has 100 periods per decade from 0.01 s, so T = 1 s is row 201 of 301.
