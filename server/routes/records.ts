@@ -10,7 +10,13 @@ import {
 import type { AppDeps } from '../deps.js'
 import { badRequest, tooLarge } from '../httpError.js'
 import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
-import { createRecord, getRecord, listRecords, recordSamplesForPlot, removeRecord } from '../services/records.js'
+import {
+  createRecord,
+  getRecord,
+  listRecords,
+  recordSamplesForPlot,
+  removeRecord,
+} from '../services/records.js'
 
 const MAX_UPLOAD_MB = MAX_UPLOAD_BYTES / (1024 * 1024)
 
@@ -24,7 +30,11 @@ const upload = multer({
 function receiveFile(req: Request, res: Response, next: NextFunction) {
   upload.single('file')(req, res, (err: unknown) => {
     if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') {
-      return next(tooLarge(`The file is larger than ${MAX_UPLOAD_MB} MB, the most Ordinate accepts. Split or decimate the record.`))
+      return next(
+        tooLarge(
+          `The file is larger than ${MAX_UPLOAD_MB} MB, the most Ordinate accepts. Split or decimate the record.`,
+        ),
+      )
     }
     next(err)
   })

@@ -14,7 +14,11 @@ export interface DecimatedSeries {
  * time axis stays uniform (spacing b·dtS/2), and a peak is displaced in time by less than one
  * bucket (b·dtS). This is the usual min/max decimation for drawing signals (common practice).
  */
-export function decimateMinMax(series: readonly Float64Array[], dtS: number, maxPoints: number): DecimatedSeries {
+export function decimateMinMax(
+  series: readonly Float64Array[],
+  dtS: number,
+  maxPoints: number,
+): DecimatedSeries {
   if (!(dtS > 0)) throw new RangeError('dtS must be positive')
   if (!Number.isInteger(maxPoints) || maxPoints < 2) throw new RangeError('maxPoints must be an integer ≥ 2')
   const n = series[0]?.length ?? 0

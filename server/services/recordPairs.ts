@@ -19,26 +19,46 @@ const sameDt = (a: number, b: number) => Math.abs(a - b) <= 1e-9 * Math.max(a, b
  * differ, share the time step and the number of points, and sit in the same project; each
  * mismatch answers 400 naming it. Another firm's record answers 404.
  */
-export function createRecordPair(db: Db, member: Pick<Member, 'userId' | 'firmId'>, input: CreateRecordPairBody): RecordPair {
+export function createRecordPair(
+  db: Db,
+  member: Pick<Member, 'userId' | 'firmId'>,
+  input: CreateRecordPairBody,
+): RecordPair {
   const [id1, id2] = input.recordIds
   if (id1 === id2) throw badRequest('A pair needs two different records.', 'pair_same_record')
   const r1 = getRecord(db, member.firmId, id1)
   const r2 = getRecord(db, member.firmId, id2)
   for (const r of [r1, r2]) {
     if (r.component && VERTICAL_LABELS.has(r.component.trim().toLowerCase())) {
-      throw badRequest(`"${r.name}" is marked as component ${r.component} (vertical); a pair is two horizontal components.`, 'pair_not_horizontal')
+      throw badRequest(
+        `"${r.name}" is marked as component ${r.component} (vertical); a pair is two horizontal components.`,
+        'pair_not_horizontal',
+      )
     }
   }
   if (!sameDt(r1.dtS, r2.dtS)) {
-    throw badRequest(`The time steps differ: "${r1.name}" has Δt = ${r1.dtS} s and "${r2.name}" has Δt = ${r2.dtS} s.`, 'pair_dt_mismatch')
+    throw badRequest(
+      `The time steps differ: "${r1.name}" has Δt = ${r1.dtS} s and "${r2.name}" has Δt = ${r2.dtS} s.`,
+      'pair_dt_mismatch',
+    )
   }
   if (r1.points !== r2.points) {
-    throw badRequest(`The lengths differ: "${r1.name}" has ${r1.points} points and "${r2.name}" has ${r2.points}.`, 'pair_length_mismatch')
+    throw badRequest(
+      `The lengths differ: "${r1.name}" has ${r1.points} points and "${r2.name}" has ${r2.points}.`,
+      'pair_length_mismatch',
+    )
   }
   if (r1.projectId !== r2.projectId) {
-    throw badRequest(`The records are in different projects ("${r1.projectName}" and "${r2.projectName}"); pair records of one project.`, 'pair_project_mismatch')
+    throw badRequest(
+      `The records are in different projects ("${r1.projectName}" and "${r2.projectName}"); pair records of one project.`,
+      'pair_project_mismatch',
+    )
   }
-  const pair: RecordPair = { id: newId(), recordIds: [id1, id2], name: input.name ?? `${r1.name} + ${r2.name}` }
+  const pair: RecordPair = {
+    id: newId(),
+    recordIds: [id1, id2],
+    name: input.name ?? `${r1.name} + ${r2.name}`,
+  }
   db.transaction(
     (tx) => {
       const existing = tx
@@ -54,7 +74,8 @@ export function createRecordPair(db: Db, member: Pick<Member, 'userId' | 'firmId
           ),
         )
         .get()
-      if (existing) throw conflict(`These two records are already paired as "${existing.name}".`, 'pair_exists')
+      if (existing)
+        throw conflict(`These two records are already paired as "${existing.name}".`, 'pair_exists')
       tx.insert(recordPairs)
         .values({
           id: pair.id,

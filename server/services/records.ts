@@ -43,13 +43,18 @@ export interface CreateRecordInput {
  */
 function decodeText(bytes: Uint8Array): string {
   const encoding =
-    bytes[0] === 0xff && bytes[1] === 0xfe ? 'utf-16le' : bytes[0] === 0xfe && bytes[1] === 0xff ? 'utf-16be' : 'utf-8'
+    bytes[0] === 0xff && bytes[1] === 0xfe
+      ? 'utf-16le'
+      : bytes[0] === 0xfe && bytes[1] === 0xff
+        ? 'utf-16be'
+        : 'utf-8'
   return new TextDecoder(encoding).decode(bytes)
 }
 
 /** The form field a parse refusal concerns, so the upload form can show it there. */
 function fieldOfParseError(err: RecordParseError, input: CreateRecordInput): 'file' | 'units' | 'dtS' {
-  if (err.code === 'units_missing' || (err.code === 'units_conflict' && input.units !== undefined)) return 'units'
+  if (err.code === 'units_missing' || (err.code === 'units_conflict' && input.units !== undefined))
+    return 'units'
   if (err.code === 'dt_missing' || (err.code === 'dt_conflict' && input.dtS !== undefined)) return 'dtS'
   return 'file'
 }
@@ -71,7 +76,12 @@ function defaultName(fileName: string): string {
  * when the insert fails, a file this call created is removed again unless another record
  * already references the same hash.
  */
-export function createRecord(db: Db, dataDir: string, member: RecordUploader, input: CreateRecordInput): RecordInfo {
+export function createRecord(
+  db: Db,
+  dataDir: string,
+  member: RecordUploader,
+  input: CreateRecordInput,
+): RecordInfo {
   const project = resolveProject(db, member.firmId, input.projectId)
   let parsed
   try {
@@ -132,7 +142,13 @@ export function createRecord(db: Db, dataDir: string, member: RecordUploader, in
           action: 'record.uploaded',
           subjectType: 'record',
           subjectId: info.id,
-          detail: { name: info.name, sha256, fileName, points: info.points, synthetic: input.synthetic ?? false },
+          detail: {
+            name: info.name,
+            sha256,
+            fileName,
+            points: info.points,
+            synthetic: input.synthetic ?? false,
+          },
         })
       },
       { behavior: 'immediate' },
@@ -145,7 +161,9 @@ export function createRecord(db: Db, dataDir: string, member: RecordUploader, in
 }
 
 function hashInUse(db: Db, sha256: string): boolean {
-  return db.select({ id: records.id }).from(records).where(eq(records.sha256, sha256)).limit(1).get() !== undefined
+  return (
+    db.select({ id: records.id }).from(records).where(eq(records.sha256, sha256)).limit(1).get() !== undefined
+  )
 }
 
 const detailColumns = {
@@ -222,12 +240,22 @@ export function loadRecordSamples(
  * trapezoidal integration of the full record, then thinned to at most maxPoints by min/max
  * buckets so every peak survives.
  */
-export function recordSamplesForPlot(db: Db, firmId: string, recordId: string, maxPoints: number): RecordSamples {
+export function recordSamplesForPlot(
+  db: Db,
+  firmId: string,
+  recordId: string,
+  maxPoints: number,
+): RecordSamples {
   const { record, accelMPerS2 } = loadRecordSamples(db, firmId, recordId)
   const { velMPerS, dispM } = integrateRecord(accelMPerS2, record.dtS)
   const { timeS, series } = decimateMinMax([accelMPerS2, velMPerS, dispM], record.dtS, maxPoints)
   const [accel, vel, disp] = series as [Float64Array, Float64Array, Float64Array]
-  return { timeS: Array.from(timeS), accelMPerS2: Array.from(accel), velMPerS: Array.from(vel), dispM: Array.from(disp) }
+  return {
+    timeS: Array.from(timeS),
+    accelMPerS2: Array.from(accel),
+    velMPerS: Array.from(vel),
+    dispM: Array.from(disp),
+  }
 }
 
 /**
@@ -238,20 +266,31 @@ export function recordSamplesForPlot(db: Db, firmId: string, recordId: string, m
 export function removeRecord(db: Db, dataDir: string, member: Member, recordId: string): void {
   const record = getRecord(db, member.firmId, recordId)
   if (record.uploadedBy !== member.userId && !member.roles.includes('admin')) {
-    throw forbidden('Only the member who uploaded this record, or someone with the admin role, may delete it.')
+    throw forbidden(
+      'Only the member who uploaded this record, or someone with the admin role, may delete it.',
+    )
   }
   db.transaction(
     (tx) => {
       const pairIds = tx
         .select({ id: recordPairs.id })
         .from(recordPairs)
-        .where(and(eq(recordPairs.firmId, member.firmId), or(eq(recordPairs.record1Id, recordId), eq(recordPairs.record2Id, recordId))))
+        .where(
+          and(
+            eq(recordPairs.firmId, member.firmId),
+            or(eq(recordPairs.record1Id, recordId), eq(recordPairs.record2Id, recordId)),
+          ),
+        )
         .all()
         .map((p) => p.id)
       const usedBy = tx
         .select({ n: count() })
         .from(runs)
-        .where(pairIds.length ? or(eq(runs.recordId, recordId), inArray(runs.pairId, pairIds)) : eq(runs.recordId, recordId))
+        .where(
+          pairIds.length
+            ? or(eq(runs.recordId, recordId), inArray(runs.pairId, pairIds))
+            : eq(runs.recordId, recordId),
+        )
         .get()
       if ((usedBy?.n ?? 0) > 0) {
         throw conflict(

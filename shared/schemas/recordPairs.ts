@@ -4,7 +4,12 @@ import { idSchema } from './common.js'
 /** POST /api/record-pairs */
 export const createRecordPairBodySchema = z.strictObject({
   recordIds: z.tuple([idSchema, idSchema], { error: 'Give the ids of exactly two records.' }),
-  name: z.string().trim().min(1, 'The name cannot be blank.').max(200, 'Use at most 200 characters.').optional(),
+  name: z
+    .string()
+    .trim()
+    .min(1, 'The name cannot be blank.')
+    .max(200, 'Use at most 200 characters.')
+    .optional(),
 })
 export type CreateRecordPairBody = z.infer<typeof createRecordPairBodySchema>
 

@@ -1,4 +1,9 @@
-import { type CreateProjectBody, type Project, projectListSchema, projectSchema } from '../../shared/schemas/projects'
+import {
+  type CreateProjectBody,
+  type Project,
+  projectListSchema,
+  projectSchema,
+} from '../../shared/schemas/projects'
 import { apiRequest } from './client'
 
 export type { CreateProjectBody, Project } from '../../shared/schemas/projects'

@@ -25,8 +25,15 @@ export function getRecord(id: string): Promise<RecordDetail> {
 }
 
 /** `GET /api/records/:id/samples`: SI series, thinned to at most maxPoints with every peak kept. */
-export function getRecordSamples(id: string, maxPoints: number, signal?: AbortSignal): Promise<RecordSamples> {
-  return apiRequest(`/api/records/${encodeURIComponent(id)}/samples`, recordSamplesSchema, { query: { maxPoints }, signal })
+export function getRecordSamples(
+  id: string,
+  maxPoints: number,
+  signal?: AbortSignal,
+): Promise<RecordSamples> {
+  return apiRequest(`/api/records/${encodeURIComponent(id)}/samples`, recordSamplesSchema, {
+    query: { maxPoints },
+    signal,
+  })
 }
 
 /** `DELETE /api/records/:id`: the uploader or an admin; 409 while a run uses the record. */
@@ -64,7 +71,11 @@ function errorFromXhr(xhr: XMLHttpRequest): ApiError {
     const { code, message, line, issues } = parsed.data.error
     return new ApiError(xhr.status, code, message, { line, issues })
   }
-  return new ApiError(xhr.status, 'http_error', `The server answered ${xhr.status} ${xhr.statusText}`.trim() + '.')
+  return new ApiError(
+    xhr.status,
+    'http_error',
+    `The server answered ${xhr.status} ${xhr.statusText}`.trim() + '.',
+  )
 }
 
 /**
@@ -99,17 +110,27 @@ export function uploadRecord(input: UploadRecordInput, onProgress: (fraction: nu
       try {
         body = JSON.parse(xhr.responseText)
       } catch {
-        return reject(new ApiError(xhr.status, 'bad_response', 'The server sent an answer Ordinate could not read.'))
+        return reject(
+          new ApiError(xhr.status, 'bad_response', 'The server sent an answer Ordinate could not read.'),
+        )
       }
       const parsed = recordSchema.safeParse(body)
       if (!parsed.success) {
-        return reject(new ApiError(xhr.status, 'bad_response', 'The server sent an answer Ordinate did not expect.'))
+        return reject(
+          new ApiError(xhr.status, 'bad_response', 'The server sent an answer Ordinate did not expect.'),
+        )
       }
       onProgress(1)
       resolve(parsed.data)
     }
     xhr.onerror = () =>
-      reject(new ApiError(0, 'network', 'Ordinate could not reach its server. Check the connection and try again.'))
+      reject(
+        new ApiError(
+          0,
+          'network',
+          'Ordinate could not reach its server. Check the connection and try again.',
+        ),
+      )
     xhr.onabort = () => reject(new DOMException('The upload was cancelled.', 'AbortError'))
     xhr.send(form)
   })

@@ -50,7 +50,10 @@ export const useRecordsStore = defineStore('records', () => {
     current.value = null
     currentSamples.value = null
     try {
-      const [record, samples] = await Promise.all([recordsApi.getRecord(id), recordsApi.getRecordSamples(id, PLOT_POINTS)])
+      const [record, samples] = await Promise.all([
+        recordsApi.getRecord(id),
+        recordsApi.getRecordSamples(id, PLOT_POINTS),
+      ])
       current.value = record
       currentSamples.value = samples
     } catch (err) {

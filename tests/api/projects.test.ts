@@ -31,9 +31,15 @@ describe('GET /api/projects', () => {
 describe('POST /api/projects', () => {
   it('creates a project for an engineer, answers 201 and writes the audit log', async () => {
     const agent = await ctx.signIn('engineer@ordinate.test')
-    const res = await agent.post('/api/projects').send({ name: 'Harbour Pumping Station', description: 'Retrofit' })
+    const res = await agent
+      .post('/api/projects')
+      .send({ name: 'Harbour Pumping Station', description: 'Retrofit' })
     expect(res.status).toBe(201)
-    expect(res.body).toMatchObject({ name: 'Harbour Pumping Station', description: 'Retrofit', isDefault: false })
+    expect(res.body).toMatchObject({
+      name: 'Harbour Pumping Station',
+      description: 'Retrofit',
+      isDefault: false,
+    })
     const list = await agent.get('/api/projects')
     expect(list.body.items.map((p: { id: string }) => p.id)).toContain(res.body.id)
     const audit = ctx.db

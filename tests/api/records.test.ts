@@ -50,21 +50,26 @@ const column = (values: ArrayLike<number>) => Buffer.from(Array.from(values, (v)
 function fixturePeak(values: number[]): number {
   return Math.max(...values.map(Math.abs))
 }
-const fixtureValues = () =>
-  fixture('single-column.txt')
-    .toString()
-    .trim()
-    .split('\n')
-    .map(Number)
+const fixtureValues = () => fixture('single-column.txt').toString().trim().split('\n').map(Number)
 
 describe('POST /api/records', () => {
   describe('with each layout the parser reads', () => {
     const expectedPgaG = fixturePeak(fixtureValues())
 
     it('reads a single column, taking units and Δt from the form', async () => {
-      const res = await upload(engineer, fixture('single-column.txt'), 'single-column.txt', { units: 'g', dtS: 0.01, component: 'H1' })
+      const res = await upload(engineer, fixture('single-column.txt'), 'single-column.txt', {
+        units: 'g',
+        dtS: 0.01,
+        component: 'H1',
+      })
       expect(res.status).toBe(201)
-      expect(res.body).toMatchObject({ points: 200, dtS: 0.01, sourceUnits: 'g', component: 'H1', name: 'single-column' })
+      expect(res.body).toMatchObject({
+        points: 200,
+        dtS: 0.01,
+        sourceUnits: 'g',
+        component: 'H1',
+        name: 'single-column',
+      })
       expect(res.body.durationS).toBeCloseTo(1.99, 12)
       expect(res.body.pgaMPerS2).toBeCloseTo(expectedPgaG * G, 9)
     })
@@ -77,7 +82,9 @@ describe('POST /api/records', () => {
     })
 
     it('reads a time-value CSV without a header, units from the form', async () => {
-      const res = await upload(engineer, fixture('time-value-noheader.csv'), 'time-value-noheader.csv', { units: 'm/s2' })
+      const res = await upload(engineer, fixture('time-value-noheader.csv'), 'time-value-noheader.csv', {
+        units: 'm/s2',
+      })
       expect(res.status).toBe(201)
       expect(res.body).toMatchObject({ points: 200, sourceUnits: 'm/s2' })
       expect(res.body.dtS).toBeCloseTo(0.01, 12)
@@ -85,23 +92,51 @@ describe('POST /api/records', () => {
     })
 
     it('reads a headered file with several values per line, in cm/s²', async () => {
-      const res = await upload(engineer, fixture('headered-multicolumn.txt'), 'headered-multicolumn.txt', { name: 'Headered H1' })
+      const res = await upload(engineer, fixture('headered-multicolumn.txt'), 'headered-multicolumn.txt', {
+        name: 'Headered H1',
+      })
       expect(res.status).toBe(201)
       expect(res.body).toMatchObject({ name: 'Headered H1', points: 200, dtS: 0.01, sourceUnits: 'cm/s2' })
       // the values printed after the three header lines, in cm/s² (1 cm/s² = 0.01 m/s²)
-      const printed = fixture('headered-multicolumn.txt').toString().trim().split('\n').slice(3).join(' ').trim().split(/\s+/).map(Number)
+      const printed = fixture('headered-multicolumn.txt')
+        .toString()
+        .trim()
+        .split('\n')
+        .slice(3)
+        .join(' ')
+        .trim()
+        .split(/\s+/)
+        .map(Number)
       expect(printed).toHaveLength(200)
       expect(res.body.pgaMPerS2).toBeCloseTo(fixturePeak(printed) * 0.01, 12)
     })
   })
 
   it('answers exactly the fields of the issue, and warnings', async () => {
-    const res = await upload(checker, fixture('time-value-header.csv'), 'answer-shape.csv', { name: 'Shape check' })
+    const res = await upload(checker, fixture('time-value-header.csv'), 'answer-shape.csv', {
+      name: 'Shape check',
+    })
     expect(res.status).toBe(201)
     expect(Object.keys(res.body).sort()).toEqual(
       [
-        'id', 'name', 'projectId', 'points', 'dtS', 'durationS', 'sourceUnits', 'component', 'pgaMPerS2', 'pgvMPerS', 'pgdM',
-        'ariasMPerS', 'd595S', 'cavMPerS', 'sha256', 'uploadedBy', 'createdAt', 'warnings',
+        'id',
+        'name',
+        'projectId',
+        'points',
+        'dtS',
+        'durationS',
+        'sourceUnits',
+        'component',
+        'pgaMPerS2',
+        'pgvMPerS',
+        'pgdM',
+        'ariasMPerS',
+        'd595S',
+        'cavMPerS',
+        'sha256',
+        'uploadedBy',
+        'createdAt',
+        'warnings',
       ].sort(),
     )
     expect(res.body.uploadedBy).toBe(ctx.seed.userIds['checker@ordinate.test'])
@@ -126,14 +161,19 @@ describe('POST /api/records', () => {
 
   it('goes into the given project of the firm', async () => {
     const project = await engineer.post('/api/projects').send({ name: 'Upload target' })
-    const res = await upload(engineer, fixture('time-value-header.csv'), 'p.csv', { projectId: project.body.id })
+    const res = await upload(engineer, fixture('time-value-header.csv'), 'p.csv', {
+      projectId: project.body.id,
+    })
     expect(res.status).toBe(201)
     expect(res.body.projectId).toBe(project.body.id)
   })
 
   it('warns about a record that does not start near zero and drifts when integrated', async () => {
     // constant 0.1 g: starts at PGA and integrates to a runaway displacement
-    const res = await upload(engineer, column(new Float64Array(100).fill(0.1)), 'offset.txt', { units: 'g', dtS: 0.01 })
+    const res = await upload(engineer, column(new Float64Array(100).fill(0.1)), 'offset.txt', {
+      units: 'g',
+      dtS: 0.01,
+    })
     expect(res.status).toBe(201)
     expect(res.body.warnings.join(' ')).toMatch(/start/i)
     expect(res.body.warnings.join(' ')).toMatch(/displacement/i)
@@ -164,10 +204,36 @@ describe('POST /api/records', () => {
   })
 
   describe('refusals', () => {
-    const cases: { title: string; bytes: () => Buffer; fields?: Fields; code: string; line?: number; match: RegExp; field?: string }[] = [
-      { title: 'a non-numeric value', bytes: () => fixture('non-numeric-line7.csv'), code: 'record_non_numeric', line: 7, match: /not a number/ },
-      { title: 'a time column that goes backwards', bytes: () => fixture('time-backwards-line12.csv'), code: 'record_time_not_increasing', line: 12, match: /increase/ },
-      { title: 'a stated point count the file does not hold', bytes: () => fixture('points-mismatch-line3.txt'), code: 'record_points_mismatch', line: 3, match: /300 points/ },
+    const cases: {
+      title: string
+      bytes: () => Buffer
+      fields?: Fields
+      code: string
+      line?: number
+      match: RegExp
+      field?: string
+    }[] = [
+      {
+        title: 'a non-numeric value',
+        bytes: () => fixture('non-numeric-line7.csv'),
+        code: 'record_non_numeric',
+        line: 7,
+        match: /not a number/,
+      },
+      {
+        title: 'a time column that goes backwards',
+        bytes: () => fixture('time-backwards-line12.csv'),
+        code: 'record_time_not_increasing',
+        line: 12,
+        match: /increase/,
+      },
+      {
+        title: 'a stated point count the file does not hold',
+        bytes: () => fixture('points-mismatch-line3.txt'),
+        code: 'record_points_mismatch',
+        line: 3,
+        match: /300 points/,
+      },
       {
         title: 'a NaN value',
         bytes: () => Buffer.from('0.01\n0.02\nNaN\n' + '0\n'.repeat(30)),
@@ -219,7 +285,13 @@ describe('POST /api/records', () => {
         line: 3,
         match: /units/,
       },
-      { title: 'an empty file', bytes: () => Buffer.from(''), fields: { units: 'g', dtS: 0.01 }, code: 'record_empty', match: /empty/ },
+      {
+        title: 'an empty file',
+        bytes: () => Buffer.from(''),
+        fields: { units: 'g', dtS: 0.01 },
+        code: 'record_empty',
+        match: /empty/,
+      },
     ]
 
     for (const c of cases) {
@@ -240,7 +312,10 @@ describe('POST /api/records', () => {
     }
 
     it('refuses unknown units in the form field with 400 naming the field', async () => {
-      const res = await upload(engineer, fixture('single-column.txt'), 'x.txt', { units: 'furlongs', dtS: 0.01 })
+      const res = await upload(engineer, fixture('single-column.txt'), 'x.txt', {
+        units: 'furlongs',
+        dtS: 0.01,
+      })
       expect(res.status).toBe(400)
       expect(res.body.error.message).toMatch(/^units:/)
     })
@@ -260,7 +335,9 @@ describe('POST /api/records', () => {
     it('refuses another firm’s project with 404 and stores nothing', async () => {
       const theirs = await outsider.get('/api/projects')
       const filesBefore = storedOriginals().length
-      const res = await upload(engineer, fixture('time-value-header.csv'), 'x.csv', { projectId: theirs.body.items[0].id })
+      const res = await upload(engineer, fixture('time-value-header.csv'), 'x.csv', {
+        projectId: theirs.body.items[0].id,
+      })
       expect(res.status).toBe(404)
       expect(storedOriginals()).toHaveLength(filesBefore)
     })
@@ -268,7 +345,10 @@ describe('POST /api/records', () => {
     it('answers 400 for more than 2,000,000 points, naming the line, and stores nothing', async () => {
       const rowsBefore = recordRowCount()
       const filesBefore = storedOriginals().length
-      const res = await upload(engineer, Buffer.from('0\n'.repeat(2_000_001)), 'long.txt', { units: 'g', dtS: 0.005 })
+      const res = await upload(engineer, Buffer.from('0\n'.repeat(2_000_001)), 'long.txt', {
+        units: 'g',
+        dtS: 0.005,
+      })
       expect(res.status).toBe(400)
       expect(res.body.error.code).toBe('record_too_many_points')
       expect(res.body.error.line).toBe(2_000_001)
@@ -277,7 +357,10 @@ describe('POST /api/records', () => {
     })
 
     it('accepts exactly 2,000,000 points', async () => {
-      const res = await upload(engineer, Buffer.from('0\n'.repeat(1_999_999) + '0.001\n'), 'limit.txt', { units: 'g', dtS: 0.005 })
+      const res = await upload(engineer, Buffer.from('0\n'.repeat(1_999_999) + '0.001\n'), 'limit.txt', {
+        units: 'g',
+        dtS: 0.005,
+      })
       expect(res.status).toBe(201)
       expect(res.body.points).toBe(2_000_000)
     })
@@ -304,39 +387,62 @@ describe('createRecord', () => {
     const sha256 = createHash('sha256').update(bytes).digest('hex')
     // an uploader id that no user has: the foreign key refuses the row
     expect(() =>
-      createRecord(ctx.db, ctx.dataDir, { ...member(), userId: '00000000-0000-4000-8000-000000000000' }, {
-        bytes,
-        fileName: 'x.txt',
-        units: 'g',
-        dtS: 0.01,
-      }),
+      createRecord(
+        ctx.db,
+        ctx.dataDir,
+        { ...member(), userId: '00000000-0000-4000-8000-000000000000' },
+        {
+          bytes,
+          fileName: 'x.txt',
+          units: 'g',
+          dtS: 0.01,
+        },
+      ),
     ).toThrow()
     expect(storedOriginals()).not.toContain(sha256)
   })
 
   it('keeps an original that another record already references when a later insert fails', () => {
     const bytes = unique('shared original')
-    const first = createRecord(ctx.db, ctx.dataDir, member(), { bytes, fileName: 'x.txt', units: 'g', dtS: 0.01 })
+    const first = createRecord(ctx.db, ctx.dataDir, member(), {
+      bytes,
+      fileName: 'x.txt',
+      units: 'g',
+      dtS: 0.01,
+    })
     expect(() =>
-      createRecord(ctx.db, ctx.dataDir, { ...member(), userId: '00000000-0000-4000-8000-000000000000' }, {
-        bytes,
-        fileName: 'x.txt',
-        units: 'g',
-        dtS: 0.01,
-      }),
+      createRecord(
+        ctx.db,
+        ctx.dataDir,
+        { ...member(), userId: '00000000-0000-4000-8000-000000000000' },
+        {
+          bytes,
+          fileName: 'x.txt',
+          units: 'g',
+          dtS: 0.01,
+        },
+      ),
     ).toThrow()
     expect(storedOriginals()).toContain(first.sha256)
   })
 
   it('marks synthetic records', () => {
-    const rec = createRecord(ctx.db, ctx.dataDir, member(), { bytes: unique('synthetic'), fileName: 's.txt', units: 'g', dtS: 0.01, synthetic: true })
+    const rec = createRecord(ctx.db, ctx.dataDir, member(), {
+      bytes: unique('synthetic'),
+      fileName: 's.txt',
+      units: 'g',
+      dtS: 0.01,
+      synthetic: true,
+    })
     expect(ctx.db.select().from(records).where(eq(records.id, rec.id)).get()!.synthetic).toBe(true)
   })
 })
 
 describe('GET /api/records', () => {
   it('lists the firm’s records with project and uploader names', async () => {
-    const up = await upload(engineer, fixture('time-value-header.csv'), 'listed.csv', { name: 'Listed record' })
+    const up = await upload(engineer, fixture('time-value-header.csv'), 'listed.csv', {
+      name: 'Listed record',
+    })
     const res = await checker.get('/api/records')
     expect(res.status).toBe(200)
     const item = res.body.items.find((r: { id: string }) => r.id === up.body.id)
@@ -351,7 +457,9 @@ describe('GET /api/records', () => {
 
   it('filters by project', async () => {
     const project = await engineer.post('/api/projects').send({ name: 'Filter target' })
-    const up = await upload(engineer, fixture('time-value-header.csv'), 'f.csv', { projectId: project.body.id })
+    const up = await upload(engineer, fixture('time-value-header.csv'), 'f.csv', {
+      projectId: project.body.id,
+    })
     const res = await engineer.get('/api/records').query({ projectId: project.body.id })
     expect(res.body.items.map((r: { id: string }) => r.id)).toEqual([up.body.id])
   })
@@ -369,7 +477,12 @@ describe('GET /api/records/:id', () => {
     const up = await upload(engineer, fixture('time-value-header.csv'), 'one.csv')
     const res = await checker.get(`/api/records/${up.body.id}`)
     expect(res.status).toBe(200)
-    expect(res.body).toMatchObject({ id: up.body.id, sha256: up.body.sha256, warnings: up.body.warnings, format: 'time-value' })
+    expect(res.body).toMatchObject({
+      id: up.body.id,
+      sha256: up.body.sha256,
+      warnings: up.body.warnings,
+      format: 'time-value',
+    })
   })
 
   it('answers 404 to another firm', async () => {
@@ -386,7 +499,10 @@ describe('GET /api/records/:id', () => {
 describe('GET /api/records/:id/samples', () => {
   it('integrates a constant acceleration to v = a·t and d = a·t²/2 (closed form)', async () => {
     // 0.5 m/s² for 1 s at Δt = 0.01 s: the trapezoidal rule is exact for these polynomials
-    const up = await upload(engineer, column(new Float64Array(101).fill(0.5)), 'const.txt', { units: 'm/s2', dtS: 0.01 })
+    const up = await upload(engineer, column(new Float64Array(101).fill(0.5)), 'const.txt', {
+      units: 'm/s2',
+      dtS: 0.01,
+    })
     const res = await engineer.get(`/api/records/${up.body.id}/samples`)
     expect(res.status).toBe(200)
     const { timeS, accelMPerS2, velMPerS, dispM } = res.body
@@ -432,7 +548,11 @@ describe('DELETE /api/records/:id', () => {
     expect(res.status).toBe(204)
     expect((await engineer.get(`/api/records/${up.body.id}`)).status).toBe(404)
     expect(storedOriginals()).not.toContain(up.body.sha256)
-    const audit = ctx.db.select().from(auditLog).where(and(eq(auditLog.action, 'record.deleted'), eq(auditLog.subjectId, up.body.id))).all()
+    const audit = ctx.db
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.action, 'record.deleted'), eq(auditLog.subjectId, up.body.id)))
+      .all()
     expect(audit).toHaveLength(1)
   })
 
@@ -510,7 +630,9 @@ describe('DELETE /api/records/:id', () => {
 
 describe('record pairs', () => {
   const record = async (tag: string, points: number, dtS: number, component = 'H1') => {
-    const body = Buffer.from(`# ${tag}\n` + Array.from({ length: points }, (_, i) => `${0.01 * Math.sin(i)}`).join('\n'))
+    const body = Buffer.from(
+      `# ${tag}\n` + Array.from({ length: points }, (_, i) => `${0.01 * Math.sin(i)}`).join('\n'),
+    )
     const res = await upload(engineer, body, `${tag}.txt`, { units: 'g', dtS, component, name: tag })
     expect(res.status).toBe(201)
     return res.body as { id: string; name: string }
@@ -520,13 +642,21 @@ describe('record pairs', () => {
     it('pairs two horizontal records of one length and Δt, answering 201 { id, recordIds, name }', async () => {
       const h1 = await record('North-south', 400, 0.01)
       const h2 = await record('East-west', 400, 0.01, 'H2')
-      const res = await checker.post('/api/record-pairs').send({ recordIds: [h1.id, h2.id], name: 'Station pair' })
+      const res = await checker
+        .post('/api/record-pairs')
+        .send({ recordIds: [h1.id, h2.id], name: 'Station pair' })
       expect(res.status).toBe(201)
       expect(res.body).toEqual({ id: expect.any(String), recordIds: [h1.id, h2.id], name: 'Station pair' })
-      const audit = ctx.db.select().from(auditLog).where(and(eq(auditLog.action, 'record_pair.created'), eq(auditLog.subjectId, res.body.id))).all()
+      const audit = ctx.db
+        .select()
+        .from(auditLog)
+        .where(and(eq(auditLog.action, 'record_pair.created'), eq(auditLog.subjectId, res.body.id)))
+        .all()
       expect(audit).toHaveLength(1)
       const list = await engineer.get('/api/record-pairs')
-      expect(list.body.items.find((p: { id: string }) => p.id === res.body.id)).toMatchObject({ recordIds: [h1.id, h2.id] })
+      expect(list.body.items.find((p: { id: string }) => p.id === res.body.id)).toMatchObject({
+        recordIds: [h1.id, h2.id],
+      })
     })
 
     it('names the pair after its records when no name is given', async () => {

@@ -49,7 +49,9 @@ describe('the record library in the browser', () => {
 
     // A file that states its units (header row) and Δt (time column): neither field is asked for.
     await page.locator('#record-file').setInputFiles(fixture('time-value-header.csv'))
-    await expect(page.locator('[data-test="record-detected"]').innerText()).resolves.toMatch(/time and acceleration columns.*units g.*Δt = 0\.01 s/)
+    await expect(page.locator('[data-test="record-detected"]').innerText()).resolves.toMatch(
+      /time and acceleration columns.*units g.*Δt = 0\.01 s/,
+    )
     expect(await page.locator('[data-test="record-units-field"]').count()).toBe(0)
     expect(await page.locator('[data-test="record-dt-field"]').count()).toBe(0)
     await page.getByLabel('Name').fill('Browser upload H1')
@@ -72,7 +74,9 @@ describe('the record library in the browser', () => {
     const description = await plot.locator('desc').textContent()
     expect(description).toMatch(/200 samples/)
     expect(description).toMatch(/Acceleration.*Velocity.*Displacement/)
-    const sha256 = createHash('sha256').update(readFileSync(fixture('time-value-header.csv'))).digest('hex')
+    const sha256 = createHash('sha256')
+      .update(readFileSync(fixture('time-value-header.csv')))
+      .digest('hex')
     expect(await page.locator('[data-test="record-sha256"]').innerText()).toBe(sha256)
     await expect(page.locator('[data-test="record-parameters"]').innerText()).resolves.toMatch(/PGA/)
 
