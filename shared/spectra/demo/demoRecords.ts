@@ -228,6 +228,7 @@ const DEMO_RECIPES = [
       pulse: { centreS: 6, periodS: 1.6, widthS: 1.1, weight: 1.2 },
     },
     layout: (accel: Float64Array) => [
+      '# Ordinate demo record: synthetic near-fault pulse (synthetic, not a recording)',
       'time (s),acceleration (g)',
       ...Array.from(accel, (value, i) => `${(i * 0.005).toFixed(3)},${formatValue(value).trim()}`),
     ],

@@ -1,0 +1,76 @@
+import { z } from 'zod'
+import { runMethodSchema, runSettingsSchema } from './runs.js'
+import { methodStatementSchema } from './spectrumWorker.js'
+
+/**
+ * The spectrum of a record as JSON, SI units: what `npm run spectrum` prints and
+ * what the API answers for a run (with the run's `settings` added).
+ */
+
+export const sourceUnitsSchema = z.enum(['g', 'm/s2', 'cm/s2', 'in/s2'])
+
+const nonNegative = z.number().nonnegative()
+const series = z.array(nonNegative)
+
+/** The record's parameters; PSA at T = 0 is the PGA given here. */
+export const spectrumRecordSchema = z.object({
+  points: z.number().int().min(2),
+  dtS: z.number().positive(),
+  durationS: nonNegative,
+  sourceUnits: sourceUnitsSchema,
+  pgaMPerS2: nonNegative,
+  pgvMPerS: nonNegative,
+  pgdM: nonNegative,
+  ariasMPerS: nonNegative,
+  d595S: nonNegative,
+  cavMPerS: nonNegative,
+})
+export type SpectrumRecordSummary = z.infer<typeof spectrumRecordSchema>
+
+/** How two horizontal components were combined (absent for a single record). */
+export const spectrumCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'])
+export type SpectrumCombination = z.infer<typeof spectrumCombinationSchema>
+
+/** One damping ratio's ordinates, in the order of `periodsS`. Peak times are given for single records. */
+export const spectrumCurveSchema = z.object({
+  dampingRatio: z.number().min(0).lt(0.5),
+  combination: spectrumCombinationSchema.optional(),
+  sdM: series,
+  svMPerS: series,
+  saMPerS2: series,
+  psvMPerS: series,
+  psaMPerS2: series,
+  sdTimeS: series.optional(),
+  saTimeS: series.optional(),
+})
+export type SpectrumCurveJson = z.infer<typeof spectrumCurveSchema>
+
+const SERIES_KEYS = ['sdM', 'svMPerS', 'saMPerS2', 'psvMPerS', 'psaMPerS2', 'sdTimeS', 'saTimeS'] as const
+
+export const spectrumResultSchema = z
+  .object({
+    record: spectrumRecordSchema,
+    method: runMethodSchema,
+    methodStatement: methodStatementSchema,
+    /** Cautions about the record and the computation, none of them blocking. */
+    warnings: z.array(z.string()),
+    periodsS: z.array(z.number().positive()).min(1),
+    curves: z.array(spectrumCurveSchema).min(1),
+    /** The run's settings, when the API answers. */
+    settings: runSettingsSchema.optional(),
+  })
+  .superRefine((result, context) => {
+    result.curves.forEach((curve, index) => {
+      for (const key of SERIES_KEYS) {
+        const values = curve[key]
+        if (values && values.length !== result.periodsS.length) {
+          context.addIssue({
+            code: 'custom',
+            path: ['curves', index, key],
+            message: `${key} holds ${values.length} values for ${result.periodsS.length} periods.`,
+          })
+        }
+      }
+    })
+  })
+export type SpectrumResult = z.infer<typeof spectrumResultSchema>
