@@ -1,0 +1,162 @@
+/**
+ * `npm run bench:api`: the run API end to end, on the built server (node dist-server/server/index.js)
+ * with the compiled worker, a fresh database and the demo data.
+ *
+ * 1. Latency: POST /api/runs → succeeded (seen on the run's event stream) for the standard job of the
+ *    engine (the 8,001-point synthetic far-field demo record at Δt = 0.005 s, the default grid,
+ *    damping 0.02, 0.05, 0.10, 0.20), one run at a time; median over RUNS_LATENCY runs after warm-up.
+ *    Target: ≤ 250 ms.
+ * 2. Throughput: 50 runs of the same job posted at once, with WORKER_THREADS=1 against the full pool
+ *    (the available cores). Target: ≥ 1.7× on 2 cores.
+ *
+ * Prints the figures; asserts nothing (speed belongs here, not in tests).
+ */
+import { mkdtempSync, rmSync } from 'node:fs'
+import { availableParallelism, tmpdir } from 'node:os'
+import path from 'node:path'
+import Database from 'better-sqlite3'
+import { startServer } from '../tests/e2e/harness.js'
+
+const RUNS_LATENCY = Number(process.env.BENCH_RUNS ?? 21)
+const WARM_UP = 2
+const BURST = Number(process.env.BENCH_BURST ?? 50)
+const STANDARD_JOB = { dampingRatios: [0.02, 0.05, 0.1, 0.2] }
+const CLIENT = { 'x-ordinate-client': '1' }
+
+interface Session {
+  base: string
+  cookie: string
+  recordId: string
+}
+
+async function signIn(base: string): Promise<Session> {
+  const res = await fetch(`${base}/api/auth/sign-in`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', ...CLIENT },
+    body: JSON.stringify({ email: 'engineer@ordinate.test', password: 'ordinate-demo' }),
+  })
+  if (!res.ok) throw new Error(`sign-in failed: ${res.status}`)
+  const cookie = res.headers.get('set-cookie')?.split(';')[0] ?? ''
+  const records = (await (await fetch(`${base}/api/records`, { headers: { cookie } })).json()) as {
+    items: { id: string; points: number; dtS: number }[]
+  }
+  const standard = records.items.find((r) => r.points === 8001 && r.dtS === 0.005)
+  if (!standard) throw new Error('the 8,001-point demo record is not in the demo data')
+  return { base, cookie, recordId: standard.id }
+}
+
+async function postRun(s: Session): Promise<string> {
+  const res = await fetch(`${s.base}/api/runs`, {
+    method: 'POST',
+    headers: { 'content-type': 'application/json', cookie: s.cookie, ...CLIENT },
+    body: JSON.stringify({ recordId: s.recordId, ...STANDARD_JOB }),
+  })
+  const body = (await res.json()) as { id?: string; error?: { message: string } }
+  if (res.status !== 202 || !body.id)
+    throw new Error(`POST /api/runs answered ${res.status}: ${body.error?.message}`)
+  return body.id
+}
+
+/** Reads the run's event stream until its final status. */
+async function untilFinished(s: Session, runId: string): Promise<string> {
+  const res = await fetch(`${s.base}/api/runs/${runId}/events`, { headers: { cookie: s.cookie } })
+  const reader = res.body!.getReader()
+  const decoder = new TextDecoder()
+  let text = ''
+  for (;;) {
+    const { value, done } = await reader.read()
+    if (value) text += decoder.decode(value, { stream: true })
+    const final = /"status":"(succeeded|failed)"/.exec(text)
+    if (final?.[1]) {
+      await reader.cancel()
+      return final[1]
+    }
+    if (done) throw new Error(`the event stream of run ${runId} ended without a final status`)
+  }
+}
+
+async function withServer<T>(workerThreads: number | undefined, fn: (s: Session) => Promise<T>): Promise<T> {
+  const dir = mkdtempSync(path.join(tmpdir(), 'ordinate-bench-'))
+  const databasePath = path.join(dir, 'ordinate.sqlite')
+  const env: Record<string, string> = {
+    NODE_ENV: 'production',
+    DEMO_DATA: '1',
+    DATA_DIR: dir,
+    DATABASE_PATH: databasePath,
+  }
+  if (workerThreads !== undefined) env.WORKER_THREADS = String(workerThreads)
+  const server = await startServer(env)
+  try {
+    const session = await signIn(server.url)
+    // Enough credits for the whole bench: one grant row in the firm's ledger.
+    const db = new Database(databasePath)
+    db.pragma('busy_timeout = 5000')
+    db.prepare(
+      `insert into credit_ledger (firm_id, delta, kind, note, created_at)
+       select firm_id, 1000, 'grant', 'benchmark', ? from records where id = ?`,
+    ).run(Date.now(), session.recordId)
+    db.close()
+    return await fn(session)
+  } finally {
+    await server.stop()
+    rmSync(dir, { recursive: true, force: true })
+  }
+}
+
+const median = (values: number[]) => {
+  const sorted = [...values].sort((a, b) => a - b)
+  const mid = Math.floor(sorted.length / 2)
+  return sorted.length % 2 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2
+}
+const ms = (v: number) => `${v.toFixed(0)} ms`
+
+async function latency(s: Session): Promise<number[]> {
+  const times: number[] = []
+  for (let i = 0; i < WARM_UP + RUNS_LATENCY; i++) {
+    const t0 = performance.now()
+    const id = await postRun(s)
+    const status = await untilFinished(s, id)
+    const elapsed = performance.now() - t0
+    if (status !== 'succeeded') throw new Error(`run ${id} ${status}`)
+    if (i >= WARM_UP) times.push(elapsed)
+  }
+  return times
+}
+
+async function burst(s: Session): Promise<number> {
+  // Warm the threads first, so both measurements start from running workers.
+  await untilFinished(s, await postRun(s))
+  const t0 = performance.now()
+  const ids = await Promise.all(Array.from({ length: BURST }, () => postRun(s)))
+  const statuses = await Promise.all(ids.map((id) => untilFinished(s, id)))
+  const elapsed = performance.now() - t0
+  const failed = statuses.filter((st) => st !== 'succeeded').length
+  if (failed) throw new Error(`${failed} of ${BURST} runs failed`)
+  return elapsed
+}
+
+async function main() {
+  const cores = availableParallelism()
+  console.log(`Run API benchmark: compiled server, ${cores} available core(s), Node ${process.version}`)
+  console.log(
+    `Standard job: 8,001-point demo record at Δt = 0.005 s, 301 default periods, damping 0.02/0.05/0.10/0.20\n`,
+  )
+
+  const times = await withServer(undefined, latency)
+  console.log(`POST → succeeded, one run at a time, ${times.length} runs after ${WARM_UP} warm-up:`)
+  console.log(
+    `  median ${ms(median(times))}   min ${ms(Math.min(...times))}   max ${ms(Math.max(...times))}   (target ≤ 250 ms)\n`,
+  )
+
+  const single = await withServer(1, burst)
+  const pooled = await withServer(undefined, burst)
+  console.log(`${BURST} runs posted at once:`)
+  console.log(`  1 worker thread:   ${ms(single)}  (${((BURST * 1000) / single).toFixed(2)} runs/s)`)
+  console.log(`  ${cores} worker threads:  ${ms(pooled)}  (${((BURST * 1000) / pooled).toFixed(2)} runs/s)`)
+  console.log(`  speed-up ${(single / pooled).toFixed(2)}×  (target ≥ 1.7× on 2 cores)`)
+}
+
+main().catch((err: unknown) => {
+  console.error(err instanceof Error ? err.message : err)
+  process.exit(1)
+})
