@@ -15,6 +15,7 @@ import { authRouter } from './routes/auth.js'
 import { comparisonsRouter } from './routes/comparisons.js'
 import { creditsRouter } from './routes/credits.js'
 import { devMailboxRouter } from './routes/devMailbox.js'
+import { exportsRouter } from './routes/exports.js'
 import { healthRouter } from './routes/health.js'
 import { invitationsRouter } from './routes/invitations.js'
 import { membersRouter } from './routes/members.js'
@@ -85,6 +86,7 @@ export function createApp(deps: AppDeps) {
   api.use(targetsRouter(deps))
   api.use(comparisonsRouter(deps))
   api.use(reviewsRouter(deps))
+  api.use(exportsRouter(deps))
 
   api.use((req, _res, next) => next(notFound(`The API route ${req.method} ${req.baseUrl}${req.path}`)))
   app.use('/api', api)

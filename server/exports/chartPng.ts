@@ -8,7 +8,7 @@ import { crc32 } from 'node:zlib'
 import { Resvg } from '@resvg/resvg-js'
 import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
 import type { SpectrumChartInput } from '../../shared/schemas/sheets.js'
-import { EXPORT_FONT_FAMILY, exportFontFiles } from './exportFonts.js'
+import { EXPORT_FONT_FAMILY, exportFontFiles, printableDeep } from './exportFonts.js'
 
 export const PNG_DPI = 300
 const CSS_PX_PER_INCH = 96
@@ -53,7 +53,8 @@ function withDensity(png: Buffer, dpi: number): Buffer {
 /** The plot at `widthMm` printed width, 300 dpi. */
 export function renderChartPng(chart: SpectrumChartInput, widthMm: number): Buffer {
   const fonts = exportFontFiles()
-  const svg = spectrumChartSvg(chart.data, { ...chart.options, ...printLayout(widthMm) })
+  const printable = printableDeep(chart)
+  const svg = spectrumChartSvg(printable.data, { ...printable.options, ...printLayout(widthMm) })
   const resvg = new Resvg(svg, {
     font: {
       loadSystemFonts: false,

@@ -11,7 +11,7 @@ import SVGtoPDF from 'svg-to-pdfkit'
 import { palette } from '../../shared/charts/palette.js'
 import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
 import type { Sheet, SheetField, SheetTable } from '../../shared/schemas/sheets.js'
-import { exportFontFiles } from './exportFonts.js'
+import { exportFontFiles, printableDeep } from './exportFonts.js'
 
 type Doc = PDFKit.PDFDocument
 
@@ -30,7 +30,6 @@ const REGULAR = 'Sans'
 const SEMIBOLD = 'Sans-Semibold'
 
 const BODY_SIZE = 9
-const LABEL_SIZE = 7
 
 /** Lays content down the page, starting a new page when the next block does not fit. */
 class SheetWriter {
@@ -59,9 +58,10 @@ class SheetWriter {
     this.y = doc.y + 8
   }
 
-  heading(number: number, text: string) {
+  /** A numbered section heading, kept on one page with the first `keepWithPt` of what follows. */
+  heading(number: number, text: string, keepWithPt = 40) {
     const { doc } = this
-    this.ensure(40)
+    this.ensure(keepWithPt + 30)
     this.y += 6
     doc.font(SEMIBOLD).fontSize(10.5).fillColor(palette.ink)
     doc.text(`${number}  ${text}`, LEFT, this.y, { width: WIDTH })
@@ -120,52 +120,61 @@ class SheetWriter {
     this.y += height + 4
   }
 
+  /** A table whose cells wrap; the header is repeated on each page the table runs onto. */
   table(table: SheetTable) {
     const { doc } = this
-    const firstWidth = 92
-    const cellWidth = Math.min(76, (WIDTH - firstWidth) / Math.max(1, table.columns.length - 1))
-    const rowHeight = 12.5
-    const tableWidth = firstWidth + cellWidth * (table.columns.length - 1)
+    const columns = table.columns.length
+    const firstWidth = columns > 6 ? 92 : 150
+    const cellWidth = Math.min(
+      columns > 2 ? 76 : WIDTH - firstWidth,
+      (WIDTH - firstWidth) / Math.max(1, columns - 1),
+    )
+    const tableWidth = firstWidth + cellWidth * (columns - 1)
     const columnX = (i: number) => (i === 0 ? LEFT : LEFT + firstWidth + (i - 1) * cellWidth)
+    const columnWidth = (i: number) => (i === 0 ? firstWidth : cellWidth) - 6
+    const align = (i: number) => (i === 0 ? 'left' : 'right')
+    const rowHeight = (cells: string[]) =>
+      Math.max(...cells.map((cell, i) => doc.heightOfString(cell, { width: columnWidth(i) }))) + 5
     const header = () => {
       doc.font(SEMIBOLD).fontSize(8).fillColor(palette.text)
-      const heights = table.columns.map((c, i) =>
-        doc.heightOfString(c, { width: (i === 0 ? firstWidth : cellWidth) - 6 }),
-      )
-      const height = Math.max(...heights) + 4
+      const height = rowHeight(table.columns)
       table.columns.forEach((c, i) => {
-        doc.text(c, columnX(i) + 3, this.y + 2, {
-          width: (i === 0 ? firstWidth : cellWidth) - 6,
-          align: i === 0 ? 'left' : 'right',
-        })
+        doc.text(c, columnX(i) + 3, this.y + 2, { width: columnWidth(i), align: align(i) })
       })
       this.y += height
-      doc.moveTo(LEFT, this.y).lineTo(LEFT + tableWidth, this.y).lineWidth(0.8).strokeColor(palette.ink).stroke()
+      doc
+        .moveTo(LEFT, this.y)
+        .lineTo(LEFT + tableWidth, this.y)
+        .lineWidth(0.8)
+        .strokeColor(palette.ink)
+        .stroke()
     }
     this.subheading(table.title)
-    this.ensure(rowHeight * 3)
+    this.ensure(40)
     header()
     table.rows.forEach((row, r) => {
-      if (this.y + rowHeight > CONTENT_BOTTOM) {
+      const cells = [row.label, ...row.cells]
+      doc.font(row.emphasis ? SEMIBOLD : REGULAR).fontSize(8)
+      const height = rowHeight(cells)
+      if (this.y + height > CONTENT_BOTTOM) {
         doc.addPage()
         this.y = CONTENT_TOP
         header()
+        doc.font(row.emphasis ? SEMIBOLD : REGULAR).fontSize(8)
       }
-      if (r % 2 === 1) {
-        doc.rect(LEFT, this.y, tableWidth, rowHeight).fillColor(palette.paper).fill()
-      }
-      doc.font(row.emphasis ? SEMIBOLD : REGULAR).fontSize(8).fillColor(palette.text)
-      const cells = [row.label, ...row.cells]
+      if (r % 2 === 1) doc.rect(LEFT, this.y, tableWidth, height).fillColor(palette.paper).fill()
+      doc.fillColor(palette.text)
       cells.forEach((cell, i) => {
-        doc.text(cell, columnX(i) + 3, this.y + 2.5, {
-          width: (i === 0 ? firstWidth : cellWidth) - 6,
-          align: i === 0 ? 'left' : 'right',
-          lineBreak: false,
-        })
+        doc.text(cell, columnX(i) + 3, this.y + 2.5, { width: columnWidth(i), align: align(i) })
       })
-      this.y += rowHeight
+      this.y += height
     })
-    doc.moveTo(LEFT, this.y).lineTo(LEFT + tableWidth, this.y).lineWidth(0.5).strokeColor(palette.ruleStrong).stroke()
+    doc
+      .moveTo(LEFT, this.y)
+      .lineTo(LEFT + tableWidth, this.y)
+      .lineWidth(0.5)
+      .strokeColor(palette.ruleStrong)
+      .stroke()
     this.y += 4
     for (const note of table.notes) {
       doc.font(REGULAR).fontSize(7.5).fillColor(palette.textMuted)
@@ -214,8 +223,9 @@ function drawCell(doc: Doc, cell: Cell) {
   doc.font(REGULAR).fontSize(6).fillColor(palette.textMuted)
   doc.text(cell.label.toUpperCase(), cell.x + 4, cell.y + 3, {
     width: cell.width - 8,
+    height: 7,
     characterSpacing: 0.4,
-    lineBreak: false,
+    ellipsis: true,
   })
   doc.font(REGULAR).fontSize(8.5).fillColor(palette.text)
   doc.text(cell.value, cell.x + 4, cell.y + 11, {
@@ -240,8 +250,14 @@ function drawTitleBlock(doc: Doc, sheet: Sheet, page: number, pages: number) {
   doc.font(SEMIBOLD).fontSize(12).fillColor(palette.surface)
   doc.text(sheet.product.name, LEFT + 8, top + 9, { width: brandWidth - 16, lineBreak: false })
   doc.font(REGULAR).fontSize(7.5).fillColor(palette.inkSoft)
-  doc.text(`version ${sheet.product.version}`, LEFT + 8, top + 26, { width: brandWidth - 16, lineBreak: false })
-  doc.text('calculation aid', LEFT + 8, top + TITLE_BLOCK_HEIGHT - 16, { width: brandWidth - 16, lineBreak: false })
+  doc.text(`version ${sheet.product.version}`, LEFT + 8, top + 26, {
+    width: brandWidth - 16,
+    lineBreak: false,
+  })
+  doc.text('calculation aid', LEFT + 8, top + TITLE_BLOCK_HEIGHT - 16, {
+    width: brandWidth - 16,
+    lineBreak: false,
+  })
 
   const w = (f: number) => rest * f
   const rows: Array<Array<{ label: string; value: string; fraction: number }>> = [
@@ -251,14 +267,26 @@ function drawTitleBlock(doc: Doc, sheet: Sheet, page: number, pages: number) {
       { label: 'Sheet', value: sheet.reference, fraction: 0.24 },
     ],
     [
-      { label: 'Title', value: sheet.title, fraction: 0.58 },
-      { label: sheet.dateLabel, value: sheet.dateText, fraction: 0.18 },
+      { label: 'Title', value: sheet.title, fraction: 0.52 },
+      {
+        label: sheet.review.state === 'checked' ? 'Date of check' : 'Date, not checked',
+        value: sheet.dateText,
+        fraction: 0.24,
+      },
       { label: 'Revision', value: String(sheet.revision), fraction: 0.1 },
       { label: 'Page', value: `${page} of ${pages}`, fraction: 0.14 },
     ],
     [
-      { label: 'Prepared by', value: joinNameDate(sheet.review.preparedBy, sheet.review.preparedOn), fraction: 0.38 },
-      { label: 'Checked by', value: joinNameDate(sheet.review.checkedBy, sheet.review.checkedOn), fraction: 0.38 },
+      {
+        label: 'Prepared by',
+        value: joinNameDate(sheet.review.preparedBy, sheet.review.preparedOn),
+        fraction: 0.38,
+      },
+      {
+        label: 'Checked by',
+        value: joinNameDate(sheet.review.checkedBy, sheet.review.checkedOn),
+        fraction: 0.38,
+      },
       { label: 'Review state', value: sheet.review.stateLabel, fraction: 0.24 },
     ],
   ]
@@ -266,7 +294,14 @@ function drawTitleBlock(doc: Doc, sheet: Sheet, page: number, pages: number) {
     let x = x0
     for (const cell of row) {
       const width = w(cell.fraction)
-      drawCell(doc, { label: cell.label, value: cell.value, x, y: top + r * rowHeight, width, height: rowHeight })
+      drawCell(doc, {
+        label: cell.label,
+        value: cell.value,
+        x,
+        y: top + r * rowHeight,
+        width,
+        height: rowHeight,
+      })
       x += width
     }
   })
@@ -287,12 +322,18 @@ function drawHeader(doc: Doc, sheet: Sheet) {
     HEADER_TOP,
     { width: WIDTH, align: 'right', lineBreak: false },
   )
-  doc.moveTo(LEFT, HEADER_TOP + 13).lineTo(RIGHT, HEADER_TOP + 13).lineWidth(1.2).strokeColor(palette.ink).stroke()
+  doc
+    .moveTo(LEFT, HEADER_TOP + 13)
+    .lineTo(RIGHT, HEADER_TOP + 13)
+    .lineWidth(1.2)
+    .strokeColor(palette.ink)
+    .stroke()
 }
 
 /** Renders the sheet; the same sheet gives the same bytes. */
-export async function renderSheetPdf(sheet: Sheet): Promise<Buffer> {
+export async function renderSheetPdf(sheetModel: Sheet): Promise<Buffer> {
   const fonts = exportFontFiles()
+  const sheet = printableDeep(sheetModel)
   const date = new Date(sheet.dateMs)
   const doc = new PDFDocument({
     size: 'A4',
@@ -320,7 +361,10 @@ export async function renderSheetPdf(sheet: Sheet): Promise<Buffer> {
   doc.registerFont(SEMIBOLD, fonts.semibold)
 
   const writer = new SheetWriter(doc)
-  writer.title(sheet.title, `${sheet.dateLabel}: ${sheet.dateText} · revision ${sheet.revision} · ${sheet.reference}`)
+  writer.title(
+    sheet.title,
+    `${sheet.dateLabel}: ${sheet.dateText} · revision ${sheet.revision} · ${sheet.reference}`,
+  )
   let section = 0
   sheet.records.forEach((record, i) => {
     if (i === 0) writer.heading(++section, sheet.records.length > 1 ? 'Records' : 'Record')
@@ -330,16 +374,17 @@ export async function renderSheetPdf(sheet: Sheet): Promise<Buffer> {
   })
   writer.heading(++section, 'Method')
   writer.fields(sheet.method)
-  writer.heading(++section, 'Spectrum')
-  const svg = spectrumChartSvg(sheet.chart.data, sheet.chart.options)
-  writer.chart(svg, sheet.chart.options.widthPx ?? 720, sheet.chart.options.heightPx ?? 440)
+  const chartWidthPx = sheet.chart.options.widthPx ?? 720
+  const chartHeightPx = sheet.chart.options.heightPx ?? 440
+  writer.heading(++section, 'Spectrum', (WIDTH * chartHeightPx) / chartWidthPx)
+  writer.chart(spectrumChartSvg(sheet.chart.data, sheet.chart.options), chartWidthPx, chartHeightPx)
   if (sheet.comparison) {
     writer.heading(++section, 'Target and scaling')
     writer.fields(sheet.comparison.target)
     writer.gap(3)
     writer.fields(sheet.comparison.scaling)
   }
-  writer.heading(++section, 'Ordinates')
+  writer.heading(++section, sheet.kind === 'run' ? 'Ordinates' : 'Scale factors and ordinates')
   for (const table of sheet.tables) writer.table(table)
   if (sheet.warnings.length > 0) {
     writer.heading(++section, 'Warnings on the input')

@@ -21,9 +21,7 @@ export const chartSeriesSchema = z.object({
 export const spectrumChartInputSchema = z.object({
   data: z.object({
     series: z.array(chartSeriesSchema),
-    band: z
-      .object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers })
-      .optional(),
+    band: z.object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers }).optional(),
   }),
   options: z.object({
     quantity: z.enum(['PSA', 'SA', 'PSV', 'SV', 'SD']),
@@ -34,9 +32,7 @@ export const spectrumChartInputSchema = z.object({
     heightPx: z.number().optional(),
     title: z.string().optional(),
     note: z.string().optional(),
-    periodRange: z
-      .object({ minS: z.number(), maxS: z.number(), label: z.string().optional() })
-      .optional(),
+    periodRange: z.object({ minS: z.number(), maxS: z.number(), label: z.string().optional() }).optional(),
     xDomainS: z.tuple([z.number(), z.number()]).optional(),
     yDomain: z.tuple([z.number(), z.number()]).optional(),
     id: z.string().optional(),
@@ -52,7 +48,9 @@ export type SheetField = z.infer<typeof sheetFieldSchema>
 export const sheetTableSchema = z.object({
   title: z.string(),
   columns: z.array(z.string()),
-  rows: z.array(z.object({ label: z.string(), cells: z.array(z.string()), emphasis: z.boolean().optional() })),
+  rows: z.array(
+    z.object({ label: z.string(), cells: z.array(z.string()), emphasis: z.boolean().optional() }),
+  ),
   notes: z.array(z.string()),
 })
 export type SheetTable = z.infer<typeof sheetTableSchema>
@@ -97,9 +95,7 @@ export const sheetSchema = z.object({
   chart: spectrumChartInputSchema,
   /** Ordinates at the standard periods, then any comparison tables. */
   tables: z.array(sheetTableSchema),
-  comparison: z
-    .object({ target: z.array(sheetFieldSchema), scaling: z.array(sheetFieldSchema) })
-    .nullable(),
+  comparison: z.object({ target: z.array(sheetFieldSchema), scaling: z.array(sheetFieldSchema) }).nullable(),
   review: sheetReviewSchema,
   warnings: z.array(z.string()),
   cautions: z.array(z.string()),

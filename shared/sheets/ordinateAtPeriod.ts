@@ -8,9 +8,7 @@
 import { interpolateLogLog } from '../spectra/suite.js'
 
 /** The periods a calc-package table reads, in seconds (issue 8); T = 0 stands for the PGA. */
-export const STANDARD_PERIODS_S: readonly number[] = [
-  0.05, 0.1, 0.2, 0.3, 0.5, 0.75, 1, 1.5, 2, 3, 4, 5,
-]
+export const STANDARD_PERIODS_S: readonly number[] = [0.05, 0.1, 0.2, 0.3, 0.5, 0.75, 1, 1.5, 2, 3, 4, 5]
 
 /** Two periods closer than this, relatively, are the same grid period. */
 const SAME_PERIOD_RELATIVE = 1e-9

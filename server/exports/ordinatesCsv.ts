@@ -1,0 +1,106 @@
+/**
+ * Every ordinate of a run or a comparison as CSV: a few `#` lines saying what produced the
+ * numbers, a header row, then one row per period (ascending). Numbers are written in full
+ * (shortest round-trip form), so the file holds exactly what the API answers.
+ */
+import type { RunSpectrumLike } from '../../shared/charts/runSpectrumChartInput.js'
+import type { ComparisonView } from '../../shared/schemas/comparisons.js'
+import type { Sheet } from '../../shared/schemas/sheets.js'
+
+/**
+ * A text cell: quoted when it holds a separator, and kept from being read as a formula by
+ * a spreadsheet when it starts with = + - @ (OWASP, "CSV Injection").
+ */
+export function csvText(text: string): string {
+  const safe = /^[=+\-@\t\r]/.test(text) ? `'${text}` : text
+  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
+}
+
+const csvNumber = (value: number | null | undefined) =>
+  value === null || value === undefined || !Number.isFinite(value) ? '' : String(value)
+
+function provenance(sheet: Sheet, extra: string[]): string[] {
+  return [
+    `${sheet.product.name} ${sheet.product.version}`,
+    `${sheet.title}`,
+    `${sheet.reference} revision ${sheet.revision}; ${sheet.dateLabel} ${sheet.dateText}; ${sheet.review.stateLabel}`,
+    `${sheet.firmName}; ${sheet.projectName}`,
+    ...extra,
+    'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.',
+  ].map((line) => `# ${line.replace(/[\r\n]+/g, ' ')}`)
+}
+
+function table(header: string[], rows: Array<Array<number | null | undefined>>): string[] {
+  return [header.map(csvText).join(','), ...rows.map((row) => row.map(csvNumber).join(','))]
+}
+
+const finish = (lines: string[]) => `${lines.join('\r\n')}\r\n`
+
+const QUANTITIES = [
+  ['sd_m', 'sdM'],
+  ['sv_m_per_s', 'svMPerS'],
+  ['sa_m_per_s2', 'saMPerS2'],
+  ['psv_m_per_s', 'psvMPerS'],
+  ['psa_m_per_s2', 'psaMPerS2'],
+] as const
+
+/** SD, SV, SA, PSV and PSA in SI for every curve of a run, and PSA in g. */
+export function runOrdinatesCsv(sheet: Sheet, spectrum: RunSpectrumLike, gravityMPerS2: number): string {
+  const periods = Array.from(spectrum.periodsS)
+  const order = periods.map((_, i) => i).sort((a, b) => (periods[a] as number) - (periods[b] as number))
+  const suffix = (c: RunSpectrumLike['curves'][number]) =>
+    `_zeta${c.dampingRatio}${c.combination ? `_${c.combination}` : ''}`
+  const header = ['period_s']
+  for (const curve of spectrum.curves) {
+    for (const [name] of QUANTITIES) header.push(`${name}${suffix(curve)}`)
+    header.push(`psa_g${suffix(curve)}`)
+  }
+  const rows = order.map((i) => {
+    const row: number[] = [periods[i] as number]
+    for (const curve of spectrum.curves) {
+      for (const [, key] of QUANTITIES) row.push(curve[key][i] as number)
+      row.push((curve.psaMPerS2[i] as number) / gravityMPerS2)
+    }
+    return row
+  })
+  const sha = sheet.records.map((r) => r.fields.find((f) => f.label.startsWith('SHA-256'))?.value ?? '')
+  return finish([
+    ...provenance(sheet, [
+      `Record: ${sheet.records.map((r) => r.name).join(' + ')}; SHA-256 ${sha.join(' + ')}`,
+      `g = ${gravityMPerS2} m/s2; zeta is the damping ratio; SI units unless the column says g`,
+    ]),
+    ...table(header, rows),
+  ])
+}
+
+/** Each record's PSA (g) as recorded and as scaled, the suite statistics and the target. */
+export function comparisonOrdinatesCsv(sheet: Sheet, view: ComparisonView): string {
+  const suite = view.suite.scaled ?? view.suite.unscaled
+  const columns: Array<{ name: string; values: Array<number | null> }> = []
+  for (const curve of view.curves) {
+    columns.push({ name: `psa_g ${curve.label}`, values: curve.psaG })
+    if (curve.scaleFactor !== null) {
+      const factor = curve.scaleFactor
+      columns.push({
+        name: `psa_g scaled x${factor} ${curve.label}`,
+        values: curve.psaG.map((v) => (v === null ? null : v * factor)),
+      })
+    }
+  }
+  columns.push({ name: `psa_g ${suite.label.replace(' ± 1σ', '')}`.toLowerCase(), values: suite.meanG })
+  if (suite.lowerG && suite.upperG) {
+    columns.push({ name: 'psa_g mean minus 1 sigma', values: suite.lowerG })
+    columns.push({ name: 'psa_g mean plus 1 sigma', values: suite.upperG })
+  }
+  if (view.target) {
+    columns.push({ name: `sa_g target ${view.target.label}`, values: view.target.saG })
+    columns.push({ name: 'sa_g 90% of target', values: view.target.target90G })
+  }
+  const rows = view.periodsS.map((t, i) => [t, ...columns.map((c) => c.values[i])])
+  return finish([
+    ...provenance(sheet, [
+      `${view.labels.damping}; ${view.labels.mean}${view.scaling ? `; ${view.scaling.ruleLabel} over ${view.scaling.fromS}-${view.scaling.toS} s` : ''}`,
+    ]),
+    ...table(['period_s', ...columns.map((c) => c.name)], rows),
+  ])
+}

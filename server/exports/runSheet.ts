@@ -1,0 +1,263 @@
+/**
+ * The calc-package sheet of one run, from facts already loaded (server/services/exports.ts
+ * loads them). Pure: the same facts give the same sheet, which is what makes a checked
+ * sheet reproducible.
+ */
+import {
+  type RunSpectrumLike,
+  type SpectrumView,
+  DEFAULT_SPECTRUM_VIEW,
+  runSpectrumChartInput,
+} from '../../shared/charts/runSpectrumChartInput.js'
+import { dampingLabel } from '../../shared/charts/spectrumChart.js'
+import { STANDARD_GRAVITY_MPERS2, formatSignificant } from '../../shared/charts/units.js'
+import type { RunSettings } from '../../shared/schemas/runs.js'
+import type { MethodStatement } from '../../shared/spectra/computeSpectrum.js'
+import type { RecordParameters } from '../../shared/spectra/recordParameters.js'
+import type { Sheet, SheetField, SheetRecord, SheetTable } from '../../shared/schemas/sheets.js'
+import { STANDARD_PERIODS_S, ordinateAtPeriod, peakOrdinate } from '../../shared/sheets/ordinateAtPeriod.js'
+import {
+  PRODUCT_NAME,
+  type ReviewFacts,
+  SHEET_CAUTIONS,
+  plainNumber as num,
+  reviewAndDate,
+  sheetReference,
+} from './sheetParts.js'
+
+/** A record as the sheet describes it: its parameters and the columns of the records table it needs. */
+export interface SheetRecordFacts extends RecordParameters {
+  name: string
+  component: string | null
+  sourceFileName: string
+  sha256: string
+  format: string
+  sourceUnits: string
+  synthetic: boolean
+  warnings: string[]
+}
+
+/** The engine's statement of how it solved the oscillators. */
+export type MethodFacts = Omit<MethodStatement, 'method' | 'newmarkGamma' | 'newmarkBeta' | 'kernel'> & {
+  kernel: string
+}
+
+export interface RunSheetFacts {
+  productVersion: string
+  firmName: string
+  projectName: string
+  run: {
+    id: string
+    revision: number
+    settings: RunSettings
+    engineVersion: string | null
+    createdByName: string
+    createdAt: number
+    finishedAt: number | null
+  }
+  /** One record, or the two components of a pair. */
+  records: SheetRecordFacts[]
+  /** The subject's name for titles and legends (the record's or the pair's). */
+  subjectName: string
+  spectrum: RunSpectrumLike
+  /** One statement per computed record (two for a pair). */
+  methods: MethodFacts[]
+  /** Warnings the engine attached to the spectrum (large Δt/T and the like). */
+  spectrumWarnings: string[]
+  review: ReviewFacts | null
+  view?: SpectrumView
+}
+
+const SOURCE_UNIT_LABELS: Record<string, string> = {
+  g: 'g',
+  'm/s2': 'm/s²',
+  'cm/s2': 'cm/s²',
+  'in/s2': 'in/s²',
+}
+
+const g = (valueMPerS2: number) => valueMPerS2 / STANDARD_GRAVITY_MPERS2
+const sig = (value: number, digits = 4) => formatSignificant(value, digits)
+
+/** "301 log-spaced periods from 0.01 s to 10 s (100 per decade), the default grid". */
+export function periodGridStatement(settings: RunSettings): string {
+  const periods = settings.periodsS
+  const count = periods.length
+  const lo = Math.min(...periods)
+  const hi = Math.max(...periods)
+  const span = `from ${num(lo)} s to ${num(hi)} s`
+  if (settings.periodChoice === 'list') return `${count} periods as listed, ${span}`
+  const decades = Math.log10(hi / lo)
+  const perDecade = decades > 0 ? ` (${num((count - 1) / decades, 3)} per decade)` : ''
+  const which = settings.periodChoice === 'default' ? ', the default grid' : ''
+  return `${count} log-spaced periods ${span}${perDecade}${which}`
+}
+
+function processingStatement(units: string): string {
+  return units === 'm/s²'
+    ? 'None: read in m/s²; no baseline correction or filtering by Ordinate.'
+    : `Converted from ${units} to m/s² (g = 9.80665 m/s²); no baseline correction or filtering by Ordinate.`
+}
+
+/**
+ * A record as the sheet lists it. `compact` folds the parameters into a few lines, for
+ * sheets that list a whole suite.
+ */
+export function recordSection(record: SheetRecordFacts, compact = false): SheetRecord {
+  const units = SOURCE_UNIT_LABELS[record.sourceUnits] ?? record.sourceUnits
+  const pga = `${num(g(record.pgaMPerS2))} g (${num(record.pgaMPerS2)} m/s²)`
+  const origin = record.synthetic
+    ? [{ label: 'Origin', value: 'Synthetic record (demonstration data, not recorded motion)' }]
+    : []
+  const head = [
+    ...(record.component ? [{ label: 'Component', value: record.component }] : []),
+    { label: 'Source file', value: record.sourceFileName },
+    { label: 'SHA-256 of the file', value: record.sha256 },
+  ]
+  if (compact) {
+    return {
+      name: record.name,
+      fields: [
+        ...head,
+        {
+          label: 'Points, Δt, duration',
+          value: `${record.points} points at Δt = ${num(record.dtS)} s, ${num(record.durationS)} s`,
+        },
+        { label: 'Units and processing', value: `${record.format}, ${units}. ${processingStatement(units)}` },
+        { label: 'PGA, PGV, PGD', value: `${pga}; ${num(record.pgvMPerS)} m/s; ${num(record.pgdM)} m` },
+        ...origin,
+      ],
+    }
+  }
+  return {
+    name: record.name,
+    fields: [
+      ...head,
+      { label: 'Format, source units', value: `${record.format}, ${units}` },
+      { label: 'Points', value: String(record.points) },
+      { label: 'Time step Δt', value: `${num(record.dtS)} s` },
+      { label: 'Duration', value: `${num(record.durationS)} s` },
+      { label: 'PGA', value: pga },
+      { label: 'PGV', value: `${num(record.pgvMPerS)} m/s` },
+      { label: 'PGD', value: `${num(record.pgdM)} m` },
+      { label: 'Arias intensity Ia', value: `${num(record.ariasMPerS)} m/s` },
+      { label: 'Significant duration D5-95', value: `${num(record.d595S)} s` },
+      { label: 'CAV', value: `${num(record.cavMPerS)} m/s` },
+      { label: 'Processing', value: processingStatement(units) },
+      ...origin,
+    ],
+  }
+}
+
+function curveLabel(curve: RunSpectrumLike['curves'][number]): string {
+  const combination = curve.combination ? ` ${curve.combination}` : ''
+  return `${dampingLabel(curve.dampingRatio)}${combination}`
+}
+
+/**
+ * PSA in g at T = 0 (the PGA) and the standard periods, per curve, then the peak and its
+ * period. Standard periods off the run's grid are read log-log and marked.
+ */
+export function runOrdinateTable(spectrum: RunSpectrumLike, pgaMPerS2: number | null): SheetTable {
+  const periods = Array.from(spectrum.periodsS)
+  const curves = spectrum.curves
+  let interpolated = false
+  let outside = false
+  const rows: SheetTable['rows'] = [
+    { label: '0 (PGA)', cells: curves.map(() => (pgaMPerS2 === null ? '—' : sig(g(pgaMPerS2)))) },
+  ]
+  for (const periodS of STANDARD_PERIODS_S) {
+    const readings = curves.map((c) => ordinateAtPeriod(periods, c.psaMPerS2, periodS))
+    const offGrid = readings.some((r) => r.kind === 'interpolated')
+    interpolated ||= offGrid
+    outside ||= readings.some((r) => r.kind === 'outside')
+    rows.push({
+      label: `${periodS}${offGrid ? ' *' : ''}`,
+      cells: readings.map((r) => (r.kind === 'outside' ? '—' : sig(g(r.value)))),
+    })
+  }
+  const peaks = curves.map((c) => peakOrdinate(periods, c.psaMPerS2))
+  rows.push({ label: 'Peak PSA', cells: peaks.map((p) => (p ? sig(g(p.value)) : '—')), emphasis: true })
+  rows.push({
+    label: 'Period of peak (s)',
+    cells: peaks.map((p) => (p ? sig(p.periodS, 3) : '—')),
+    emphasis: true,
+  })
+  const notes = [
+    'PSA in g (g = 9.80665 m/s²). T = 0 is the record’s PGA; the peak is the largest PSA over the run’s period grid.',
+  ]
+  if (interpolated) {
+    notes.push(
+      '* Not on the run’s period grid: interpolated log-log (straight in ln T and ln PSA) between the neighbouring grid periods.',
+    )
+  }
+  if (outside) notes.push('— Outside the run’s period range: not extrapolated.')
+  if (pgaMPerS2 === null)
+    notes.push(
+      'The PGA of a combination of two components is not tabulated; each component’s PGA is listed with its record.',
+    )
+  return {
+    title: 'Pseudo-spectral acceleration PSA (g) at standard periods',
+    columns: ['Period T (s)', ...curves.map(curveLabel)],
+    rows,
+    notes,
+  }
+}
+
+/** Each distinct value of a statement field, joined: the same words twice read once. */
+function distinct(methods: MethodFacts[], pick: (m: MethodFacts) => string): string {
+  const values = [...new Set(methods.map(pick))]
+  return values.length > 0 ? values.join(' / ') : 'not recorded'
+}
+
+function methodFields(facts: RunSheetFacts): SheetField[] {
+  const { settings } = facts.run
+  const methods = facts.methods
+  const subStepRange = (m: MethodFacts) =>
+    m.subStepsMin === m.subStepsMax ? `${m.subStepsMin}` : `${m.subStepsMin} to ${m.subStepsMax}`
+  return [
+    { label: 'Oscillator', value: 'Linear SDOF, unit mass: u″ + 2ζωu′ + ω²u = −a_g(t), ω = 2π/T' },
+    { label: 'Solver', value: distinct(methods, (m) => m.solver) },
+    { label: 'Record time step Δt', value: distinct(methods, (m) => `${num(m.recordDtS)} s`) },
+    {
+      label: 'Sub-steps',
+      value: `${distinct(methods, subStepRange)} per record step. ${distinct(methods, (m) => m.subStepRule)}`,
+    },
+    { label: 'Initial conditions', value: distinct(methods, (m) => m.initialConditions) },
+    { label: 'Free vibration after the record', value: distinct(methods, (m) => m.freeVibrationTail) },
+    { label: 'Damping ratios', value: settings.dampingRatios.map(dampingLabel).join(', ') },
+    { label: 'Period grid', value: periodGridStatement(settings) },
+    { label: 'Ordinates', value: 'SD = max|u|, SV = max|u′|, SA = max|ü + a_g|, PSV = ωSD, PSA = ω²SD' },
+    { label: 'Accuracy', value: distinct(methods, (m) => m.accuracyTarget) },
+    {
+      label: 'Engine version',
+      value: `${facts.run.engineVersion ?? distinct(methods, (m) => m.engineVersion)} (kernel ${distinct(methods, (m) => m.kernel)})`,
+    },
+  ]
+}
+
+export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
+  const { run } = facts
+  const dates = reviewAndDate(
+    { preparedByName: run.createdByName, doneAt: run.finishedAt ?? run.createdAt, doneVerb: 'computed' },
+    facts.review,
+  )
+  const single = facts.records.length === 1 ? facts.records[0] : undefined
+  return {
+    kind: 'run',
+    reference: sheetReference('run', run.id),
+    title: `Elastic response spectrum: ${facts.subjectName}`,
+    product: { name: PRODUCT_NAME, version: facts.productVersion },
+    firmName: facts.firmName,
+    projectName: facts.projectName,
+    revision: run.revision,
+    ...dates,
+    records: facts.records.map((r) => recordSection(r)),
+    method: methodFields(facts),
+    chart: runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
+    tables: [runOrdinateTable(facts.spectrum, single ? single.pgaMPerS2 : null)],
+    comparison: null,
+    // The engine repeats the record's warnings with its own; each is printed once.
+    warnings: [...new Set([...facts.records.flatMap((r) => r.warnings), ...facts.spectrumWarnings])],
+    cautions: [...SHEET_CAUTIONS],
+  }
+}

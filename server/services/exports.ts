@@ -1,0 +1,311 @@
+/**
+ * Calc-package exports of runs and comparisons: the sheet model, and the PDF, PNG, SVG and
+ * CSV files made from it. Firm-scoped (another firm's id answers 404) and recorded in the
+ * audit log, with a digest of the file handed out.
+ */
+import { createHash } from 'node:crypto'
+import { aliasedTable, and, eq } from 'drizzle-orm'
+import { z } from 'zod'
+import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
+import { STANDARD_GRAVITY_MPERS2 } from '../../shared/charts/units.js'
+import type { ComparisonView } from '../../shared/schemas/comparisons.js'
+import type { RunSettings } from '../../shared/schemas/runs.js'
+import type { PlotExportQuery, Sheet } from '../../shared/schemas/sheets.js'
+import type { Db } from '../db/client.js'
+import { firms, projects, recordPairs, records, reviews, runs, spectra, users } from '../db/schema.js'
+import { renderChartPng } from '../exports/chartPng.js'
+import { buildComparisonSheetFromFacts } from '../exports/comparisonSheet.js'
+import { comparisonOrdinatesCsv, runOrdinatesCsv } from '../exports/ordinatesCsv.js'
+import { type SheetRecordFacts, buildRunSheetFromFacts } from '../exports/runSheet.js'
+import { renderSheetPdf } from '../exports/sheetPdf.js'
+import { type ReviewFacts, ordinateVersion } from '../exports/sheetParts.js'
+import { conflict, notFound } from '../httpError.js'
+import type { Member } from '../middleware/auth.js'
+import { recordAudit } from './audit.js'
+import { getComparisonView } from './comparisons.js'
+
+export type ExportFormat = 'pdf' | 'png' | 'svg' | 'csv'
+export type ExportSubject = 'run' | 'comparison'
+
+export interface ExportFile {
+  /** Text formats travel as strings, so Express states their charset. */
+  body: Buffer | string
+  contentType: string
+  fileName: string
+}
+
+/** The parts of a stored spectrum (shared/schemas/spectrum.ts) that a sheet reads. */
+const storedSpectrumSchema = z.object({
+  periodsS: z.array(z.number()),
+  curves: z
+    .array(
+      z.object({
+        dampingRatio: z.number(),
+        combination: z.string().optional(),
+        sdM: z.array(z.number()),
+        svMPerS: z.array(z.number()),
+        saMPerS2: z.array(z.number()),
+        psvMPerS: z.array(z.number()),
+        psaMPerS2: z.array(z.number()),
+      }),
+    )
+    .min(1),
+  methodStatement: z
+    .object({
+      solver: z.string(),
+      recordDtS: z.number(),
+      initialConditions: z.string(),
+      subStepRule: z.string(),
+      subStepsMin: z.number(),
+      subStepsMax: z.number(),
+      freeVibrationTail: z.string(),
+      accuracyTarget: z.string(),
+      kernel: z.string(),
+      engineVersion: z.string(),
+    })
+    .optional(),
+  warnings: z.array(z.string()).optional(),
+})
+type StoredSpectrum = z.infer<typeof storedSpectrumSchema>
+const spectrumWarningsSchema = storedSpectrumSchema.pick({ warnings: true })
+
+const recordFactColumns = {
+  name: records.name,
+  component: records.component,
+  sourceFileName: records.sourceFileName,
+  sha256: records.sha256,
+  format: records.format,
+  sourceUnits: records.sourceUnits,
+  points: records.points,
+  dtS: records.dtS,
+  durationS: records.durationS,
+  pgaMPerS2: records.pgaMPerS2,
+  pgvMPerS: records.pgvMPerS,
+  pgdM: records.pgdM,
+  ariasMPerS: records.ariasMPerS,
+  d595S: records.d595S,
+  cavMPerS: records.cavMPerS,
+  synthetic: records.synthetic,
+  warnings: records.warnings,
+}
+
+function recordFacts(db: Db, firmId: string, recordId: string): SheetRecordFacts {
+  const row = db
+    .select(recordFactColumns)
+    .from(records)
+    .where(and(eq(records.firmId, firmId), eq(records.id, recordId)))
+    .get()
+  if (!row) throw notFound('The record of this run')
+  return row
+}
+
+/** The review of a run or comparison, with the checker's name; null when never submitted. */
+function reviewFacts(db: Db, subjectType: ExportSubject, subjectId: string): ReviewFacts | null {
+  const row = db
+    .select({
+      state: reviews.state,
+      submittedAt: reviews.submittedAt,
+      decidedByName: users.name,
+      decidedAt: reviews.decidedAt,
+    })
+    .from(reviews)
+    .leftJoin(users, eq(users.id, reviews.decidedBy))
+    .where(and(eq(reviews.subjectType, subjectType), eq(reviews.subjectId, subjectId)))
+    .get()
+  return row ?? null
+}
+
+/** A run's sheet and the spectrum it was built from. */
+function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; spectrum: StoredSpectrum } {
+  const author = aliasedTable(users, 'author')
+  const row = db
+    .select({
+      id: runs.id,
+      status: runs.status,
+      recordId: runs.recordId,
+      pairId: runs.pairId,
+      revision: runs.revision,
+      settings: runs.settings,
+      engineVersion: runs.engineVersion,
+      createdAt: runs.createdAt,
+      finishedAt: runs.finishedAt,
+      createdByName: author.name,
+      firmName: firms.name,
+      projectName: projects.name,
+      result: spectra.result,
+    })
+    .from(runs)
+    .innerJoin(author, eq(author.id, runs.createdBy))
+    .innerJoin(firms, eq(firms.id, runs.firmId))
+    .innerJoin(projects, eq(projects.id, runs.projectId))
+    .leftJoin(spectra, eq(spectra.runId, runs.id))
+    .where(and(eq(runs.firmId, firmId), eq(runs.id, runId)))
+    .get()
+  if (!row) throw notFound('The run')
+  if (row.status !== 'succeeded' || !row.result) {
+    throw conflict('Only a run that has succeeded has a spectrum to export.', 'run_not_finished')
+  }
+  const { subjectName, records: recordList } = runRecords(db, firmId, row)
+  const spectrum = storedSpectrumSchema.parse(row.result)
+  const sheet = buildRunSheetFromFacts({
+    productVersion: ordinateVersion(),
+    firmName: row.firmName,
+    projectName: row.projectName,
+    run: {
+      id: row.id,
+      revision: row.revision,
+      settings: row.settings as RunSettings,
+      engineVersion: row.engineVersion,
+      createdByName: row.createdByName,
+      createdAt: row.createdAt,
+      finishedAt: row.finishedAt,
+    },
+    records: recordList,
+    subjectName,
+    spectrum,
+    methods: spectrum.methodStatement ? [spectrum.methodStatement] : [],
+    spectrumWarnings: spectrum.warnings ?? [],
+    review: reviewFacts(db, 'run', row.id),
+  })
+  return { sheet, spectrum }
+}
+
+/** The record of a run, or the two records of a pair run, and the name the sheet gives it. */
+function runRecords(
+  db: Db,
+  firmId: string,
+  run: { recordId: string | null; pairId: string | null },
+): { subjectName: string; records: SheetRecordFacts[] } {
+  if (run.recordId) {
+    const record = recordFacts(db, firmId, run.recordId)
+    return { subjectName: record.name, records: [record] }
+  }
+  const pair = run.pairId
+    ? db
+        .select()
+        .from(recordPairs)
+        .where(and(eq(recordPairs.firmId, firmId), eq(recordPairs.id, run.pairId)))
+        .get()
+    : undefined
+  if (!pair) throw notFound('The records of this run')
+  return {
+    subjectName: pair.name,
+    records: [recordFacts(db, firmId, pair.record1Id), recordFacts(db, firmId, pair.record2Id)],
+  }
+}
+
+/** The sheet of one of the firm's runs; 404 for another firm's run, 409 before it succeeds. */
+export function buildRunSheet(db: Db, firmId: string, runId: string): Sheet {
+  return loadRunSheet(db, firmId, runId).sheet
+}
+
+/** A comparison's sheet and the view it was built from. */
+function loadComparisonSheet(db: Db, firmId: string, id: string): { sheet: Sheet; view: ComparisonView } {
+  const view = getComparisonView(db, firmId, id)
+  const names = db
+    .select({ firmName: firms.name, projectName: projects.name })
+    .from(projects)
+    .innerJoin(firms, eq(firms.id, projects.firmId))
+    .where(and(eq(projects.firmId, firmId), eq(projects.id, view.comparison.projectId)))
+    .get()
+  if (!names) throw notFound('The project of this comparison')
+  const recordsByRun = new Map<string, SheetRecordFacts[]>()
+  const warningsByRun = new Map<string, string[]>()
+  for (const curve of view.curves) {
+    const run = db
+      .select({ recordId: runs.recordId, pairId: runs.pairId, result: spectra.result })
+      .from(runs)
+      .leftJoin(spectra, eq(spectra.runId, runs.id))
+      .where(and(eq(runs.firmId, firmId), eq(runs.id, curve.runId)))
+      .get()
+    if (!run) throw notFound(`The run ${curve.runId}`)
+    recordsByRun.set(curve.runId, runRecords(db, firmId, run).records)
+    warningsByRun.set(curve.runId, spectrumWarningsSchema.parse(run.result ?? {}).warnings ?? [])
+  }
+  const sheet = buildComparisonSheetFromFacts({
+    productVersion: ordinateVersion(),
+    ...names,
+    view,
+    recordsByRun,
+    warningsByRun,
+    review: reviewFacts(db, 'comparison', id),
+  })
+  return { sheet, view }
+}
+
+/** The sheet of one of the firm's comparisons; 404 for another firm's. */
+export function buildComparisonSheet(db: Db, firmId: string, id: string): Sheet {
+  return loadComparisonSheet(db, firmId, id).sheet
+}
+
+/** A file name made only of the reference, revision and a plain-ASCII slug of the title. */
+export function exportFileName(sheet: Sheet, format: ExportFormat): string {
+  const slug = sheet.title
+    .normalize('NFKD')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 48)
+    .replace(/-+$/g, '')
+  return `${sheet.reference}-rev${sheet.revision}${slug ? `-${slug}` : ''}.${format}`
+}
+
+/** The sheet of a subject and its CSV of every ordinate. */
+function loadExport(
+  db: Db,
+  firmId: string,
+  subject: ExportSubject,
+  id: string,
+): { sheet: Sheet; csv: () => string } {
+  if (subject === 'run') {
+    const { sheet, spectrum } = loadRunSheet(db, firmId, id)
+    return { sheet, csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_MPERS2) }
+  }
+  const { sheet, view } = loadComparisonSheet(db, firmId, id)
+  return { sheet, csv: () => comparisonOrdinatesCsv(sheet, view) }
+}
+
+/** Makes one export file and records it in the audit log. */
+export async function exportSheet(
+  db: Db,
+  member: Member,
+  subject: ExportSubject,
+  id: string,
+  format: ExportFormat,
+  query: PlotExportQuery,
+): Promise<ExportFile> {
+  const { sheet, csv } = loadExport(db, member.firmId, subject, id)
+  let file: Omit<ExportFile, 'fileName'>
+  switch (format) {
+    case 'pdf':
+      file = { body: await renderSheetPdf(sheet), contentType: 'application/pdf' }
+      break
+    case 'png':
+      file = { body: renderChartPng(sheet.chart, query.widthMm), contentType: 'image/png' }
+      break
+    case 'svg':
+      file = { body: spectrumChartSvg(sheet.chart.data, sheet.chart.options), contentType: 'image/svg+xml' }
+      break
+    case 'csv':
+      file = { body: csv(), contentType: 'text/csv' }
+      break
+  }
+  const fileName = exportFileName(sheet, format)
+  recordAudit(db, {
+    firmId: member.firmId,
+    userId: member.userId,
+    action: 'export.created',
+    subjectType: subject,
+    subjectId: id,
+    detail: {
+      format,
+      fileName,
+      reference: sheet.reference,
+      revision: sheet.revision,
+      bytes: Buffer.byteLength(file.body),
+      sha256: createHash('sha256').update(file.body).digest('hex'),
+      ...(format === 'png' ? { widthMm: query.widthMm } : {}),
+    },
+  })
+  return { ...file, fileName }
+}
