@@ -10,6 +10,7 @@ import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
 import { STANDARD_GRAVITY_MPERS2 } from '../../shared/charts/units.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
+import { type SpectrumResult, spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import type { PlotExportQuery, Sheet } from '../../shared/schemas/sheets.js'
 import type { Db } from '../db/client.js'
 import { firms, projects, recordPairs, records, reviews, runs, spectra, users } from '../db/schema.js'
@@ -34,40 +35,8 @@ export interface ExportFile {
   fileName: string
 }
 
-/** The parts of a stored spectrum (shared/schemas/spectrum.ts) that a sheet reads. */
-const storedSpectrumSchema = z.object({
-  periodsS: z.array(z.number()),
-  curves: z
-    .array(
-      z.object({
-        dampingRatio: z.number(),
-        combination: z.string().optional(),
-        sdM: z.array(z.number()),
-        svMPerS: z.array(z.number()),
-        saMPerS2: z.array(z.number()),
-        psvMPerS: z.array(z.number()),
-        psaMPerS2: z.array(z.number()),
-      }),
-    )
-    .min(1),
-  methodStatement: z
-    .object({
-      solver: z.string(),
-      recordDtS: z.number(),
-      initialConditions: z.string(),
-      subStepRule: z.string(),
-      subStepsMin: z.number(),
-      subStepsMax: z.number(),
-      freeVibrationTail: z.string(),
-      accuracyTarget: z.string(),
-      kernel: z.string(),
-      engineVersion: z.string(),
-    })
-    .optional(),
-  warnings: z.array(z.string()).optional(),
-})
-type StoredSpectrum = z.infer<typeof storedSpectrumSchema>
-const spectrumWarningsSchema = storedSpectrumSchema.pick({ warnings: true })
+/** The warnings of a stored spectrum, which is all a comparison sheet reads of it. */
+const spectrumWarningsSchema = z.object({ warnings: z.array(z.string()).optional() })
 
 const recordFactColumns = {
   name: records.name,
@@ -116,7 +85,7 @@ function reviewFacts(db: Db, subjectType: ExportSubject, subjectId: string): Rev
 }
 
 /** A run's sheet and the spectrum it was built from. */
-function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; spectrum: StoredSpectrum } {
+function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; spectrum: SpectrumResult } {
   const author = aliasedTable(users, 'author')
   const row = db
     .select({
@@ -146,7 +115,7 @@ function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; sp
     throw conflict('Only a run that has succeeded has a spectrum to export.', 'run_not_finished')
   }
   const { subjectName, records: recordList } = runRecords(db, firmId, row)
-  const spectrum = storedSpectrumSchema.parse(row.result)
+  const spectrum = spectrumResultSchema.parse(row.result)
   const sheet = buildRunSheetFromFacts({
     productVersion: ordinateVersion(),
     firmName: row.firmName,
@@ -163,8 +132,8 @@ function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; sp
     records: recordList,
     subjectName,
     spectrum,
-    methods: spectrum.methodStatement ? [spectrum.methodStatement] : [],
-    spectrumWarnings: spectrum.warnings ?? [],
+    methods: [spectrum.methodStatement],
+    spectrumWarnings: spectrum.warnings,
     review: reviewFacts(db, 'run', row.id),
   })
   return { sheet, spectrum }
