@@ -163,13 +163,17 @@ export function artifactPath(name: string): string {
   return path.join(artifactsDir, name)
 }
 
-/** Signs in through the form, as a person would, and waits for the app shell. */
+/**
+ * Signs in through the form, as a person would, and waits for the app shell.
+ * Pages of one browser share cookies, so any earlier session is dropped first.
+ */
 export async function signInThroughForm(
   page: Page,
   baseUrl: string,
   email: string,
   password = DEMO_PASSWORD,
 ) {
+  await page.context().clearCookies()
   await page.goto(`${baseUrl}/sign-in`)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
