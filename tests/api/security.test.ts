@@ -1,0 +1,203 @@
+import request from 'supertest'
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { Role } from '../../shared/schemas/accounts.js'
+import type { SmtpSink } from '../../server/mail/smtpSink.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
+import { snapshotDb } from '../support/dbSnapshot.js'
+import { addMember, buildDemoWorld, type DemoWorld } from '../support/demoWorld.js'
+import {
+  type RouteSpec,
+  fillPath,
+  isStateChanging,
+  mountedApiRoutes,
+  routeKey,
+  routeTable,
+} from '../support/routeTable.js'
+import { createTestContext, type TestContext } from '../support/testApp.js'
+
+/**
+ * Sweeps over every route of the API (tests/support/routeTable.ts): signed-out visitors, missing
+ * roles, another firm's ids, malformed ids and cross-site requests. Each refusal must come in the
+ * one error shape and leave the database as it was.
+ */
+let ctx: TestContext
+let queue: RunQueue
+let world: DemoWorld
+const demo: Partial<Record<Role, request.Agent>> = {}
+/** A member of the second firm holding every role, so only firm scoping stands between them and the demo firm's data. */
+let outsider: request.Agent
+
+beforeAll(async () => {
+  ctx = await createTestContext(
+    (deps) => {
+      // Stands in for the in-process SMTP sink so the development mailbox route is mounted too.
+      deps.devMailbox = { messages: () => [] } as unknown as SmtpSink
+      queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
+      deps.runQueue = queue
+    },
+    { SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000', SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000', PASSWORD_RESET_MAX_PER_WINDOW: '10000' },
+  )
+  queue.start()
+  world = await buildDemoWorld(ctx)
+  await addMember(ctx.db, ctx.seed.firmIds[1]!, 'outsider-admin@ordinate.test', ['engineer', 'checker', 'admin'], 'Oda Brightwater')
+  ;[demo.engineer, demo.checker, demo.admin, outsider] = await Promise.all([
+    ctx.signIn('engineer@ordinate.test'),
+    ctx.signIn('checker@ordinate.test'),
+    ctx.signIn('admin@ordinate.test'),
+    ctx.signIn('outsider-admin@ordinate.test'),
+  ])
+})
+afterAll(async () => {
+  await queue?.stop(0)
+  ctx?.close()
+})
+
+const label = (r: RouteSpec) => routeKey(r)
+const pathOf = (r: RouteSpec, id?: string) =>
+  fillPath(r, { id: id ?? (r.id ? world.idOf[r.id] : undefined), token: r.token ? world.tokenOf[r.token] : undefined })
+
+/** Sends the route's request: its valid body (or a one-line upload) so only the check under test can refuse it. */
+function send(agent: request.Agent, r: RouteSpec, path = pathOf(r)) {
+  const method = r.method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete'
+  const req = agent[method](path)
+  if (r.body === 'multipart') {
+    return req.field('units', 'g').field('dtS', '0.01').attach('file', Buffer.from('0\n0.01\n'.repeat(20)), 'r.txt')
+  }
+  return r.body === 'json' ? req.send(r.validBody!(world.ids)) : req
+}
+
+function expectErrorShape(res: request.Response, status: number, code: string) {
+  expect(res.status, `${res.status} ${JSON.stringify(res.body)}`).toBe(status)
+  expect(res.type).toBe('application/json')
+  expect(Object.keys(res.body)).toEqual(['error'])
+  expect(res.body.error.code).toBe(code)
+  expect(typeof res.body.error.message).toBe('string')
+}
+
+describe('the route table', () => {
+  it('lists exactly the routes createApp() mounts under /api, so a new route needs an entry', () => {
+    expect(mountedApiRoutes(ctx.app).sort()).toEqual(routeTable.map(routeKey).sort())
+  })
+
+  it('says what every :id and :token names, and gives every JSON route a valid body', () => {
+    for (const r of routeTable) {
+      expect(r.path.includes(':id'), label(r)).toBe(r.id !== undefined)
+      expect(r.path.includes(':token'), label(r)).toBe(r.token !== undefined)
+      expect(r.body === 'json', label(r)).toBe(r.validBody !== undefined)
+    }
+  })
+})
+
+describe('signed-out visitors', () => {
+  for (const r of routeTable.filter((r) => r.access !== 'public')) {
+    it(`${label(r)} answers 401 and writes nothing`, async () => {
+      const before = snapshotDb(ctx.db)
+      expectErrorShape(await send(ctx.anonymous(), r), 401, 'unauthorized')
+      expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+})
+
+describe('role checks', () => {
+  const ROLES: Role[] = ['engineer', 'checker', 'admin']
+  for (const r of routeTable) {
+    if (typeof r.access === 'string') continue
+    const allowed = r.access
+    for (const role of ROLES.filter((x) => !allowed.includes(x))) {
+      it(`${label(r)} refuses a member holding only the ${role} role with 403 naming the role needed`, async () => {
+        const before = snapshotDb(ctx.db)
+        const res = await send(demo[role]!, r)
+        expectErrorShape(res, 403, 'forbidden')
+        for (const needed of allowed) expect(res.body.error.message).toContain(needed)
+        expect(snapshotDb(ctx.db)).toEqual(before)
+      })
+    }
+  }
+})
+
+describe("another firm's ids", () => {
+  for (const r of routeTable.filter((r) => r.id)) {
+    it(`${label(r)} answers 404 to a member of another firm holding every role, and writes nothing`, async () => {
+      const before = snapshotDb(ctx.db)
+      expectErrorShape(await send(outsider, r), 404, 'not_found')
+      expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+
+  for (const r of routeTable.filter((r) => r.id && r.method === 'GET')) {
+    it(`${label(r)} does answer the demo firm's own members (the ids are real)`, async () => {
+      const res = await send(demo.engineer!, r)
+      expect(res.status, JSON.stringify(res.body)).toBe(200)
+    })
+  }
+
+  for (const r of routeTable.filter((r) => r.foreignIds)) {
+    it(`${label(r)} with the demo firm's ids in its ${r.method === 'GET' ? 'query' : 'body'} reveals nothing and writes nothing`, async () => {
+      const before = snapshotDb(ctx.db)
+      const { query, body } = r.foreignIds!(world.ids)
+      const method = r.method.toLowerCase() as 'get' | 'post'
+      const res = await outsider[method](pathOf(r)).query(query ?? {}).send(body)
+      if (res.status === 200) expect(res.body.items).toEqual([])
+      else expectErrorShape(res, 404, 'not_found')
+      expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+})
+
+describe('malformed ids and tokens', () => {
+  const agentFor = (r: RouteSpec) =>
+    r.access === 'public' ? ctx.anonymous() : r.access === 'member' ? demo.engineer! : demo[r.access[0]!]!
+  for (const r of routeTable.filter((r) => r.id || r.token)) {
+    it(`${label(r)} answers 400 naming the parameter for an id that is not one`, async () => {
+      const path = fillPath(r, { id: 'not-an-id', token: 'not-a-token' })
+      const res = await send(agentFor(r), r, path)
+      expectErrorShape(res, 400, 'invalid_input')
+      expect(res.body.error.message).toMatch(r.id ? /^id:/ : /^token:/)
+    })
+  }
+})
+
+describe('cross-site requests', () => {
+  const bare = new Map<string, request.Agent>()
+  /** A signed-in agent that sends no CSRF header of its own (it signs in same-origin). */
+  async function bareAgent(email: string) {
+    const known = bare.get(email)
+    if (known) return known
+    const agent = request.agent(ctx.app)
+    const res = await agent.post('/api/auth/sign-in').set('x-ordinate-client', '1').send({ email, password: 'ordinate-demo' })
+    expect(res.status).toBe(200)
+    bare.set(email, agent)
+    return agent
+  }
+  const emailFor = (r: RouteSpec) =>
+    typeof r.access === 'string' ? 'engineer@ordinate.test' : `${r.access[0]}@ordinate.test`
+
+  for (const r of routeTable.filter(isStateChanging)) {
+    it(`${label(r)} refuses a foreign Origin, and a request with no Origin, Referer or client header, with 403`, async () => {
+      const agent = await bareAgent(emailFor(r))
+      const before = snapshotDb(ctx.db)
+      const foreign = await send(agent, r).set('origin', 'https://elsewhere.example')
+      expectErrorShape(foreign, 403, 'forbidden')
+      expect(foreign.body.error.message).toMatch(/Cross-site/)
+      const foreignReferer = await send(agent, r).set('referer', 'https://elsewhere.example/page')
+      expectErrorShape(foreignReferer, 403, 'forbidden')
+      const unmarked = await send(agent, r)
+      expectErrorShape(unmarked, 403, 'forbidden')
+      expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+})
+
+describe('unknown /api routes', () => {
+  for (const method of ['get', 'post', 'put', 'patch', 'delete'] as const) {
+    it(`${method.toUpperCase()} answers a JSON 404 naming the route`, async () => {
+      const res = await demo.engineer![method]('/api/no-such-thing/42')
+      expectErrorShape(res, 404, 'not_found')
+      expect(res.body.error.message).toContain(`${method.toUpperCase()} /api/no-such-thing/42`)
+    })
+  }
+
+  it('answers a JSON 404, not the app page, for a wrong method on a known path', async () => {
+    expectErrorShape(await demo.engineer!.put('/api/records'), 404, 'not_found')
+  })
+})
