@@ -2,16 +2,16 @@ import {
   type MethodStatement,
   type SpectrumCurve,
   computeSpectrum,
-} from '../../shared/spectra/computeSpectrum'
-import { DEMO_RECORD_IDS, demoRecord } from '../../shared/spectra/demo/demoRecords'
-import { parseRecord } from '../../shared/spectra/parseRecord'
-import { defaultPeriodsS } from '../../shared/spectra/periods'
+} from '../../shared/spectra/computeSpectrum.js'
+import { DEMO_RECORD_IDS, demoRecord } from '../../shared/spectra/demo/demoRecords.js'
+import { parseRecord } from '../../shared/spectra/parseRecord.js'
+import { defaultPeriodsS } from '../../shared/spectra/periods.js'
 import {
   type RecordParameters,
   integrateRecord,
   recordParameters,
   recordWarnings,
-} from '../../shared/spectra/recordParameters'
+} from '../../shared/spectra/recordParameters.js'
 
 export interface DemoSpectrumResult {
   record: { id: string; name: string; description: string; fileName: string; sourceUnits: string }
