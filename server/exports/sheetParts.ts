@@ -74,7 +74,7 @@ const STATE_LABELS: Record<SheetReview['state'], string> = {
 export function reviewAndDate(
   work: WorkFacts,
   review: ReviewFacts | null,
-): { review: SheetReview; dateMs: number; dateText: string; dateLabel: string } {
+): Pick<Sheet, 'review' | 'dateMs' | 'dateText' | 'dateLabel' | 'dateShortLabel'> {
   const state = review?.state ?? 'draft'
   const checked = review?.state === 'checked' && review.decidedAt !== null
   const dateMs = checked && review.decidedAt !== null ? review.decidedAt : work.doneAt
@@ -85,6 +85,7 @@ export function reviewAndDate(
     dateMs,
     dateText: sheetDate(dateMs),
     dateLabel: checked ? 'Date of check' : `Date ${work.doneVerb} (not checked)`,
+    dateShortLabel: checked ? 'Date of check' : 'Date, not checked',
     review: {
       state,
       stateLabel: STATE_LABELS[state],

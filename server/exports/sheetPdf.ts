@@ -269,7 +269,7 @@ function drawTitleBlock(doc: Doc, sheet: Sheet, page: number, pages: number) {
     [
       { label: 'Title', value: sheet.title, fraction: 0.52 },
       {
-        label: sheet.review.state === 'checked' ? 'Date of check' : 'Date, not checked',
+        label: sheet.dateShortLabel,
         value: sheet.dateText,
         fraction: 0.24,
       },

@@ -90,6 +90,8 @@ export const sheetSchema = z.object({
   dateText: z.string(),
   /** What the date is, e.g. "Date of check". */
   dateLabel: z.string(),
+  /** The same, short enough for a title-block cell: "Date of check" or "Date, not checked". */
+  dateShortLabel: z.string(),
   records: z.array(sheetRecordSchema),
   method: z.array(sheetFieldSchema),
   chart: spectrumChartInputSchema,
