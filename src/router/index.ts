@@ -65,6 +65,25 @@ const router = createRouter({
       meta: { title: 'Credits' },
     },
     {
+      path: '/runs',
+      name: 'runs',
+      component: () => import('@/views/RunsView.vue'),
+      meta: { title: 'Runs' },
+    },
+    {
+      path: '/runs/new',
+      name: 'new-run',
+      component: () => import('@/views/NewRunView.vue'),
+      meta: { roles: ['engineer', 'checker'], title: 'Start a run' },
+    },
+    {
+      path: '/runs/:id',
+      name: 'run',
+      component: () => import('@/views/RunView.vue'),
+      props: true,
+      meta: { title: 'Run' },
+    },
+    {
       path: '/runs/:id/sheet',
       name: 'run-sheet',
       component: () => import('@/views/SheetView.vue'),
