@@ -40,7 +40,8 @@ export function createApp(deps: AppDeps) {
       contentSecurityPolicy: {
         directives: {
           defaultSrc: ["'self'"],
-          scriptSrc: ["'self'", ...(stripeJs ? ['https://js.stripe.com'] : [])],
+          // 'wasm-unsafe-eval' lets the browser compile the engine's WebAssembly kernel; it does not allow eval().
+          scriptSrc: ["'self'", "'wasm-unsafe-eval'", ...(stripeJs ? ['https://js.stripe.com'] : [])],
           ...(stripeJs ? { frameSrc: ['https://js.stripe.com', 'https://hooks.stripe.com'] } : {}),
           // naive-ui injects its styles at run time as <style> elements.
           styleSrc: ["'self'", "'unsafe-inline'"],
