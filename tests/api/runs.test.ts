@@ -2,11 +2,12 @@ import type { AddressInfo } from 'node:net'
 import { and, asc, count, eq } from 'drizzle-orm'
 import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
-import { creditLedger, memberships, runs, spectra, users } from '../../server/db/schema.js'
+import { creditLedger, memberships, records, runs, spectra, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
+import { encodeSamples } from '../../server/services/sampleBlob.js'
 import { createRecord } from '../../server/services/records.js'
 import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
@@ -605,6 +606,36 @@ describe('the run queue', () => {
       { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
       { name: 'Long synthetic motion', points: 6000, dtS: 0.005 },
     )
+  })
+
+  it("fails a run the engine refuses, with the engine's message, and returns its credit", async () => {
+    const broken = insertRecord(
+      ctx.db,
+      { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
+      { points: 300 },
+    )
+    // A stored sample that is not a finite number: the engine's input check throws inside the worker.
+    const samples = Float64Array.from(broken.samples)
+    samples[10] = Number.NaN
+    ctx.db
+      .update(records)
+      .set({ samples: encodeSamples(samples) })
+      .where(eq(records.id, broken.id))
+      .run()
+    const res = await engineer.post('/api/runs').send({ recordId: broken.id, ...SMALL })
+    expect(await finished(queue, ctx.db, res.body.id)).toEqual({
+      status: 'failed',
+      error: 'The computation failed: the record holds a value that is not a finite number',
+    })
+    expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
+    // The thread that reported the error is still there for the next run.
+    expect(
+      await finished(
+        queue,
+        ctx.db,
+        (await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })).body.id,
+      ),
+    ).toMatchObject({ status: 'succeeded' })
   })
 
   it('fails a run whose worker is killed mid-run, returns its credit, and goes on with other runs', async () => {
