@@ -14,8 +14,9 @@
  *    the familiar 1 − cos(π/n) ≈ (π/n)²/2 with n = T/h (DOMAIN notes: 4.9% at
  *    n = 10, 0.2% at n = 50). First pass: n ≥ 64 (0.12% for a sinusoid). Then,
  *    from the peaks found, R is bounded from the record's PGA and steepest
- *    slope J (sharp forcing can make v and A peak sharply), and the oscillator
- *    is run again with more sub-steps while the bound exceeds 0.25%
+ *    slope J (sharp forcing can make v and A peak sharply), or from the kinks
+ *    of the record ({@link freeAmplitudeBound}), whichever is smaller, and the
+ *    oscillator is run again with more sub-steps while the bound exceeds 0.25%
  *    ({@link peakPickingBound}).
  * 2. Solver error (Newmark only; the piecewise-exact recurrence of Nigam &
  *    Jennings 1969 is exact at step ends for linear forcing). Both Newmark
@@ -138,6 +139,8 @@ export interface PeakPickingInput {
   pgaMPerS2: number
   /** Steepest slope of the record between samples, max|Δa|/Δt. */
   maxSlopeMPerS3: number
+  /** A tighter bound on the free-vibration amplitude R, when known ({@link freeAmplitudeBound}). */
+  freeAmplitudeM?: number
 }
 
 /**
@@ -162,13 +165,62 @@ export function peakPickingBound(input: PeakPickingInput): number {
   if (!(sd > 0 && sv > 0 && sa > 0)) return 0
   const uh = raise * sd + (input.pgaMPerS2 + (c * input.maxSlopeMPerS3) / k) / k
   const vh = raise * sv + input.maxSlopeMPerS3 / k
-  const amplitude = Math.hypot(uh, (vh + zeta * omega * uh) / omegaD)
+  const amplitude = Math.min(Math.hypot(uh, (vh + zeta * omega * uh) / omegaD), input.freeAmplitudeM ?? Infinity)
   const h2 = (input.stepS * input.stepS) / 8
   return Math.max(
     (k * amplitude * h2) / sd,
     (k * omega * amplitude * h2) / sv,
     (k * k * (1 + 2 * zeta) * amplitude * h2) / sa,
   )
+}
+
+/**
+ * The record's kinks: |s_i − s_(i−1)| at each inner sample, s_i = (a_(i+1) − a_i)/Δt
+ * being the slope of the interval that starts at sample i (zero at the ends).
+ */
+export function slopeChanges(accelMPerS2: Float64Array, dtS: number): Float64Array {
+  const n = accelMPerS2.length
+  const changes = new Float64Array(n)
+  for (let i = 1; i + 1 < n; i++) {
+    changes[i] = Math.abs(accelMPerS2[i + 1]! - 2 * accelMPerS2[i]! + accelMPerS2[i - 1]!) / dtS
+  }
+  return changes
+}
+
+/**
+ * A second bound on the free-vibration amplitude R of rule 1, from the record alone.
+ * Between samples the response is u_p + u_h with u_p = −(a − c·s/k)/k and
+ * v_p = −s/k, so at a sample where the slope changes by Δs the free part jumps by
+ * Δu_h = −c·Δs/k², Δv_h = Δs/k, changing its amplitude by at most κ·|Δs| with
+ * κ = √((c/k²)² + ((1/k − ζω·c/k²)/ω_D)²); between kinks it decays as e^(−ζωt).
+ * Starting from the amplitude of −(u_p, v_p) at rest, R(t) ≤ R₀e^(−ζωt) + κ·Σ|Δs_i|e^(−ζω(t − t_i)),
+ * whose largest value over the record is returned. Tight where damping forgets old kicks.
+ */
+export function freeAmplitudeBound(
+  accelMPerS2: Float64Array,
+  changes: Float64Array,
+  dtS: number,
+  periodS: number,
+  dampingRatio: number,
+): number {
+  const omega = (2 * Math.PI) / periodS
+  const k = omega * omega
+  const c = 2 * dampingRatio * omega
+  const sigma = dampingRatio * omega
+  const omegaD = omega * Math.sqrt(1 - dampingRatio * dampingRatio)
+  const kappa = Math.hypot(c / (k * k), (1 / k - (sigma * c) / (k * k)) / omegaD)
+  const a0 = accelMPerS2[0]!
+  const s0 = (accelMPerS2[1]! - a0) / dtS
+  const uh0 = (a0 - (c * s0) / k) / k
+  const vh0 = s0 / k
+  let amplitude = Math.hypot(uh0, (vh0 + sigma * uh0) / omegaD)
+  let largest = amplitude
+  const decay = Math.exp(-sigma * dtS)
+  for (let i = 1; i < changes.length; i++) {
+    amplitude = amplitude * decay + kappa * changes[i]!
+    if (amplitude > largest) largest = amplitude
+  }
+  return largest
 }
 
 /** Sub-steps that bring a peak-picking bound found at m down to the budget (it falls as h²). */

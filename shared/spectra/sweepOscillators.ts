@@ -63,7 +63,7 @@ export function sweepOscillators(
   let doneSteps = 0
 
   kernel.loadRecord(accel)
-  const lanes = kernel.lanes
+  const { lanes, width } = kernel
   const coeffs = new Float64Array(COEFFICIENT_ARRAYS * MAX_CHUNK)
   const out = new Float64Array(OUTPUT_ARRAYS * MAX_CHUNK)
   let next = 0
@@ -72,7 +72,7 @@ export function sweepOscillators(
     let groupEnd = next
     while (groupEnd < count && oscillators[order[groupEnd]!]!.subSteps === subSteps) groupEnd++
     const stepsEach = Math.max(1, intervals * subSteps)
-    const chunkSize = Math.min(MAX_CHUNK, Math.max(lanes, Math.floor(STEPS_PER_CHUNK / stepsEach / lanes) * lanes))
+    const chunkSize = Math.min(MAX_CHUNK, Math.max(width, Math.floor(STEPS_PER_CHUNK / stepsEach / width) * width))
     for (let chunkStart = next; chunkStart < groupEnd; chunkStart += chunkSize) {
       const members = order.slice(chunkStart, Math.min(groupEnd, chunkStart + chunkSize))
       const padded = Math.ceil(members.length / lanes) * lanes
@@ -83,6 +83,8 @@ export function sweepOscillators(
         const values = [c.a11, c.a12, c.b1, c.c1, c.a21, c.a22, c.b2, c.c2, 2 * oscillator.dampingRatio * omega, omega * omega]
         for (let q = 0; q < COEFFICIENT_ARRAYS; q++) coeffs[q * padded + slot] = values[q]!
       }
+      // A nested sweep (from onProgress) may have loaded another record meanwhile.
+      if (kernel.loadedRecord !== accel) kernel.loadRecord(accel)
       kernel.sweep(padded, subSteps, coeffs, out)
       const stepS = dtS / subSteps
       members.forEach((index, slot) => {

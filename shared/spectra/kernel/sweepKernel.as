@@ -8,12 +8,13 @@
 // where f, f' are the ground acceleration at the start and end of a sub-step,
 // interpolated linearly between record samples. The absolute acceleration is
 // −(cc·v + kk·u) with cc = 2ζω and kk = ω². Four oscillators advance per time
-// step as two f64x2 vectors, held in locals; nothing is allocated.
+// step as two f64x2 vectors held in locals (a last pair as one vector); nothing
+// is allocated.
 //
 // The operations and their order match jsSweep in sweepKernel.ts exactly, so
 // both kernels give the same bits (IEEE-754 double, no fused multiply-add).
 //
-// Memory layout (arrays of `count` f64, count a multiple of 4):
+// Memory layout (arrays of `count` f64, count even):
 //   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk
 //   out:    max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end
 // Steps count sub-steps from 0 (the start, at rest).
@@ -30,80 +31,135 @@ function lin(a: v128, x: v128, b: v128, y: v128, c: v128, f0: v128, d: v128, f1:
 
 export function sweep(count: i32, samples: i32, subSteps: i32, coeffs: usize, record: usize, out: usize): void {
   const stride = (<usize>count) << 3
+  let o: i32 = 0
+  for (; o + 4 <= count; o += 4) sweepFour(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3))
+  if (o < count) sweepTwo(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3))
+}
+
+/** Four oscillators as two f64x2 vectors (p, q); `c` and `r` point at their first coefficient and output. */
+function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize): void {
   const m = <f64>subSteps
-  for (let o: i32 = 0; o < count; o += 4) {
-    const c = coeffs + ((<usize>o) << 3)
-    const a11p = v128.load(c), a11q = v128.load(c, 16)
-    const a12p = v128.load(c + stride), a12q = v128.load(c + stride, 16)
-    const b1p = v128.load(c + 2 * stride), b1q = v128.load(c + 2 * stride, 16)
-    const c1p = v128.load(c + 3 * stride), c1q = v128.load(c + 3 * stride, 16)
-    const a21p = v128.load(c + 4 * stride), a21q = v128.load(c + 4 * stride, 16)
-    const a22p = v128.load(c + 5 * stride), a22q = v128.load(c + 5 * stride, 16)
-    const b2p = v128.load(c + 6 * stride), b2q = v128.load(c + 6 * stride, 16)
-    const c2p = v128.load(c + 7 * stride), c2q = v128.load(c + 7 * stride, 16)
-    const ccp = v128.load(c + 8 * stride), ccq = v128.load(c + 8 * stride, 16)
-    const kkp = v128.load(c + 9 * stride), kkq = v128.load(c + 9 * stride, 16)
+  const a11p = v128.load(c), a11q = v128.load(c, 16)
+  const a12p = v128.load(c + stride), a12q = v128.load(c + stride, 16)
+  const b1p = v128.load(c + 2 * stride), b1q = v128.load(c + 2 * stride, 16)
+  const c1p = v128.load(c + 3 * stride), c1q = v128.load(c + 3 * stride, 16)
+  const a21p = v128.load(c + 4 * stride), a21q = v128.load(c + 4 * stride, 16)
+  const a22p = v128.load(c + 5 * stride), a22q = v128.load(c + 5 * stride, 16)
+  const b2p = v128.load(c + 6 * stride), b2q = v128.load(c + 6 * stride, 16)
+  const c2p = v128.load(c + 7 * stride), c2q = v128.load(c + 7 * stride, 16)
+  const ccp = v128.load(c + 8 * stride), ccq = v128.load(c + 8 * stride, 16)
+  const kkp = v128.load(c + 9 * stride), kkq = v128.load(c + 9 * stride, 16)
 
-    const zero = f64x2.splat(0)
-    let up = zero, uq = zero, vp = zero, vq = zero
-    let mup = zero, muq = zero, mvp = zero, mvq = zero, map = zero, maq = zero
-    let kup = zero, kuq = zero, kap = zero, kaq = zero
-    let step: f64 = 0
-    let start = load<f64>(record)
-    for (let i: i32 = 1; i < samples; i++) {
-      const end = load<f64>(record + ((<usize>i) << 3))
-      const slope = (end - start) / m
-      let f = start
-      for (let j: i32 = 1; j <= subSteps; j++) {
-        const fNext: f64 = j == subSteps ? end : start + slope * <f64>j
-        step += 1
-        const f0 = f64x2.splat(f)
-        const f1 = f64x2.splat(fNext)
-        const kv = f64x2.splat(step)
+  const zero = f64x2.splat(0)
+  let up = zero, uq = zero, vp = zero, vq = zero
+  let mup = zero, muq = zero, mvp = zero, mvq = zero, map = zero, maq = zero
+  let kup = zero, kuq = zero, kap = zero, kaq = zero
+  let step: f64 = 0
+  let start = load<f64>(record)
+  for (let i: i32 = 1; i < samples; i++) {
+    const end = load<f64>(record + ((<usize>i) << 3))
+    const slope = (end - start) / m
+    let f = start
+    for (let j: i32 = 1; j <= subSteps; j++) {
+      const fNext: f64 = j == subSteps ? end : start + slope * <f64>j
+      step += 1
+      const f0 = f64x2.splat(f)
+      const f1 = f64x2.splat(fNext)
+      const kv = f64x2.splat(step)
 
-        const nup = lin(a11p, up, a12p, vp, b1p, f0, c1p, f1)
-        const nvp = lin(a21p, up, a22p, vp, b2p, f0, c2p, f1)
-        up = nup
-        vp = nvp
-        const aup = f64x2.abs(up)
-        kup = v128.bitselect(kv, kup, f64x2.gt(aup, mup))
-        mup = f64x2.max(mup, aup)
-        mvp = f64x2.max(mvp, f64x2.abs(vp))
-        const aap = f64x2.abs(f64x2.add(f64x2.mul(ccp, vp), f64x2.mul(kkp, up)))
-        kap = v128.bitselect(kv, kap, f64x2.gt(aap, map))
-        map = f64x2.max(map, aap)
+      const nup = lin(a11p, up, a12p, vp, b1p, f0, c1p, f1)
+      const nvp = lin(a21p, up, a22p, vp, b2p, f0, c2p, f1)
+      up = nup
+      vp = nvp
+      const aup = f64x2.abs(up)
+      kup = v128.bitselect(kv, kup, f64x2.gt(aup, mup))
+      mup = f64x2.max(mup, aup)
+      mvp = f64x2.max(mvp, f64x2.abs(vp))
+      const aap = f64x2.abs(f64x2.add(f64x2.mul(ccp, vp), f64x2.mul(kkp, up)))
+      kap = v128.bitselect(kv, kap, f64x2.gt(aap, map))
+      map = f64x2.max(map, aap)
 
-        const nuq = lin(a11q, uq, a12q, vq, b1q, f0, c1q, f1)
-        const nvq = lin(a21q, uq, a22q, vq, b2q, f0, c2q, f1)
-        uq = nuq
-        vq = nvq
-        const auq = f64x2.abs(uq)
-        kuq = v128.bitselect(kv, kuq, f64x2.gt(auq, muq))
-        muq = f64x2.max(muq, auq)
-        mvq = f64x2.max(mvq, f64x2.abs(vq))
-        const aaq = f64x2.abs(f64x2.add(f64x2.mul(ccq, vq), f64x2.mul(kkq, uq)))
-        kaq = v128.bitselect(kv, kaq, f64x2.gt(aaq, maq))
-        maq = f64x2.max(maq, aaq)
+      const nuq = lin(a11q, uq, a12q, vq, b1q, f0, c1q, f1)
+      const nvq = lin(a21q, uq, a22q, vq, b2q, f0, c2q, f1)
+      uq = nuq
+      vq = nvq
+      const auq = f64x2.abs(uq)
+      kuq = v128.bitselect(kv, kuq, f64x2.gt(auq, muq))
+      muq = f64x2.max(muq, auq)
+      mvq = f64x2.max(mvq, f64x2.abs(vq))
+      const aaq = f64x2.abs(f64x2.add(f64x2.mul(ccq, vq), f64x2.mul(kkq, uq)))
+      kaq = v128.bitselect(kv, kaq, f64x2.gt(aaq, maq))
+      maq = f64x2.max(maq, aaq)
 
-        f = fNext
-      }
-      start = end
+      f = fNext
     }
-
-    const r = out + ((<usize>o) << 3)
-    v128.store(r, mup)
-    v128.store(r, muq, 16)
-    v128.store(r + stride, mvp)
-    v128.store(r + stride, mvq, 16)
-    v128.store(r + 2 * stride, map)
-    v128.store(r + 2 * stride, maq, 16)
-    v128.store(r + 3 * stride, kup)
-    v128.store(r + 3 * stride, kuq, 16)
-    v128.store(r + 4 * stride, kap)
-    v128.store(r + 4 * stride, kaq, 16)
-    v128.store(r + 5 * stride, up)
-    v128.store(r + 5 * stride, uq, 16)
-    v128.store(r + 6 * stride, vp)
-    v128.store(r + 6 * stride, vq, 16)
+    start = end
   }
+
+  v128.store(r, mup)
+  v128.store(r, muq, 16)
+  v128.store(r + stride, mvp)
+  v128.store(r + stride, mvq, 16)
+  v128.store(r + 2 * stride, map)
+  v128.store(r + 2 * stride, maq, 16)
+  v128.store(r + 3 * stride, kup)
+  v128.store(r + 3 * stride, kuq, 16)
+  v128.store(r + 4 * stride, kap)
+  v128.store(r + 4 * stride, kaq, 16)
+  v128.store(r + 5 * stride, up)
+  v128.store(r + 5 * stride, uq, 16)
+  v128.store(r + 6 * stride, vp)
+  v128.store(r + 6 * stride, vq, 16)
+}
+
+/** The last two oscillators when the count is not a multiple of four: one f64x2 vector. */
+function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize): void {
+  const m = <f64>subSteps
+  const a11 = v128.load(c)
+  const a12 = v128.load(c + stride)
+  const b1 = v128.load(c + 2 * stride)
+  const c1 = v128.load(c + 3 * stride)
+  const a21 = v128.load(c + 4 * stride)
+  const a22 = v128.load(c + 5 * stride)
+  const b2 = v128.load(c + 6 * stride)
+  const c2 = v128.load(c + 7 * stride)
+  const cc = v128.load(c + 8 * stride)
+  const kk = v128.load(c + 9 * stride)
+
+  const zero = f64x2.splat(0)
+  let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero
+  let step: f64 = 0
+  let start = load<f64>(record)
+  for (let i: i32 = 1; i < samples; i++) {
+    const end = load<f64>(record + ((<usize>i) << 3))
+    const slope = (end - start) / m
+    let f = start
+    for (let j: i32 = 1; j <= subSteps; j++) {
+      const fNext: f64 = j == subSteps ? end : start + slope * <f64>j
+      step += 1
+      const f0 = f64x2.splat(f)
+      const f1 = f64x2.splat(fNext)
+      const kv = f64x2.splat(step)
+      const nu = lin(a11, u, a12, v, b1, f0, c1, f1)
+      const nv = lin(a21, u, a22, v, b2, f0, c2, f1)
+      u = nu
+      v = nv
+      const au = f64x2.abs(u)
+      ku = v128.bitselect(kv, ku, f64x2.gt(au, mu))
+      mu = f64x2.max(mu, au)
+      mv = f64x2.max(mv, f64x2.abs(v))
+      const aa = f64x2.abs(f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
+      ka = v128.bitselect(kv, ka, f64x2.gt(aa, ma))
+      ma = f64x2.max(ma, aa)
+      f = fNext
+    }
+    start = end
+  }
+  v128.store(r, mu)
+  v128.store(r + stride, mv)
+  v128.store(r + 2 * stride, ma)
+  v128.store(r + 3 * stride, ku)
+  v128.store(r + 4 * stride, ka)
+  v128.store(r + 5 * stride, u)
+  v128.store(r + 6 * stride, v)
 }

@@ -4,7 +4,8 @@
  * peaks of |u|, |v| and |A| (absolute acceleration) with the steps they occur at.
  *
  * Two implementations give the same bits: a WebAssembly SIMD kernel compiled
- * from sweepKernel.as (four oscillators per pass as two f64x2 vectors) and a
+ * from sweepKernel.as (four oscillators per pass as two f64x2 vectors, a last
+ * pair as one) and a
  * plain JavaScript kernel, the reference and the fallback where WebAssembly
  * SIMD is unavailable. Both evaluate, per oscillator and sub-step,
  *   u' = ((a11·u + a12·v) + b1·f) + c1·f'
@@ -28,8 +29,12 @@ export interface SweepKernel {
   readonly name: KernelName
   /** Oscillators per call must be a multiple of this. */
   readonly lanes: number
-  /** Makes `record` the ground acceleration for the following sweeps. */
+  /** Oscillators advanced together per pass: calls are most efficient in multiples of this. */
+  readonly width: number
+  /** Makes (a copy of) `record` the ground acceleration for the following sweeps. */
   loadRecord(record: Float64Array): void
+  /** The array last loaded, so a caller can tell whether a nested sweep replaced it. */
+  readonly loadedRecord: Float64Array | null
   sweep(count: number, subSteps: number, coeffs: Float64Array, out: Float64Array): void
 }
 
@@ -102,11 +107,17 @@ export function jsSweep(
 
 export function createJsKernel(): SweepKernel {
   let record: Float64Array = new Float64Array(0)
+  let loaded: Float64Array | null = null
   return {
     name: 'js',
     lanes: 1,
+    width: 1,
     loadRecord(next) {
-      record = next
+      record = next.slice()
+      loaded = next
+    },
+    get loadedRecord() {
+      return loaded
     },
     sweep(count, subSteps, coeffs, out) {
       jsSweep(record, count, subSteps, coeffs, out)
@@ -159,6 +170,7 @@ export function createWasmKernel(): SweepKernel | null {
   }
   const base = exports.heapBase()
   let samples = 0
+  let loaded: Float64Array | null = null
   const ensureBytes = (bytes: number) => {
     const missing = bytes - exports.memory.buffer.byteLength
     if (missing > 0) exports.memory.grow(Math.ceil(missing / PAGE_BYTES))
@@ -166,14 +178,19 @@ export function createWasmKernel(): SweepKernel | null {
   const recordBytes = () => samples * 8
   return {
     name: 'wasm-simd',
-    lanes: 4,
+    lanes: 2,
+    width: 4,
     loadRecord(record) {
       samples = record.length
       ensureBytes(base + recordBytes())
       new Float64Array(exports.memory.buffer, base, samples).set(record)
+      loaded = record
+    },
+    get loadedRecord() {
+      return loaded
     },
     sweep(count, subSteps, coeffs, out) {
-      if (count % 4 !== 0) throw new RangeError('the WebAssembly kernel takes oscillators in fours')
+      if (count % 2 !== 0) throw new RangeError('the WebAssembly kernel takes oscillators in pairs')
       const coeffsAt = base + recordBytes()
       const outAt = coeffsAt + COEFFICIENT_ARRAYS * count * 8
       ensureBytes(outAt + OUTPUT_ARRAYS * count * 8)
@@ -186,10 +203,21 @@ export function createWasmKernel(): SweepKernel | null {
   }
 }
 
-let shared: SweepKernel | undefined
+let sharedWasm: SweepKernel | null | undefined
+let sharedJs: SweepKernel | undefined
 
-/** The fastest kernel this runtime supports, created once. */
+/** The WebAssembly kernel, instantiated once (V8 optimises it after its first calls); null where unavailable. */
+export function wasmKernel(): SweepKernel | null {
+  if (sharedWasm === undefined) sharedWasm = createWasmKernel()
+  return sharedWasm
+}
+
+export function jsKernel(): SweepKernel {
+  sharedJs ??= createJsKernel()
+  return sharedJs
+}
+
+/** The fastest kernel this runtime supports. */
 export function defaultKernel(): SweepKernel {
-  shared ??= createWasmKernel() ?? createJsKernel()
-  return shared
+  return wasmKernel() ?? jsKernel()
 }
