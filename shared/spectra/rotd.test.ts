@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest'
-import { ROTATION_ANGLE_COUNT, peakAbs, rotD, rotDFromPeaks, rotatedPeaks } from './rotd.js'
+import { computeSpectrum } from './computeSpectrum.js'
+import {
+  ROTATION_ANGLE_COUNT,
+  computeRotDSpectrum,
+  peakAbs,
+  rotD,
+  rotDFromPeaks,
+  rotatedPeaks,
+} from './rotd.js'
 
 // Closed forms for a linearly polarised pair (Boore 2010, BSSA 100(4)): if h₁ = h·cosθ₀ and
 // h₂ = h·sinθ₀, then h(θ) = h·cos(θ − θ₀), so the peak at angle θ is |cos(θ − θ₀)|·max|h|.
@@ -62,6 +70,58 @@ describe('rotatedPeaks', () => {
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) expect(fast[k]).toBeCloseTo(slow[k] as number, 14)
   })
 
+  it('equals the brute-force peaks for growing spirals, noise and nearly polarised motion', () => {
+    // A seeded generator (mulberry32) so the test is repeatable.
+    let state = 12345
+    const random = () => {
+      state = (state + 0x6d2b79f5) >>> 0
+      let t = state
+      t = Math.imul(t ^ (t >>> 15), t | 1)
+      t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
+      return ((t ^ (t >>> 14)) >>> 0) / 4294967296
+    }
+    const n = 6000
+    const families: [string, (i: number) => [number, number]][] = [
+      [
+        'growing rotating ellipse',
+        (i) => [(i / n) * Math.cos(i * 0.07), 0.3 * (i / n) * Math.sin(i * 0.07 + 0.4)],
+      ],
+      [
+        'noise under an envelope',
+        (i) => [
+          Math.sin((Math.PI * i) / n) ** 2 * (random() - 0.5),
+          Math.sin((Math.PI * i) / n) ** 2 * (random() - 0.5),
+        ],
+      ],
+      [
+        'nearly polarised',
+        (i) => [
+          Math.sin(i * 0.05) * (1 + i / n),
+          1e-7 * Math.cos(i * 0.11) + 0.5 * Math.sin(i * 0.05) * (1 + i / n),
+        ],
+      ],
+      [
+        'two frequencies',
+        (i) => [
+          Math.sin(i * 0.031) + 0.5 * Math.sin(i * 0.17),
+          Math.cos(i * 0.023) - 0.4 * Math.sin(i * 0.29),
+        ],
+      ],
+    ]
+    for (const [name, f] of families) {
+      const h1 = new Float64Array(n)
+      const h2 = new Float64Array(n)
+      for (let i = 0; i < n; i++) [h1[i], h2[i]] = f(i)
+      const fast = rotatedPeaks(h1, h2)
+      const slow = brutePeaks(h1, h2)
+      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+        expect(Math.abs((fast[k] as number) - (slow[k] as number)), `${name}, θ = ${k}°`).toBeLessThan(
+          1e-14 * (slow[k] as number) + 1e-300,
+        )
+      }
+    }
+  })
+
   it('gives the same peak in every direction for circular motion', () => {
     // h₁ = cos ωt, h₂ = sin ωt: |cos(ωt − θ)| reaches 1 in every direction when ωt steps by 0.1°.
     const n = 3601
@@ -82,5 +142,130 @@ describe('rotDFromPeaks', () => {
     // Peaks 1…180: sorted middle values are 90 and 91 → RotD50 = 90.5; RotD100 = 180.
     const peaks = Float64Array.from({ length: 180 }, (_, i) => 180 - i)
     expect(rotDFromPeaks(peaks)).toEqual({ rotD50: 90.5, rotD100: 180 })
+  })
+})
+
+describe('computeRotDSpectrum', () => {
+  /** A deterministic synthetic ground motion (m/s²): decaying sines under a smooth envelope. */
+  function motion(points: number, dtS: number, phase: number): Float64Array {
+    const durationS = (points - 1) * dtS
+    return Float64Array.from({ length: points }, (_, i) => {
+      const t = i * dtS
+      const envelope = Math.sin((Math.PI * t) / durationS) ** 2
+      return (
+        envelope *
+        (1.2 * Math.sin(2 * Math.PI * 0.8 * t + phase) +
+          0.9 * Math.sin(2 * Math.PI * 2.5 * t + 0.4) +
+          0.5 * Math.sin(2 * Math.PI * 7 * t + 1.1 + phase))
+      )
+    })
+  }
+  const dtS = 0.01
+  const a = motion(600, dtS, 0)
+  const periodsS = [0.05, 0.2, 0.5, 1.2, 3]
+  const quantities = ['sdM', 'svMPerS', 'saMPerS2', 'psvMPerS', 'psaMPerS2'] as const
+  const combinations = ['geomean', 'rotd50', 'rotd100'] as const
+
+  for (const method of ['newmark-average', 'piecewise-exact'] as const) {
+    it(`polarised pair at 30° (${method}): RotD100 = spectrum of a, RotD50 = cos45° × it, geomean = √(cos30°·sin30°) × it`, () => {
+      // Closed forms for a₁ = a·cosθ₀, a₂ = a·sinθ₀ (see the top of this file). The spectrum of a is
+      // the same sweep on the pair (a, 0), whose 0° direction is a itself: the resultant record is
+      // |a| for both, so both get the same sub-steps and the equalities hold to rounding.
+      const th = (30 * Math.PI) / 180
+      const settings = { dampingRatios: [0.02, 0.05], periodsS, method, combinations: [...combinations] }
+      const alone = computeRotDSpectrum(
+        { accel1MPerS2: a, accel2MPerS2: new Float64Array(a.length), dtS },
+        settings,
+      )
+      const pair = computeRotDSpectrum(
+        { accel1MPerS2: a.map((v) => v * Math.cos(th)), accel2MPerS2: a.map((v) => v * Math.sin(th)), dtS },
+        settings,
+      )
+      expect(pair.curves.map((c) => `${c.dampingRatio} ${c.combination}`)).toEqual([
+        '0.02 geomean',
+        '0.02 rotd50',
+        '0.02 rotd100',
+        '0.05 geomean',
+        '0.05 rotd50',
+        '0.05 rotd100',
+      ])
+      const geomeanFactor = Math.sqrt(Math.cos(th) * Math.sin(th))
+      for (let d = 0; d < 2; d++) {
+        const reference = alone.curves[3 * d + 2] as (typeof alone.curves)[number]
+        const [geomean, rotd50, rotd100] = pair.curves.slice(3 * d, 3 * d + 3)
+        for (const q of quantities) {
+          periodsS.forEach((periodS, p) => {
+            const s = reference[q][p] as number
+            expect(
+              Math.abs((rotd100?.[q][p] as number) / s - 1),
+              `RotD100 ${q} at ${periodS} s`,
+            ).toBeLessThan(1e-12)
+            expect(
+              Math.abs((rotd50?.[q][p] as number) / (Math.SQRT1_2 * s) - 1),
+              `RotD50 ${q} at ${periodS} s`,
+            ).toBeLessThan(1e-12)
+            expect(
+              Math.abs((geomean?.[q][p] as number) / (geomeanFactor * s) - 1),
+              `geomean ${q} at ${periodS} s`,
+            ).toBeLessThan(1e-12)
+          })
+        }
+      }
+    })
+
+    it(`the 0° direction of (a, 0) is the single-record spectrum of a within the engine's 0.5% target (${method})`, () => {
+      // computeSpectrum is the single-record engine; sub-steps may differ by its refinement rule.
+      const settings = { dampingRatios: [0.05], periodsS, method }
+      const single = computeSpectrum({ accelMPerS2: a, dtS }, settings).curves[0]
+      const alone = computeRotDSpectrum(
+        { accel1MPerS2: a, accel2MPerS2: new Float64Array(a.length), dtS },
+        { ...settings, combinations: ['rotd100'] },
+      ).curves[0]
+      for (const q of quantities) {
+        periodsS.forEach((periodS, p) => {
+          expect(
+            Math.abs((alone?.[q][p] as number) / (single?.[q][p] as number) - 1),
+            `${q} at ${periodS} s`,
+          ).toBeLessThan(0.005)
+        })
+      }
+    })
+  }
+
+  it('for two different components: geomean matches √(S₁·S₂) of single runs within the 0.5% accuracy target, and RotD50 ≤ RotD100', () => {
+    // Each component's own spectrum is the 0° or 90° direction; sub-steps may differ from the
+    // single-record sweep by the refinement rule, within the engine's stated 0.5% target.
+    const b = motion(600, dtS, 1.3).map((v, i) => 0.6 * v + 0.2 * Math.sin(i * 0.05))
+    const settings = { dampingRatios: [0.05], periodsS, method: 'newmark-average' as const }
+    const s1 = computeSpectrum({ accelMPerS2: a, dtS }, settings).curves[0]
+    const s2 = computeSpectrum({ accelMPerS2: b, dtS }, settings).curves[0]
+    const pair = computeRotDSpectrum(
+      { accel1MPerS2: a, accel2MPerS2: b, dtS },
+      { ...settings, combinations: [...combinations] },
+    )
+    const [geomean, rotd50, rotd100] = pair.curves
+    periodsS.forEach((_, p) => {
+      const expected = Math.sqrt((s1?.psaMPerS2[p] as number) * (s2?.psaMPerS2[p] as number))
+      expect(Math.abs((geomean?.psaMPerS2[p] as number) / expected - 1)).toBeLessThan(0.005)
+      expect(rotd50?.psaMPerS2[p] as number).toBeLessThanOrEqual(rotd100?.psaMPerS2[p] as number)
+      const larger = Math.max(s1?.psaMPerS2[p] as number, s2?.psaMPerS2[p] as number)
+      expect(rotd100?.psaMPerS2[p] as number).toBeGreaterThanOrEqual(larger * (1 - 0.005))
+    })
+  })
+
+  it('refuses components of different lengths and an unknown combination', () => {
+    const settings = { dampingRatios: [0.05], periodsS: [1], method: 'newmark-average' as const }
+    expect(() =>
+      computeRotDSpectrum(
+        { accel1MPerS2: a, accel2MPerS2: a.subarray(1), dtS },
+        { ...settings, combinations: ['rotd50'] },
+      ),
+    ).toThrow(/same number of samples/)
+    expect(() =>
+      computeRotDSpectrum(
+        { accel1MPerS2: a, accel2MPerS2: a, dtS },
+        { ...settings, combinations: ['rotd75' as 'rotd50'] },
+      ),
+    ).toThrow(/combination/)
   })
 })

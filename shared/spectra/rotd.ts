@@ -11,22 +11,200 @@
  * median convention is from memory).
  */
 
+import { MAX_DAMPING_RATIO, planSpectrum } from './computeSpectrum.js'
+import { freeVibrationTailPeaks } from './freeVibration.js'
+import { SPECTRUM_METHODS, type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
+import { MAX_SUB_STEPS, PEAK_PICKING_BUDGET, peakPickingBound, refinedSubSteps } from './subSteps.js'
+
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
 export const ROTATION_ANGLE_COUNT = 180
 
+/** Direction cosines; 90° is set exactly (cos = 0, sin = 1) so that angle is the second component itself. */
 const COS = new Float64Array(ROTATION_ANGLE_COUNT)
 const SIN = new Float64Array(ROTATION_ANGLE_COUNT)
 for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-  COS[k] = Math.cos((k * Math.PI) / 180)
-  SIN[k] = Math.sin((k * Math.PI) / 180)
+  COS[k] = k === 90 ? 0 : Math.cos((k * Math.PI) / 180)
+  SIN[k] = k === 90 ? 1 : Math.sin((k * Math.PI) / 180)
 }
+/** Index of the 90° direction: the second component's own peak. */
+const SECOND_COMPONENT = 90
+
+/** Directions around the full circle: j and j + 180 are opposite, with the same peak. */
+const FULL_TURN = 2 * ROTATION_ANGLE_COUNT
+/** The polygon is rebuilt after this many raised samples (a stale one is still exact, only looser). */
+const RAISES_PER_REBUILD = 8
 
 /**
- * Peaks max_t |h₁(t)cosθ + h₂(t)sinθ| for θ = 0°…179°, into `out` (length 180).
- *
- * Exact, and fast: |h₁cosθ + h₂sinθ| ≤ √(h₁² + h₂²), so a sample whose resultant does not exceed
- * the smallest peak found so far cannot raise any peak and is skipped. After the strong shaking
- * almost every sample is skipped, so the cost is close to one pass over the histories.
+ * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
+ * sample at a time. Exact, and fast because most samples cannot raise any peak:
+ * - |x cosθ + y sinθ| ≤ √(x² + y²), so a sample inside the circle of the smallest peak is skipped;
+ * - the samples that set the peaks, with their mirror images, span a convex polygon Q inside the
+ *   convex hull of every sample so far; a sample inside Q is a convex combination of earlier
+ *   samples, so it cannot raise any peak and is skipped. Q's vertices are in angular order, so
+ *   finding the edge facing a sample is a short walk from the edge that faced the previous one;
+ * - a sample p outside Q can only beat Q's support h_Q(θ) (≤ the peak) on one arc of directions,
+ *   the normals of the part of Q it sees, and that arc holds the normal of the edge it faces. The
+ *   sampled directions in the arc are contiguous and include one of the two directions beside that
+ *   normal (the last one set by the edge's first vertex, the first one set by the next), so the
+ *   search walks outward from those two while p·d > h_Q and raises any peak p beats on the way.
+ * Q is rebuilt from the current setters every few raises; between rebuilds it is older and smaller,
+ * which keeps every test exact and only makes it looser.
+ */
+export class DirectionalPeaks {
+  /** The peak in each direction θ = k°, k = 0…179. */
+  readonly peaks = new Float64Array(ROTATION_ANGLE_COUNT)
+  /** The sample (signed so its projection is positive) that set each peak. */
+  private readonly setterX = new Float64Array(ROTATION_ANGLE_COUNT)
+  private readonly setterY = new Float64Array(ROTATION_ANGLE_COUNT)
+  /** The peaks when Q was built: Q's support in each direction. */
+  private readonly builtPeaks = new Float64Array(ROTATION_ANGLE_COUNT)
+  /** Q's vertices, counter-clockwise without repeats, and the first direction (0…359) each one set. */
+  private readonly vertexX = new Float64Array(FULL_TURN)
+  private readonly vertexY = new Float64Array(FULL_TURN)
+  private readonly vertexFirstDirection = new Int32Array(FULL_TURN)
+  private vertices = 0
+  private edge = 0
+  private floor2 = 0
+  private raisesSinceBuild = 0
+
+  reset(): void {
+    this.peaks.fill(0)
+    this.setterX.fill(0)
+    this.setterY.fill(0)
+    this.builtPeaks.fill(0)
+    this.vertices = 0
+    this.edge = 0
+    this.floor2 = 0
+    this.raisesSinceBuild = 0
+  }
+
+  add(x: number, y: number): void {
+    if (x * x + y * y <= this.floor2) return
+    if (this.vertices < 3) {
+      this.raiseEverywhere(x, y)
+      return
+    }
+    const facing = this.facingEdge(x, y)
+    if (facing === INSIDE) return
+    if (facing === UNKNOWN) this.raiseEverywhere(x, y)
+    else this.raiseAround(x, y, facing)
+  }
+
+  /**
+   * INSIDE when (x, y) is inside Q; else the index of the edge it lies beyond; UNKNOWN when the walk
+   * finds no wedge (a polygon too thin to tell, for a nearly polarised motion).
+   */
+  private facingEdge(x: number, y: number): number {
+    const vx = this.vertexX
+    const vy = this.vertexY
+    const n = this.vertices
+    let e = this.edge
+    for (let steps = 0; steps <= n; steps++) {
+      const next = e + 1 === n ? 0 : e + 1
+      const x0 = vx[e] as number
+      const y0 = vy[e] as number
+      if (x0 * y - y0 * x < 0) {
+        e = e === 0 ? n - 1 : e - 1
+        continue
+      }
+      const x1 = vx[next] as number
+      const y1 = vy[next] as number
+      if (x1 * y - y1 * x > 0) {
+        e = next
+        continue
+      }
+      this.edge = e
+      return (x1 - x0) * (y - y0) - (y1 - y0) * (x - x0) >= 0 ? INSIDE : e
+    }
+    return UNKNOWN
+  }
+
+  /** Raises direction j (0…359) if (x, y) beats it; returns whether (x, y) beats Q's support there. */
+  private visit(x: number, y: number, j: number): boolean {
+    const k = j < ROTATION_ANGLE_COUNT ? j : j - ROTATION_ANGLE_COUNT
+    const projection = x * (COS[k] as number) + y * (SIN[k] as number)
+    const along = j < ROTATION_ANGLE_COUNT ? projection : -projection
+    if (!(along > (this.builtPeaks[k] as number))) return false
+    if (along > (this.peaks[k] as number)) this.setPeak(k, x, y, projection)
+    return true
+  }
+
+  private setPeak(k: number, x: number, y: number, projection: number): void {
+    this.peaks[k] = Math.abs(projection)
+    this.setterX[k] = projection >= 0 ? x : -x
+    this.setterY[k] = projection >= 0 ? y : -y
+  }
+
+  /** Walks outward from the two directions beside the facing edge's normal (see the class comment). */
+  private raiseAround(x: number, y: number, edge: number): void {
+    const next = edge + 1 === this.vertices ? 0 : edge + 1
+    const after = this.vertexFirstDirection[next] as number
+    const before = after === 0 ? FULL_TURN - 1 : after - 1
+    let j = after
+    for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j + 1 === FULL_TURN ? 0 : j + 1
+    j = before
+    for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j === 0 ? FULL_TURN - 1 : j - 1
+    this.afterRaise()
+  }
+
+  private raiseEverywhere(x: number, y: number): void {
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      const projection = x * (COS[k] as number) + y * (SIN[k] as number)
+      if (Math.abs(projection) > (this.peaks[k] as number)) this.setPeak(k, x, y, projection)
+    }
+    this.afterRaise()
+  }
+
+  private afterRaise(): void {
+    this.raisesSinceBuild++
+    if (this.vertices < 3 || this.raisesSinceBuild >= RAISES_PER_REBUILD) this.rebuild()
+  }
+
+  /** Q from the current setters: θ = 0°…179°, then their mirror images for 180°…359°. */
+  private rebuild(): void {
+    let n = 0
+    let floor = Infinity
+    for (let half = 0; half < 2; half++) {
+      const sign = half === 0 ? 1 : -1
+      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+        const x = sign * (this.setterX[k] as number)
+        const y = sign * (this.setterY[k] as number)
+        if (x === 0 && y === 0) continue
+        if (n > 0 && x === this.vertexX[n - 1] && y === this.vertexY[n - 1]) continue
+        this.vertexX[n] = x
+        this.vertexY[n] = y
+        this.vertexFirstDirection[n] = half * ROTATION_ANGLE_COUNT + k
+        n++
+      }
+    }
+    if (n > 1 && this.vertexX[0] === this.vertexX[n - 1] && this.vertexY[0] === this.vertexY[n - 1]) {
+      // The last run wraps around to the first: it starts where the last vertex's run started.
+      this.vertexFirstDirection[0] = this.vertexFirstDirection[n - 1] as number
+      n--
+    }
+    let top = 0
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      floor = Math.min(floor, this.peaks[k] as number)
+      top = Math.max(top, this.peaks[k] as number)
+    }
+    this.builtPeaks.set(this.peaks)
+    // A polygon thinner than this (a nearly polarised motion) is too flat for the wedge tests to
+    // be trusted in floating point; every sample outside the floor circle is then scanned in full.
+    this.vertices = floor > THIN_POLYGON * top ? n : 0
+    if (this.edge >= n) this.edge = 0
+    this.floor2 = floor * floor
+    this.raisesSinceBuild = 0
+  }
+}
+
+/** Smallest width of Q, relative to its largest, for the polygon tests to be used. */
+const THIN_POLYGON = 1e-6
+const INSIDE = -1
+const UNKNOWN = -2
+
+/**
+ * Peaks max_t |h₁(t)cosθ + h₂(t)sinθ| for θ = 0°…179°, into `out` (length 180); exact
+ * (see {@link DirectionalPeaks}).
  */
 export function rotatedPeaks(
   h1: ArrayLike<number>,
@@ -35,21 +213,9 @@ export function rotatedPeaks(
 ): Float64Array {
   if (h1.length !== h2.length) throw new RangeError('the two component histories must have the same length')
   if (out.length !== ROTATION_ANGLE_COUNT) throw new RangeError(`out must hold ${ROTATION_ANGLE_COUNT} peaks`)
-  out.fill(0)
-  let floor2 = 0
-  const n = h1.length
-  for (let i = 0; i < n; i++) {
-    const x = h1[i] as number
-    const y = h2[i] as number
-    if (x * x + y * y <= floor2) continue
-    let floor = Infinity
-    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-      const v = Math.abs(x * (COS[k] as number) + y * (SIN[k] as number))
-      const p = v > (out[k] as number) ? (out[k] = v) : (out[k] as number)
-      if (p < floor) floor = p
-    }
-    floor2 = floor * floor
-  }
+  const tracker = new DirectionalPeaks()
+  for (let i = 0; i < h1.length; i++) tracker.add(h1[i] as number, h2[i] as number)
+  out.set(tracker.peaks)
   return out
 }
 
@@ -91,3 +257,322 @@ export function peakAbs(h: ArrayLike<number>): number {
 export function geometricMeanOrdinate(s1: number, s2: number): number {
   return Math.sqrt(s1 * s2)
 }
+
+export type PairCombination = 'geomean' | 'rotd50' | 'rotd100'
+export const PAIR_COMBINATIONS: readonly PairCombination[] = ['geomean', 'rotd50', 'rotd100']
+
+export interface PairRecord {
+  /** The two horizontal components (m/s²), same Δt and length. */
+  accel1MPerS2: Float64Array
+  accel2MPerS2: Float64Array
+  dtS: number
+}
+
+export interface PairSpectrumSettings {
+  dampingRatios: number[]
+  periodsS: number[]
+  method: SpectrumMethod
+  combinations: PairCombination[]
+  onProgress?: (fraction: number) => void
+}
+
+export interface PairSpectrumCurve {
+  dampingRatio: number
+  combination: PairCombination
+  sdM: Float64Array
+  svMPerS: Float64Array
+  saMPerS2: Float64Array
+  psvMPerS: Float64Array
+  psaMPerS2: Float64Array
+}
+
+export interface PairSpectrumComputation {
+  periodsS: Float64Array
+  /** Damping-major, then in the order of `combinations`. */
+  curves: PairSpectrumCurve[]
+  /** How the two components were combined, for the method statement. */
+  combinationStatement: string
+  /** Sub-steps of each oscillator after refinement, damping-major (index = d·periods + p). */
+  subSteps: Int32Array
+  oscillatorSteps: number
+}
+
+/** Peaks in the 180 directions of relative displacement, relative velocity and absolute acceleration. */
+interface OscillatorDirections {
+  u: DirectionalPeaks
+  v: DirectionalPeaks
+  a: DirectionalPeaks
+}
+
+/**
+ * Solves one oscillator under both components at once (the same recurrence and sub-steps as the
+ * single-record sweep: sweepKernel.ts, with the ground acceleration interpolated linearly between
+ * samples), folding each step into the directional peaks, then adds the closed-form peaks of the
+ * free vibration after the record in every direction (freeVibration.ts).
+ */
+function solvePairOscillator(
+  record: PairRecord,
+  method: SpectrumMethod,
+  periodS: number,
+  zeta: number,
+  subSteps: number,
+  out: OscillatorDirections,
+): void {
+  const omega = (2 * Math.PI) / periodS
+  const { a11, a12, b1, c1, a21, a22, b2, c2 } = recurrenceCoefficients(
+    method,
+    omega,
+    zeta,
+    record.dtS / subSteps,
+  )
+  const cc = 2 * zeta * omega
+  const kk = omega * omega
+  const g1 = record.accel1MPerS2
+  const g2 = record.accel2MPerS2
+  const m = subSteps
+  out.u.reset()
+  out.v.reset()
+  out.a.reset()
+  let u1 = 0
+  let v1 = 0
+  let u2 = 0
+  let v2 = 0
+  let start1 = g1[0] as number
+  let start2 = g2[0] as number
+  for (let i = 1; i < g1.length; i++) {
+    const end1 = g1[i] as number
+    const end2 = g2[i] as number
+    const slope1 = (end1 - start1) / m
+    const slope2 = (end2 - start2) / m
+    let f1 = start1
+    let f2 = start2
+    for (let j = 1; j <= m; j++) {
+      const next1 = j === m ? end1 : start1 + slope1 * j
+      const next2 = j === m ? end2 : start2 + slope2 * j
+      const nu1 = a11 * u1 + a12 * v1 + b1 * f1 + c1 * next1
+      const nv1 = a21 * u1 + a22 * v1 + b2 * f1 + c2 * next1
+      const nu2 = a11 * u2 + a12 * v2 + b1 * f2 + c1 * next2
+      const nv2 = a21 * u2 + a22 * v2 + b2 * f2 + c2 * next2
+      u1 = nu1
+      v1 = nv1
+      u2 = nu2
+      v2 = nv2
+      out.u.add(u1, u2)
+      out.v.add(v1, v2)
+      out.a.add(cc * v1 + kk * u1, cc * v2 + kk * u2)
+      f1 = next1
+      f2 = next2
+    }
+    start1 = end1
+    start2 = end2
+  }
+  for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+    const c = COS[k] as number
+    const s = SIN[k] as number
+    const tail = freeVibrationTailPeaks(c * u1 + s * u2, c * v1 + s * v2, omega, zeta)
+    if (tail.u.value > (out.u.peaks[k] as number)) out.u.peaks[k] = tail.u.value
+    if (tail.v.value > (out.v.peaks[k] as number)) out.v.peaks[k] = tail.v.value
+    if (tail.a.value > (out.a.peaks[k] as number)) out.a.peaks[k] = tail.a.value
+  }
+}
+
+interface DirectionalArrays {
+  u: Float64Array
+  v: Float64Array
+  a: Float64Array
+}
+
+/** Largest resultant ground acceleration and steepest resultant slope of the pair. */
+function pairExtremes(record: PairRecord): { pgaMPerS2: number; maxSlopeMPerS3: number } {
+  const g1 = record.accel1MPerS2
+  const g2 = record.accel2MPerS2
+  let pga = 0
+  let slope = 0
+  for (let i = 0; i < g1.length; i++) {
+    pga = Math.max(pga, Math.hypot(g1[i] as number, g2[i] as number))
+    if (i > 0)
+      slope = Math.max(
+        slope,
+        Math.hypot((g1[i] as number) - (g1[i - 1] as number), (g2[i] as number) - (g2[i - 1] as number)),
+      )
+  }
+  return { pgaMPerS2: pga, maxSlopeMPerS3: slope / record.dtS }
+}
+
+/** Refinement passes after the first, as in the single-record sweep. */
+const MAX_REFINEMENTS = 3
+
+function checkPair(record: PairRecord, settings: PairSpectrumSettings): void {
+  if (!(Number.isFinite(record.dtS) && record.dtS > 0))
+    throw new RangeError('dtS must be a positive number of seconds')
+  if (record.accel1MPerS2.length < 2) throw new RangeError('the record needs at least two samples')
+  if (!SPECTRUM_METHODS.includes(settings.method))
+    throw new RangeError(`unknown method ${String(settings.method)}`)
+  if (settings.dampingRatios.length === 0) throw new RangeError('give at least one damping ratio')
+  for (const zeta of settings.dampingRatios) {
+    if (!(zeta >= 0 && zeta < MAX_DAMPING_RATIO)) throw new RangeError('dampingRatio must be in [0, 0.5)')
+  }
+  if (settings.periodsS.length === 0) throw new RangeError('give at least one period')
+  for (const period of settings.periodsS) {
+    if (!(Number.isFinite(period) && period > 0))
+      throw new RangeError('periods must be positive numbers of seconds')
+  }
+  if (record.accel1MPerS2.length !== record.accel2MPerS2.length) {
+    throw new RangeError('the two components must have the same number of samples')
+  }
+  for (const series of [record.accel1MPerS2, record.accel2MPerS2]) {
+    for (const value of series)
+      if (!Number.isFinite(value))
+        throw new RangeError('a component holds a value that is not a finite number')
+  }
+  if (settings.combinations.length === 0) throw new RangeError('give at least one combination')
+  for (const c of settings.combinations) {
+    if (!PAIR_COMBINATIONS.includes(c)) throw new RangeError(`unknown combination ${String(c)}`)
+  }
+}
+
+/**
+ * Two-component spectra of a record pair: the geometric mean of the two components' spectra
+ * (√(S₁·S₂)), and RotD50 and RotD100 (Boore 2010) over 0°–179° in 1° steps, for each damping
+ * ratio and period, in SI.
+ *
+ * Each oscillator is solved once per component (twice in all) and the rotation is applied to
+ * the response histories, u(θ,t) = u₁(t)cosθ + u₂(t)sinθ, likewise v and the absolute
+ * acceleration (all linear in the ground motion). The peaks in each direction are exact over the
+ * steps and the closed-form free-vibration tail; the components' own peaks are the 0° and 90°
+ * directions. PSV and PSA follow from SD in each direction (ω·SD, ω²·SD), and percentiles commute
+ * with that positive scaling.
+ *
+ * Sub-steps: the engine's first-pass rule (planSpectrum in computeSpectrum.ts), then up to three
+ * refinements with its peak-picking bound (subSteps.ts), taken on the maximum-direction peaks and
+ * the pair's resultant PGA and steepest resultant slope. For a linearly polarised pair this gives
+ * the very sub-steps of the single-record sweep of the polarised motion.
+ */
+export function computeRotDSpectrum(
+  record: PairRecord,
+  settings: PairSpectrumSettings,
+): PairSpectrumComputation {
+  checkPair(record, settings)
+  const { dampingRatios, periodsS, method } = settings
+  const points = record.accel1MPerS2.length
+  const plan = planSpectrum(points, record.dtS, settings)
+  const count = plan.subSteps.length
+  const subSteps = Int32Array.from(plan.subSteps)
+  // One set of trackers serves every oscillator; each one's peaks are copied out after its solve.
+  const work: OscillatorDirections = {
+    u: new DirectionalPeaks(),
+    v: new DirectionalPeaks(),
+    a: new DirectionalPeaks(),
+  }
+  const peaks = Array.from({ length: count }, () => ({
+    u: new Float64Array(ROTATION_ANGLE_COUNT),
+    v: new Float64Array(ROTATION_ANGLE_COUNT),
+    a: new Float64Array(ROTATION_ANGLE_COUNT),
+  }))
+  const solve = (index: number) => {
+    const { periodS, dampingRatio } = oscillator(index)
+    solvePairOscillator(record, method, periodS, dampingRatio, subSteps[index] as number, work)
+    const p = peaks[index] as DirectionalArrays
+    p.u.set(work.u.peaks)
+    p.v.set(work.v.peaks)
+    p.a.set(work.a.peaks)
+  }
+  const oscillator = (index: number) => ({
+    periodS: periodsS[index % periodsS.length] as number,
+    dampingRatio: dampingRatios[Math.floor(index / periodsS.length)] as number,
+  })
+  const intervals = points - 1
+  let firstPassSteps = 0
+  for (const m of subSteps) firstPassSteps += intervals * m
+  let done = 0
+  settings.onProgress?.(0)
+  for (let index = 0; index < count; index++) {
+    solve(index)
+    done += intervals * (subSteps[index] as number)
+    settings.onProgress?.(0.9 * (done / Math.max(firstPassSteps, 1)))
+  }
+  const extremes = pairExtremes(record)
+  for (let pass = 0; pass < MAX_REFINEMENTS; pass++) {
+    const again: number[] = []
+    for (let index = 0; index < count; index++) {
+      const { periodS, dampingRatio } = oscillator(index)
+      const p = peaks[index] as DirectionalArrays
+      const m = subSteps[index] as number
+      const bound = peakPickingBound({
+        periodS,
+        dampingRatio,
+        stepS: record.dtS / m,
+        sdM: peakAbs(p.u),
+        svMPerS: peakAbs(p.v),
+        saMPerS2: peakAbs(p.a),
+        ...extremes,
+      })
+      if (bound <= PEAK_PICKING_BUDGET || m >= MAX_SUB_STEPS) continue
+      subSteps[index] = refinedSubSteps(m, bound)
+      again.push(index)
+    }
+    for (const index of again) solve(index)
+    settings.onProgress?.(0.9 + (0.1 * (pass + 1)) / MAX_REFINEMENTS)
+    if (again.length === 0) break
+  }
+  settings.onProgress?.(1)
+
+  const scratch = new Float64Array(ROTATION_ANGLE_COUNT)
+  const curves: PairSpectrumCurve[] = []
+  dampingRatios.forEach((dampingRatio, d) => {
+    const made = new Map<PairCombination, PairSpectrumCurve>()
+    for (const combination of settings.combinations) {
+      made.set(combination, {
+        dampingRatio,
+        combination,
+        sdM: new Float64Array(periodsS.length),
+        svMPerS: new Float64Array(periodsS.length),
+        saMPerS2: new Float64Array(periodsS.length),
+        psvMPerS: new Float64Array(periodsS.length),
+        psaMPerS2: new Float64Array(periodsS.length),
+      })
+    }
+    periodsS.forEach((periodS, p) => {
+      const directional = peaks[d * periodsS.length + p] as DirectionalArrays
+      const u = rotDFromPeaks(directional.u, scratch)
+      const v = rotDFromPeaks(directional.v, scratch)
+      const a = rotDFromPeaks(directional.a, scratch)
+      const omega = (2 * Math.PI) / periodS
+      for (const [combination, curve] of made) {
+        let sd: number
+        let sv: number
+        let sa: number
+        if (combination === 'geomean') {
+          sd = geometricMeanOrdinate(directional.u[0] as number, directional.u[SECOND_COMPONENT] as number)
+          sv = geometricMeanOrdinate(directional.v[0] as number, directional.v[SECOND_COMPONENT] as number)
+          sa = geometricMeanOrdinate(directional.a[0] as number, directional.a[SECOND_COMPONENT] as number)
+        } else {
+          const key = combination === 'rotd50' ? 'rotD50' : 'rotD100'
+          sd = u[key]
+          sv = v[key]
+          sa = a[key]
+        }
+        curve.sdM[p] = sd
+        curve.svMPerS[p] = sv
+        curve.saMPerS2[p] = sa
+        curve.psvMPerS[p] = omega * sd
+        curve.psaMPerS2[p] = omega * omega * sd
+      }
+    })
+    curves.push(...made.values())
+  })
+  let oscillatorSteps = 0
+  for (const m of subSteps) oscillatorSteps += 2 * intervals * m
+  return {
+    periodsS: Float64Array.from(periodsS),
+    curves,
+    combinationStatement: PAIR_COMBINATION_STATEMENT,
+    subSteps,
+    oscillatorSteps,
+  }
+}
+
+export const PAIR_COMBINATION_STATEMENT =
+  'Two components: each oscillator solved once per component; responses rotated as u(θ,t) = u₁(t)cosθ + u₂(t)sinθ ' +
+  'for θ = 0°–179° in 1° steps. RotD100 is the largest and RotD50 the median of the 180 directional peaks ' +
+  '(Boore 2010, BSSA 100(4)); the geometric mean is √(S₁·S₂) of the two components as recorded.'
