@@ -6,12 +6,17 @@
 import { createHash } from 'node:crypto'
 import { aliasedTable, and, eq } from 'drizzle-orm'
 import { z } from 'zod'
+import {
+  DEFAULT_COMPARISON_CHART_VIEW,
+  comparisonChartInput,
+} from '../../shared/charts/comparisonChartInput.js'
+import { DEFAULT_SPECTRUM_VIEW, runSpectrumChartInput } from '../../shared/charts/runSpectrumChartInput.js'
 import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
 import { STANDARD_GRAVITY_MPERS2 } from '../../shared/charts/units.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import { type SpectrumResult, spectrumResultSchema } from '../../shared/schemas/spectrum.js'
-import type { PlotExportQuery, Sheet } from '../../shared/schemas/sheets.js'
+import type { PlotExportQuery, Sheet, SpectrumChartInput } from '../../shared/schemas/sheets.js'
 import type { Db } from '../db/client.js'
 import { firms, projects, recordPairs, records, reviews, runs, spectra, users } from '../db/schema.js'
 import { renderChartPng } from '../exports/chartPng.js'
@@ -20,7 +25,7 @@ import { comparisonOrdinatesCsv, runOrdinatesCsv } from '../exports/ordinatesCsv
 import { type SheetRecordFacts, buildRunSheetFromFacts } from '../exports/runSheet.js'
 import { renderSheetPdf } from '../exports/sheetPdf.js'
 import { type ReviewFacts, ordinateVersion } from '../exports/sheetParts.js'
-import { conflict, notFound } from '../httpError.js'
+import { badRequest, conflict, notFound } from '../httpError.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { getComparisonView } from './comparisons.js'
@@ -85,7 +90,11 @@ function reviewFacts(db: Db, subjectType: ExportSubject, subjectId: string): Rev
 }
 
 /** A run's sheet and the spectrum it was built from. */
-function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; spectrum: SpectrumResult } {
+function loadRunSheet(
+  db: Db,
+  firmId: string,
+  runId: string,
+): { sheet: Sheet; spectrum: SpectrumResult; subjectName: string } {
   const author = aliasedTable(users, 'author')
   const row = db
     .select({
@@ -136,7 +145,7 @@ function loadRunSheet(db: Db, firmId: string, runId: string): { sheet: Sheet; sp
     spectrumWarnings: spectrum.warnings,
     review: reviewFacts(db, 'run', row.id),
   })
-  return { sheet, spectrum }
+  return { sheet, spectrum, subjectName }
 }
 
 /** The record of a run, or the two records of a pair run, and the name the sheet gives it. */
@@ -219,20 +228,49 @@ export function exportFileName(sheet: Sheet, format: ExportFormat): string {
   return `${sheet.reference}-rev${sheet.revision}${slug ? `-${slug}` : ''}.${format}`
 }
 
-/** The sheet of a subject and its CSV of every ordinate. */
+/**
+ * The sheet of a subject, its CSV of every ordinate, and its chart in the view asked for
+ * (the sheet's own chart when the query names no view).
+ */
 function loadExport(
   db: Db,
   firmId: string,
   subject: ExportSubject,
   id: string,
-): { sheet: Sheet; csv: () => string } {
+  query: PlotExportQuery,
+): { sheet: Sheet; csv: () => string; chart: () => SpectrumChartInput } {
   if (subject === 'run') {
-    const { sheet, spectrum } = loadRunSheet(db, firmId, id)
-    return { sheet, csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_MPERS2) }
+    const { sheet, spectrum, subjectName } = loadRunSheet(db, firmId, id)
+    return {
+      sheet,
+      csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_MPERS2),
+      chart: () =>
+        runSpectrumChartInput(spectrum, subjectName, {
+          quantity: query.quantity ?? DEFAULT_SPECTRUM_VIEW.quantity,
+          // A quantity without a unit takes the quantity's default unit, as the chart does.
+          unit: query.unit ?? (query.quantity ? undefined : DEFAULT_SPECTRUM_VIEW.unit),
+          xScale: query.xScale ?? DEFAULT_SPECTRUM_VIEW.xScale,
+          yScale: query.yScale ?? DEFAULT_SPECTRUM_VIEW.yScale,
+        }),
+    }
+  }
+  if ((query.quantity && query.quantity !== 'PSA') || (query.unit && query.unit !== 'g')) {
+    throw badRequest('A comparison is plotted as PSA in g; choose only its axis scales.', 'invalid_input')
   }
   const { sheet, view } = loadComparisonSheet(db, firmId, id)
-  return { sheet, csv: () => comparisonOrdinatesCsv(sheet, view) }
+  return {
+    sheet,
+    csv: () => comparisonOrdinatesCsv(sheet, view),
+    chart: () =>
+      comparisonChartInput(view, {
+        ...DEFAULT_COMPARISON_CHART_VIEW,
+        ...(query.xScale ? { xScale: query.xScale } : {}),
+        ...(query.yScale ? { yScale: query.yScale } : {}),
+      }),
+  }
 }
+
+const chartSvg = (input: SpectrumChartInput) => spectrumChartSvg(input.data, input.options)
 
 /** Makes one export file and records it in the audit log. */
 export async function exportSheet(
@@ -243,17 +281,17 @@ export async function exportSheet(
   format: ExportFormat,
   query: PlotExportQuery,
 ): Promise<ExportFile> {
-  const { sheet, csv } = loadExport(db, member.firmId, subject, id)
+  const { sheet, csv, chart } = loadExport(db, member.firmId, subject, id, query)
   let file: Omit<ExportFile, 'fileName'>
   switch (format) {
     case 'pdf':
       file = { body: await renderSheetPdf(sheet), contentType: 'application/pdf' }
       break
     case 'png':
-      file = { body: renderChartPng(sheet.chart, query.widthMm), contentType: 'image/png' }
+      file = { body: renderChartPng(chart(), query.widthMm), contentType: 'image/png' }
       break
     case 'svg':
-      file = { body: spectrumChartSvg(sheet.chart.data, sheet.chart.options), contentType: 'image/svg+xml' }
+      file = { body: chartSvg(chart()), contentType: 'image/svg+xml' }
       break
     case 'csv':
       file = { body: csv(), contentType: 'text/csv' }
@@ -274,6 +312,9 @@ export async function exportSheet(
       bytes: Buffer.byteLength(file.body),
       sha256: createHash('sha256').update(file.body).digest('hex'),
       ...(format === 'png' ? { widthMm: query.widthMm } : {}),
+      ...(format === 'png' || format === 'svg'
+        ? { view: { quantity: query.quantity, unit: query.unit, xScale: query.xScale, yScale: query.yScale } }
+        : {}),
     },
   })
   return { ...file, fileName }

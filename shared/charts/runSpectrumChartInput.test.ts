@@ -27,7 +27,13 @@ const spectrum = {
 describe('runSpectrumChartInput', () => {
   it('draws one record curve per damping ratio, periods ascending, PSA in g on a log period axis by default', () => {
     const input = runSpectrumChartInput(spectrum, 'Record A')
-    expect(input.options).toEqual({ quantity: 'PSA', unit: 'g', xScale: 'log', yScale: 'linear' })
+    expect(input.options).toEqual({
+      quantity: 'PSA',
+      unit: 'g',
+      xScale: 'log',
+      yScale: 'linear',
+      title: 'PSA of Record A',
+    })
     expect(input.data.series[0]).toEqual({
       label: 'Record A',
       periodsS: [0.1, 0.5, 1],
@@ -49,6 +55,20 @@ describe('runSpectrumChartInput', () => {
       yScale: 'log',
     })
     expect(input.data.series[0]?.values).toEqual([1, 2, 3])
-    expect(input.options).toEqual({ quantity: 'SD', unit: 'mm', xScale: 'linear', yScale: 'log' })
+    expect(input.options).toMatchObject({
+      quantity: 'SD',
+      unit: 'mm',
+      xScale: 'linear',
+      yScale: 'log',
+      title: 'SD of Record A',
+    })
+  })
+
+  it('states the solver and the record’s Δt under the chart when the spectrum carries them', () => {
+    const input = runSpectrumChartInput(
+      { ...spectrum, method: 'piecewise-exact', methodStatement: { recordDtS: 0.005 } },
+      'A',
+    )
+    expect(input.options.note).toBe('piecewise-exact recurrence; Δt = 0.005 s')
   })
 })

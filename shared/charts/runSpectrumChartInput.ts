@@ -2,6 +2,7 @@
  * The inputs of the spectrum chart for one run, built in one place so the run page and the
  * exports (SVG, PNG, the PDF sheet) draw the very same chart from the same spectrum.
  */
+import type { RunMethod } from '../schemas/runs.js'
 import type { SpectrumChartInput } from '../schemas/sheets.js'
 import type { AxisScale } from './axes.js'
 import type { DisplayUnit, SpectrumQuantity } from './units.js'
@@ -21,6 +22,16 @@ export interface RunSpectrumCurve {
 export interface RunSpectrumLike {
   periodsS: ArrayLike<number>
   curves: RunSpectrumCurve[]
+  /** What produced the numbers (the engine's JSON has both), stated under the chart. */
+  method?: RunMethod
+  methodStatement?: { recordDtS: number }
+}
+
+/** Short names of the solvers, for the line under the chart. */
+export const RUN_METHOD_NAMES: Record<RunMethod, string> = {
+  'newmark-average': 'Newmark-β, average acceleration',
+  'newmark-linear': 'Newmark-β, linear acceleration',
+  'piecewise-exact': 'piecewise-exact recurrence',
 }
 
 /** What the engineer chose to look at. */
@@ -55,7 +66,8 @@ const COMBINATION_LABELS: Record<string, string> = {
 
 /**
  * One curve per damping ratio (and combination), with the periods in ascending order so a
- * list of periods given in any order still draws as a line.
+ * list of periods given in any order still draws as a line; titled with the quantity and
+ * the record, and, where the spectrum says, noted with the solver and Δt.
  */
 export function runSpectrumChartInput(
   spectrum: RunSpectrumLike,
@@ -83,6 +95,10 @@ export function runSpectrumChartInput(
     quantity: view.quantity,
     xScale: view.xScale,
     yScale: view.yScale,
+    title: `${view.quantity} of ${recordLabel}`,
+  }
+  if (spectrum.method && spectrum.methodStatement) {
+    options.note = `${RUN_METHOD_NAMES[spectrum.method]}; Δt = ${spectrum.methodStatement.recordDtS} s`
   }
   if (view.unit) options.unit = view.unit
   return { data: { series }, options }

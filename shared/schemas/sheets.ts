@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { type DisplayUnit, type SpectrumQuantity, displayUnits, spectrumQuantities } from '../charts/units.js'
 
 /**
  * The calc-package sheet of a run or a comparison, as the server builds it
@@ -8,6 +9,12 @@ import { z } from 'zod'
  */
 
 const numbers = z.array(z.number())
+
+const QUANTITIES = Object.keys(spectrumQuantities) as [SpectrumQuantity, ...SpectrumQuantity[]]
+const UNITS = Object.keys(displayUnits) as [DisplayUnit, ...DisplayUnit[]]
+const quantitySchema = z.enum(QUANTITIES, { error: `quantity is one of ${QUANTITIES.join(', ')}.` })
+const unitSchema = z.enum(UNITS, { error: `unit is one of ${UNITS.join(', ')}.` })
+const scaleSchema = z.enum(['log', 'linear'], { error: 'An axis scale is log or linear.' })
 
 export const chartSeriesSchema = z.object({
   label: z.string(),
@@ -24,10 +31,10 @@ export const spectrumChartInputSchema = z.object({
     band: z.object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers }).optional(),
   }),
   options: z.object({
-    quantity: z.enum(['PSA', 'SA', 'PSV', 'SV', 'SD']),
-    unit: z.enum(['g', 'm/s²', 'm/s', 'cm/s', 'm', 'cm', 'mm']).optional(),
-    xScale: z.enum(['log', 'linear']).optional(),
-    yScale: z.enum(['log', 'linear']).optional(),
+    quantity: quantitySchema,
+    unit: unitSchema.optional(),
+    xScale: scaleSchema.optional(),
+    yScale: scaleSchema.optional(),
     widthPx: z.number().optional(),
     heightPx: z.number().optional(),
     title: z.string().optional(),
@@ -106,12 +113,24 @@ export type Sheet = z.infer<typeof sheetSchema>
 
 export const EXPORT_WIDTH_MM = { min: 50, max: 400, default: 170 } as const
 
-/** The query of the plot exports (PNG and SVG): the view the engineer sees. */
-export const plotExportQuerySchema = z.strictObject({
-  widthMm: z.coerce
-    .number({ error: 'widthMm must be a number of millimetres.' })
-    .min(EXPORT_WIDTH_MM.min, `widthMm must be at least ${EXPORT_WIDTH_MM.min} mm.`)
-    .max(EXPORT_WIDTH_MM.max, `widthMm must be at most ${EXPORT_WIDTH_MM.max} mm.`)
-    .default(EXPORT_WIDTH_MM.default),
-})
+/**
+ * The query of the exports. The plot exports (PNG, SVG) draw the view the engineer has on
+ * screen when it is given (quantity, unit, axis scales); the PDF sheet always shows PSA in g.
+ */
+export const plotExportQuerySchema = z
+  .strictObject({
+    widthMm: z.coerce
+      .number({ error: 'widthMm must be a number of millimetres.' })
+      .min(EXPORT_WIDTH_MM.min, `widthMm must be at least ${EXPORT_WIDTH_MM.min} mm.`)
+      .max(EXPORT_WIDTH_MM.max, `widthMm must be at most ${EXPORT_WIDTH_MM.max} mm.`)
+      .default(EXPORT_WIDTH_MM.default),
+    quantity: quantitySchema.optional(),
+    unit: unitSchema.optional(),
+    xScale: scaleSchema.optional(),
+    yScale: scaleSchema.optional(),
+  })
+  .refine((q) => !q.unit || displayUnits[q.unit].kind === spectrumQuantities[q.quantity ?? 'PSA'].kind, {
+    message: 'unit does not measure the quantity (for example SD in g).',
+    path: ['unit'],
+  })
 export type PlotExportQuery = z.infer<typeof plotExportQuerySchema>

@@ -11,18 +11,33 @@ export function getSheet(subject: ExportSubject, id: string, signal?: AbortSigna
   return apiRequest(`${BASE[subject]}/${encodeURIComponent(id)}/sheet`, sheetSchema, { signal })
 }
 
+/** The view of a plot export: what the engineer has on screen. */
+export interface PlotView {
+  quantity?: string
+  unit?: string
+  xScale?: 'log' | 'linear'
+  yScale?: 'log' | 'linear'
+}
+
 /**
  * Where to download an export. A plain same-origin GET: the browser saves it under the
- * server's file name (Content-Disposition) and the session cookie authorises it.
+ * server's file name (Content-Disposition) and the session cookie authorises it. The plot
+ * formats take the on-screen view, and the PNG a printed width.
  */
 export function exportUrl(
   subject: ExportSubject,
   id: string,
   format: ExportFormat,
-  widthMm?: number,
+  options: { widthMm?: number; view?: PlotView } = {},
 ): string {
   const path = `${BASE[subject]}/${encodeURIComponent(id)}/export.${format}`
-  return format === 'png' && widthMm !== undefined
-    ? `${path}?widthMm=${encodeURIComponent(String(widthMm))}`
-    : path
+  const params = new URLSearchParams()
+  if (format === 'png' && options.widthMm !== undefined) params.set('widthMm', String(options.widthMm))
+  if (format === 'png' || format === 'svg') {
+    for (const [key, value] of Object.entries(options.view ?? {})) {
+      if (value !== undefined) params.set(key, value)
+    }
+  }
+  const query = params.toString()
+  return query ? `${path}?${query}` : path
 }

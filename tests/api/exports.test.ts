@@ -223,6 +223,24 @@ describe('GET /api/runs/:id/export.svg', () => {
     expect(served).toBe(spectrumChartSvg(input.data, input.options))
   })
 
+  it('draws the view asked for, as the page does for the same choices', async () => {
+    const run = (await engineer.get(`/api/runs/${runId}`)).body
+    const spectrum = (await engineer.get(`/api/runs/${runId}/spectrum`)).body
+    const view = { quantity: 'SD', unit: 'mm', xScale: 'linear', yScale: 'log' } as const
+    const input = runSpectrumChartInput(spectrum, run.subjectName, view)
+    const res = await engineer.get(`/api/runs/${runId}/export.svg`).query(view).buffer(true)
+    expect(res.status).toBe(200)
+    const served = Buffer.isBuffer(res.body) ? res.body.toString('utf8') : res.text
+    expect(served).toBe(spectrumChartSvg(input.data, input.options))
+    expect(served).toContain('Spectral displacement, SD (mm)')
+  })
+
+  it('refuses a unit that does not measure the quantity', async () => {
+    const res = await engineer.get(`/api/runs/${runId}/export.svg?quantity=SD&unit=g`)
+    expect(res.status).toBe(400)
+    expect(res.body.error.message).toMatch(/unit/)
+  })
+
   it('escapes the record name instead of carrying its markup', async () => {
     const res = await engineer.get(`/api/runs/${runId}/export.svg`).buffer(true)
     const svg = Buffer.isBuffer(res.body) ? res.body.toString('utf8') : res.text
@@ -359,6 +377,12 @@ describe('comparison exports', () => {
     expect(res.status).toBe(200)
     const served = Buffer.isBuffer(res.body) ? res.body.toString('utf8') : res.text
     expect(served).toBe(spectrumChartSvg(input.data, input.options))
+  })
+
+  it('plots a comparison only as PSA in g', async () => {
+    const res = await engineer.get(`/api/comparisons/${comparisonId}/export.png?quantity=SD&unit=mm`)
+    expect(res.status).toBe(400)
+    expect(res.body.error.message).toMatch(/PSA in g/)
   })
 
   it('puts the target, the scale factors and the suite check on the PDF', async () => {
