@@ -142,6 +142,24 @@ function restartSharedQueue() {
   queue.start()
 }
 
+/**
+ * Runs `body` with a queue of its own on the app's database in place of the shared one (stopped
+ * first, so it claims nothing meanwhile); the test starts it when its runs are posted.
+ */
+async function withOwnQueue(
+  options: { workerCount: number; runTimeLimitS?: number; idleMs?: number },
+  body: (own: RunQueue) => Promise<void>,
+) {
+  await queue.stop(0)
+  const own = new RunQueue({ db: ctx.db, runTimeLimitS: 60, idleMs: 5000, ...options })
+  try {
+    await body(own)
+  } finally {
+    await own.stop(0)
+    restartSharedQueue()
+  }
+}
+
 /** Posts a run as `agent` and waits for it to end; answers the run as GET /api/runs/:id gives it. */
 async function runToEnd(agent: request.Agent, body: Record<string, unknown>) {
   const res = await agent.post('/api/runs').send(body)
@@ -656,9 +674,7 @@ describe('the run queue', () => {
   })
 
   it('hands consecutive runs to the same live thread instead of starting one per run', async () => {
-    await queue.stop(0)
-    const single = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 5000 })
-    try {
+    await withOwnQueue({ workerCount: 1 }, async (single) => {
       const ids: string[] = []
       for (let i = 0; i < 3; i++)
         ids.push((await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })).body.id)
@@ -674,31 +690,21 @@ describe('the run queue', () => {
       expect(threadIds).toHaveLength(3)
       expect(new Set(threadIds).size).toBe(1)
       expect(single.threads).toBe(1)
-    } finally {
-      await single.stop(0)
-      restartSharedQueue()
-    }
+    })
   })
 
   it('lets an idle thread exit after the idle period', async () => {
-    await queue.stop(0)
-    const brief = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 100 })
-    try {
+    await withOwnQueue({ workerCount: 1, idleMs: 100 }, async (brief) => {
       const res = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
       brief.start()
       expect(await finished(brief, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
       expect(brief.threads).toBe(1)
       await vi.waitFor(() => expect(brief.threads).toBe(0), { timeout: 5000 })
-    } finally {
-      await brief.stop(0)
-      restartSharedQueue()
-    }
+    })
   })
 
   it('fails a run over the time limit, terminates its thread and returns the credit', async () => {
-    await queue.stop(0)
-    const strict = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 0.05, idleMs: 5000 })
-    try {
+    await withOwnQueue({ workerCount: 1, runTimeLimitS: 0.05 }, async (strict) => {
       const res = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...LONG })
       strict.start()
       expect(await finished(strict, ctx.db, res.body.id)).toMatchObject({
@@ -707,10 +713,7 @@ describe('the run queue', () => {
       })
       expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
       await vi.waitFor(() => expect(strict.threads).toBe(0), { timeout: 5000 })
-    } finally {
-      await strict.stop(0)
-      restartSharedQueue()
-    }
+    })
   })
 
   it('puts a run back in the queue at a graceful stop, and the next start finishes it exactly once', async () => {

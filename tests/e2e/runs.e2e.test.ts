@@ -1,36 +1,17 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
+import { describe, expect, it } from 'vitest'
 import { formatSignificant } from '../../shared/charts/units.js'
-import {
-  type Browser,
-  type RunningServer,
-  artifactPath,
-  demoMembers,
-  launchBrowser,
-  signInThroughForm,
-  startServer,
-} from './harness.js'
+import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
+import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
 
-let server: RunningServer
-let browser: Browser
-
-beforeAll(async () => {
-  server = await startServer()
-  browser = await launchBrowser()
-})
-
-afterAll(async () => {
-  await browser?.close()
-  await server?.stop()
-})
+const env = useBrowserTestEnvironment()
 
 const G = 9.80665 // standard gravity, m/s² (3rd CGPM, 1901)
 
 describe('runs in the browser', () => {
   it('starts a run from the demo record, watches it finish and reads PSA at 1 s in the table', async () => {
-    await browser.context.clearCookies()
-    const page = await browser.newPage()
-    await signInThroughForm(page, server.url, demoMembers.engineer.email)
+    await env.browser.context.clearCookies()
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Records' }).click()
     await page.locator('[data-test="records-table"]').getByText('Synthetic far-field noise').click()
     await page.waitForURL(/\/records\/[0-9a-f-]+$/)
@@ -66,7 +47,7 @@ describe('runs in the browser', () => {
 
     // The same ordinate from the API: PSA at T = 1 s (on the default grid), 5% damping, in g.
     const api = spectrumResultSchema.parse(
-      await (await page.request.get(`${server.url}/api/runs/${runId}/spectrum`)).json(),
+      await (await page.request.get(`${env.server.url}/api/runs/${runId}/spectrum`)).json(),
     )
     const i = api.periodsS.indexOf(1)
     expect(i).toBeGreaterThan(0)
