@@ -54,7 +54,11 @@ function longPeriodCoefficients(): { count: number; coeffs: Float64Array } {
   return { count, coeffs }
 }
 
-function kernelNsPerStep(kernel: SweepKernel, count: number, coeffs: Float64Array): { ns: number; firstPeak: number } {
+function kernelNsPerStep(
+  kernel: SweepKernel,
+  count: number,
+  coeffs: Float64Array,
+): { ns: number; firstPeak: number } {
   const out = new Float64Array(OUTPUT_ARRAYS * count)
   kernel.loadRecord(record.accelMPerS2)
   for (let i = 0; i < 3; i++) kernel.sweep(count, 1, coeffs, out)
@@ -63,12 +67,18 @@ function kernelNsPerStep(kernel: SweepKernel, count: number, coeffs: Float64Arra
 }
 
 /** The C reference built with extra gcc flags (none: SSE2, 128-bit vectors like WebAssembly SIMD). */
-function cReference(count: number, coeffs: Float64Array, flags: string[]): { ns: number; firstPeak: number } | string {
+function cReference(
+  count: number,
+  coeffs: Float64Array,
+  flags: string[],
+): { ns: number; firstPeak: number } | string {
   const source = fileURLToPath(new URL('./benchSweepKernel.c', import.meta.url))
   const dir = mkdtempSync(join(tmpdir(), 'ordinate-bench-'))
   const binary = join(dir, 'sweep')
   try {
-    execFileSync('gcc', ['-O3', ...flags, '-ffp-contract=off', '-o', binary, source, '-lm'], { stdio: 'pipe' })
+    execFileSync('gcc', ['-O3', ...flags, '-ffp-contract=off', '-o', binary, source, '-lm'], {
+      stdio: 'pipe',
+    })
   } catch {
     return 'skipped (gcc not available)'
   }
@@ -100,7 +110,9 @@ function standardJob(kernel: 'wasm-simd' | 'js'): { totalMs: number; steps: numb
 const { count, coeffs } = longPeriodCoefficients()
 const wasm = wasmKernel()
 const rows: string[] = []
-console.log(`Ordinate spectrum engine benchmark (Node ${process.version}, ${samples}-point record at Δt = ${record.dtS} s)`)
+console.log(
+  `Ordinate spectrum engine benchmark (Node ${process.version}, ${samples}-point record at Δt = ${record.dtS} s)`,
+)
 console.log('')
 console.log(`1. Kernel, long periods (${count} periods 1–10 s, ζ = 5%, no sub-steps), best of 7:`)
 if (wasm) {

@@ -13,7 +13,11 @@ const demo = join(root, 'shared/spectra/demo/synthetic-near-fault-pulse.csv')
 
 async function cli(args: string[]): Promise<{ stdout: string; stderr: string; code: number }> {
   try {
-    const { stdout, stderr } = await run(process.execPath, ['--import', 'tsx', 'scripts/spectrum.ts', ...args], { cwd: root })
+    const { stdout, stderr } = await run(
+      process.execPath,
+      ['--import', 'tsx', 'scripts/spectrum.ts', ...args],
+      { cwd: root },
+    )
     return { stdout, stderr, code: 0 }
   } catch (error) {
     const failed = error as { stdout: string; stderr: string; code: number }
@@ -25,7 +29,15 @@ describe('npm run spectrum', () => {
   const scratch = mkdtempSync(join(tmpdir(), 'ordinate-cli-'))
 
   it('prints JSON that the spectrum schema accepts, with the periods and damping asked for', async () => {
-    const { stdout, stderr, code } = await cli([demo, '--damping', '0.02,0.05', '--periods', '0.1:1:3', '--method', 'piecewise-exact'])
+    const { stdout, stderr, code } = await cli([
+      demo,
+      '--damping',
+      '0.02,0.05',
+      '--periods',
+      '0.1:1:3',
+      '--method',
+      'piecewise-exact',
+    ])
     expect(code).toBe(0)
     expect(stderr).toBe('')
     const result = spectrumResultSchema.parse(JSON.parse(stdout))
@@ -52,7 +64,10 @@ describe('npm run spectrum', () => {
 
   it('exits non-zero with the reason and the line on stderr for a bad record', async () => {
     const bad = join(scratch, 'bad.txt')
-    writeFileSync(bad, ['dt = 0.01 s', 'units: g', ...Array.from({ length: 20 }, () => '0.1'), 'NaN', '0.1'].join('\n'))
+    writeFileSync(
+      bad,
+      ['dt = 0.01 s', 'units: g', ...Array.from({ length: 20 }, () => '0.1'), 'NaN', '0.1'].join('\n'),
+    )
     const { stdout, stderr, code } = await cli([bad])
     expect(code).toBe(1)
     expect(stdout).toBe('')
@@ -69,7 +84,9 @@ describe('npm run spectrum', () => {
   })
 
   it('with npm run --silent, prints only the result', async () => {
-    const { stdout } = await run('npm', ['run', '--silent', 'spectrum', '--', demo, '--periods', '0.5:1:2'], { cwd: root })
+    const { stdout } = await run('npm', ['run', '--silent', 'spectrum', '--', demo, '--periods', '0.5:1:2'], {
+      cwd: root,
+    })
     expect(() => JSON.parse(stdout)).not.toThrow()
   })
 })

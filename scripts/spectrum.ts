@@ -47,7 +47,9 @@ function parseDamping(text: string): number[] {
   return values.map((part) => {
     const value = Number(part)
     if (part === '' || !(value >= 0 && value < MAX_DAMPING_RATIO)) {
-      throw usageError(`--damping: "${part}" is not a damping ratio in [0, ${MAX_DAMPING_RATIO}) (5% is 0.05).`)
+      throw usageError(
+        `--damping: "${part}" is not a damping ratio in [0, ${MAX_DAMPING_RATIO}) (5% is 0.05).`,
+      )
     }
     return value
   })
@@ -57,7 +59,9 @@ function parsePeriodGrid(text: string): number[] {
   const parts = text.split(':')
   const [min, max, count] = parts.map(Number)
   if (parts.length !== 3 || !(min! > 0 && max! > min! && Number.isInteger(count) && count! >= 2)) {
-    throw usageError(`--periods: "${text}" should be MIN:MAX:COUNT with 0 < MIN < MAX and a whole COUNT ≥ 2, e.g. 0.01:10:301.`)
+    throw usageError(
+      `--periods: "${text}" should be MIN:MAX:COUNT with 0 < MIN < MAX and a whole COUNT ≥ 2, e.g. 0.01:10:301.`,
+    )
   }
   return logPeriodGrid(min!, max!, count!)
 }
@@ -83,7 +87,10 @@ function readText(path: string): string {
   try {
     return readFileSync(path, 'utf8')
   } catch (error) {
-    throw new CliError(`${path}: cannot read the file (${(error as NodeJS.ErrnoException).code ?? 'error'}).`, 1)
+    throw new CliError(
+      `${path}: cannot read the file (${(error as NodeJS.ErrnoException).code ?? 'error'}).`,
+      1,
+    )
   }
 }
 
@@ -125,12 +132,14 @@ function readOptions(argv: string[]): Options {
   let dtS: number | undefined
   if (values.dt !== undefined) {
     dtS = Number(values.dt)
-    if (!(Number.isFinite(dtS) && dtS > 0)) throw usageError(`--dt: "${values.dt}" is not a positive time step in seconds.`)
+    if (!(Number.isFinite(dtS) && dtS > 0))
+      throw usageError(`--dt: "${values.dt}" is not a positive time step in seconds.`)
   }
   if (!SPECTRUM_METHODS.includes(values.method as SpectrumMethod)) {
     throw usageError(`--method: "${values.method}" is not one of ${SPECTRUM_METHODS.join(', ')}.`)
   }
-  if (values.format !== 'csv' && values.format !== 'json') throw usageError(`--format: "${values.format}" is not csv or json.`)
+  if (values.format !== 'csv' && values.format !== 'json')
+    throw usageError(`--format: "${values.format}" is not csv or json.`)
   if (values.periods !== undefined && values['periods-file'] !== undefined) {
     throw usageError('Give --periods or --periods-file, not both.')
   }
@@ -199,7 +208,10 @@ function run(argv: string[]): string {
     parsed = parseRecord(text, { units: options.units, dtS: options.dtS })
   } catch (error) {
     if (error instanceof RecordParseError) {
-      throw new CliError(`${options.file}${error.line === undefined ? '' : `:${error.line}`}: ${error.message} [${error.code}]`, 1)
+      throw new CliError(
+        `${options.file}${error.line === undefined ? '' : `:${error.line}`}: ${error.message} [${error.code}]`,
+        1,
+      )
     }
     throw error
   }
@@ -210,7 +222,10 @@ function run(argv: string[]): string {
   })
   const parameters = { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits }
   const result = spectrumResultSchema.parse(
-    toSpectrumJson(parameters, computation, [...parsed.warnings, ...recordWarnings(parsed.accelMPerS2, parsed.dtS)]),
+    toSpectrumJson(parameters, computation, [
+      ...parsed.warnings,
+      ...recordWarnings(parsed.accelMPerS2, parsed.dtS),
+    ]),
   )
   if (options.format === 'json') return JSON.stringify(result) + '\n'
   return csvText(result, basename(options.file), createHash('sha256').update(text).digest('hex'))

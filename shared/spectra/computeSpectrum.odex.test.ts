@@ -16,7 +16,13 @@ interface OdexSolver {
     x0: number,
     y0: number[],
     x1: number,
-    output: (n: number, xOld: number, x: number, y: number[], interpolate?: (i: number, x: number) => number) => void,
+    output: (
+      n: number,
+      xOld: number,
+      x: number,
+      y: number[],
+      interpolate?: (i: number, x: number) => number,
+    ) => void,
   ): { y: number[] }
 }
 // odex ships its TypeScript source as its typings, which do not compile under this project's strict
@@ -33,7 +39,10 @@ const TARGET = 0.005
  */
 function randomRecord(seed: number, points: number): Float64Array {
   const random = mulberry32(seed)
-  return Float64Array.from({ length: points }, (_, i) => 4 * (random() - 0.5) * Math.sin((Math.PI * i) / (points - 1)))
+  return Float64Array.from(
+    { length: points },
+    (_, i) => 4 * (random() - 0.5) * Math.sin((Math.PI * i) / (points - 1)),
+  )
 }
 
 interface Peaks {
@@ -84,7 +93,8 @@ function odexPeaks(accel: Float64Array, dtS: number, periodS: number, zeta: numb
     state = result.y
   }
   const perSample = Math.max(16, Math.ceil((600 * dtS) / periodS))
-  for (let i = 0; i + 1 < accel.length; i++) segment(i * dtS, (i + 1) * dtS, accel[i]!, accel[i + 1]!, perSample)
+  for (let i = 0; i + 1 < accel.length; i++)
+    segment(i * dtS, (i + 1) * dtS, accel[i]!, accel[i + 1]!, perSample)
   const endS = (accel.length - 1) * dtS
   segment(endS, endS + (0.75 * periodS) / Math.sqrt(1 - zeta * zeta), 0, 0, 600)
   return peaks
@@ -95,7 +105,9 @@ describe('computeSpectrum against an independent high-accuracy integration (odex
   const accel = randomRecord(20_260_101, 301)
   const periodsS = logPeriodGrid(0.01, 10, 13)
   const dampingRatios = [0, 0.02, 0.05, 0.1, 0.2, 0.3]
-  const reference = dampingRatios.map((zeta) => periodsS.map((periodS) => odexPeaks(accel, dtS, periodS, zeta)))
+  const reference = dampingRatios.map((zeta) =>
+    periodsS.map((periodS) => odexPeaks(accel, dtS, periodS, zeta)),
+  )
 
   for (const method of SPECTRUM_METHODS) {
     it(`${method}: every ordinate within 0.5% for T = 0.01–10 s and ζ = 0–30%`, () => {
@@ -130,7 +142,11 @@ describe('Newmark on a long record at low damping, against the piecewise-exact r
   const dampingRatios = [0, 0.02]
   const plan = planSpectrum(6001, dtS, { dampingRatios, periodsS, method: 'piecewise-exact' })
   const oscillators = dampingRatios.flatMap((dampingRatio, d) =>
-    periodsS.map((periodS, p) => ({ periodS, dampingRatio, subSteps: 8 * plan.subSteps[d * periodsS.length + p]! })),
+    periodsS.map((periodS, p) => ({
+      periodS,
+      dampingRatio,
+      subSteps: 8 * plan.subSteps[d * periodsS.length + p]!,
+    })),
   )
   const reference = sweepOscillators(record, oscillators, 'piecewise-exact')
 

@@ -61,9 +61,11 @@ describe('computeSpectrum', () => {
       const omega = (2 * Math.PI) / periodS
       let peak = 0
       const fine = Math.min(dtS, periodS / 2000)
-      for (let t = 0; t <= endS; t += fine) peak = Math.max(peak, Math.abs(harmonicResponse(-A, forcingOmega, omega, zeta, t).u))
+      for (let t = 0; t <= endS; t += fine)
+        peak = Math.max(peak, Math.abs(harmonicResponse(-A, forcingOmega, omega, zeta, t).u))
       const end = harmonicResponse(-A, forcingOmega, omega, zeta, endS)
-      for (let t = 0; t <= periodS; t += periodS / 2000) peak = Math.max(peak, Math.abs(freeVibration(end.u, end.v, omega, zeta, t).u))
+      for (let t = 0; t <= periodS; t += periodS / 2000)
+        peak = Math.max(peak, Math.abs(freeVibration(end.u, end.v, omega, zeta, t).u))
       return peak
     }
 
@@ -86,7 +88,11 @@ describe('computeSpectrum', () => {
     it('at resonance the response settles to the steady amplitude A/(2ζω²) (Chopra sec. 3.2)', () => {
       const zeta = 0.05
       const omega = forcingOmega
-      const { curves } = computeSpectrum(record, { dampingRatios: [zeta], periodsS: [forcingPeriodS], method: 'newmark-average' })
+      const { curves } = computeSpectrum(record, {
+        dampingRatios: [zeta],
+        periodsS: [forcingPeriodS],
+        method: 'newmark-average',
+      })
       // After 30 cycles the transient has decayed to e^(−ζω·15 s) ≈ 1e-4 of it.
       expect(relative(curves[0]!.sdM[0]!, A / (2 * zeta * omega * omega))).toBeLessThan(TARGET)
     })
@@ -103,7 +109,11 @@ describe('computeSpectrum', () => {
     it('PSA and SA approach PGA as T → 0 (DOMAIN; quasi-static response u ≈ −a_g/ω²)', () => {
       // At T = 2 ms the quasi-static error is of order (3 Hz / 500 Hz)² ≈ 4e-5.
       for (const method of SPECTRUM_METHODS) {
-        const { curves } = computeSpectrum(record, { dampingRatios: [0, 0.05, 0.3], periodsS: [0.002], method })
+        const { curves } = computeSpectrum(record, {
+          dampingRatios: [0, 0.05, 0.3],
+          periodsS: [0.002],
+          method,
+        })
         for (const curve of curves) {
           expect(relative(curve.psaMPerS2[0]!, params.pgaMPerS2)).toBeLessThan(1e-3)
           expect(relative(curve.saMPerS2[0]!, params.pgaMPerS2)).toBeLessThan(1e-3)
@@ -128,7 +138,9 @@ describe('computeSpectrum', () => {
     const periodsS = defaultPeriodsS().filter((_, i) => i % 10 === 0)
     const dampingRatios = [0.02, 0.05, 0.2]
     const results = new Map(
-      SPECTRUM_METHODS.map((method) => [method, computeSpectrum(record, { dampingRatios, periodsS, method })] as const),
+      SPECTRUM_METHODS.map(
+        (method) => [method, computeSpectrum(record, { dampingRatios, periodsS, method })] as const,
+      ),
     )
 
     it('the three methods agree within 1% (each is within 0.5% of the exact response)', () => {
@@ -167,7 +179,11 @@ describe('computeSpectrum', () => {
     })
 
     it('an ordinate does not depend on the other periods in the sweep', () => {
-      const alone = computeSpectrum(record, { dampingRatios: [0.05], periodsS: [periodsS[7]!], method: 'newmark-average' })
+      const alone = computeSpectrum(record, {
+        dampingRatios: [0.05],
+        periodsS: [periodsS[7]!],
+        method: 'newmark-average',
+      })
       expect(alone.curves[0]!.sdM[0]).toBe(results.get('newmark-average')!.curves[1]!.sdM[7])
     })
 
@@ -208,7 +224,11 @@ describe('computeSpectrum', () => {
     })
 
     it('needs no sub-steps for long periods and more for short ones', () => {
-      const plan = planSpectrum(8001, 0.005, { dampingRatios: [0.05], periodsS: [0.01, 1, 10], method: 'newmark-average' })
+      const plan = planSpectrum(8001, 0.005, {
+        dampingRatios: [0.05],
+        periodsS: [0.01, 1, 10],
+        method: 'newmark-average',
+      })
       expect(plan.subSteps[2]).toBe(1)
       expect(plan.subSteps[0]).toBeGreaterThan(plan.subSteps[1]!)
     })
@@ -216,7 +236,11 @@ describe('computeSpectrum', () => {
 
   it('warns about periods shorter than 2Δt and damping above 30%', () => {
     const record = { accelMPerS2: sampled((t) => Math.sin(5 * t), 0.01, 200), dtS: 0.01 }
-    const { warnings } = computeSpectrum(record, { dampingRatios: [0.4], periodsS: [0.01, 0.05], method: 'piecewise-exact' })
+    const { warnings } = computeSpectrum(record, {
+      dampingRatios: [0.4],
+      periodsS: [0.01, 0.05],
+      method: 'piecewise-exact',
+    })
     expect(warnings.some((w) => w.includes('shorter than 2Δt'))).toBe(true)
     expect(warnings.some((w) => w.includes('up to 30%'))).toBe(true)
   })

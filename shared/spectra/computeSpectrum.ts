@@ -128,6 +128,23 @@ const ACCURACY_TEXT =
   `Each ordinate within ${100 * ACCURACY_TARGET}% of the exact response to the record interpolated linearly ` +
   `between samples, for periods 0.01–10 s and damping 0–${100 * ACCURACY_DAMPING_LIMIT}%.`
 
+/** Throws a RangeError unless the method, damping ratios and periods are usable. */
+export function checkSpectrumSettings(
+  settings: Pick<SpectrumSettings, 'dampingRatios' | 'periodsS' | 'method'>,
+): void {
+  if (!SPECTRUM_METHODS.includes(settings.method))
+    throw new RangeError(`unknown method ${String(settings.method)}`)
+  if (settings.dampingRatios.length === 0) throw new RangeError('give at least one damping ratio')
+  for (const zeta of settings.dampingRatios) {
+    if (!(zeta >= 0 && zeta < MAX_DAMPING_RATIO)) throw new RangeError('dampingRatio must be in [0, 0.5)')
+  }
+  if (settings.periodsS.length === 0) throw new RangeError('give at least one period')
+  for (const period of settings.periodsS) {
+    if (!(Number.isFinite(period) && period > 0))
+      throw new RangeError('periods must be positive numbers of seconds')
+  }
+}
+
 function checkInputs(record: SpectrumRecord, settings: SpectrumSettings): void {
   const { accelMPerS2, dtS } = record
   if (!(Number.isFinite(dtS) && dtS > 0)) throw new RangeError('dtS must be a positive number of seconds')
@@ -135,15 +152,7 @@ function checkInputs(record: SpectrumRecord, settings: SpectrumSettings): void {
   for (const value of accelMPerS2) {
     if (!Number.isFinite(value)) throw new RangeError('the record holds a value that is not a finite number')
   }
-  if (!SPECTRUM_METHODS.includes(settings.method)) throw new RangeError(`unknown method ${String(settings.method)}`)
-  if (settings.dampingRatios.length === 0) throw new RangeError('give at least one damping ratio')
-  for (const zeta of settings.dampingRatios) {
-    if (!(zeta >= 0 && zeta < MAX_DAMPING_RATIO)) throw new RangeError('dampingRatio must be in [0, 0.5)')
-  }
-  if (settings.periodsS.length === 0) throw new RangeError('give at least one period')
-  for (const period of settings.periodsS) {
-    if (!(Number.isFinite(period) && period > 0)) throw new RangeError('periods must be positive numbers of seconds')
-  }
+  checkSpectrumSettings(settings)
 }
 
 /** Sub-steps and total work of a sweep, without running it (for estimates and limits). */
@@ -273,7 +282,8 @@ function sweepWithRefinement(
         ...extremes,
       }
       let bound = peakPickingBound(input)
-      if (bound > PEAK_PICKING_BUDGET) bound = peakPickingBound({ ...input, freeAmplitudeM: freeAmplitude(index) })
+      if (bound > PEAK_PICKING_BUDGET)
+        bound = peakPickingBound({ ...input, freeAmplitudeM: freeAmplitude(index) })
       if (bound <= PEAK_PICKING_BUDGET) return
       if (oscillator.subSteps >= MAX_SUB_STEPS) {
         stillAbove++

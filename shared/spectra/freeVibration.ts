@@ -27,7 +27,12 @@ export function freeVibration(
  * Later extrema are smaller by e^(−σπ/ω_D) each (equal when σ = 0), so this is
  * the largest |f| over all t > 0 that is not at t = 0 itself.
  */
-export function firstExtremum(P: number, Q: number, sigma: number, omegaD: number): { value: number; timeS: number } {
+export function firstExtremum(
+  P: number,
+  Q: number,
+  sigma: number,
+  omegaD: number,
+): { value: number; timeS: number } {
   const alpha = omegaD * Q - sigma * P
   const beta = sigma * Q + omegaD * P
   let theta = Math.atan2(alpha, beta)

@@ -18,7 +18,15 @@ function step(c: RecurrenceCoefficients, u: number, v: number, f0: number, f1: n
  * particular solution u_p = −(a − c·s/k)/k, v_p = −s/k (c = 2ζω, k = ω²) plus free
  * vibration (Chopra eq. 2.2.4) of the difference — independent of either recurrence.
  */
-function exactStep(omega: number, zeta: number, h: number, u0: number, v0: number, a0: number, a1: number): [number, number] {
+function exactStep(
+  omega: number,
+  zeta: number,
+  h: number,
+  u0: number,
+  v0: number,
+  a0: number,
+  a1: number,
+): [number, number] {
   const k = omega * omega
   const c = 2 * zeta * omega
   const s = (a1 - a0) / h
@@ -29,7 +37,9 @@ function exactStep(omega: number, zeta: number, h: number, u0: number, v0: numbe
 }
 
 describe('piecewise-exact coefficients', () => {
-  const cases = [0, 0.02, 0.05, 0.3, 0.49].flatMap((zeta) => [1e-4, 0.01, 0.1, 0.5, 1, 2.5].map((x) => ({ zeta, x })))
+  const cases = [0, 0.02, 0.05, 0.3, 0.49].flatMap((zeta) =>
+    [1e-4, 0.01, 0.1, 0.5, 1, 2.5].map((x) => ({ zeta, x })),
+  )
 
   it('match the exact one-step solution for forcing linear over the step, from small to large ωh', () => {
     for (const { zeta, x } of cases) {
@@ -61,7 +71,9 @@ describe('piecewise-exact coefficients', () => {
   it('have no eigenvalue error: the period and decay are exact', () => {
     for (const { zeta, x } of cases.filter((entry) => entry.x >= 0.01)) {
       const omega = 3
-      expect(eigenvalueError(piecewiseExactCoefficients(omega, zeta, x / omega), omega, zeta, x / omega)).toBeLessThan(1e-11)
+      expect(
+        eigenvalueError(piecewiseExactCoefficients(omega, zeta, x / omega), omega, zeta, x / omega),
+      ).toBeLessThan(1e-11)
     }
   })
 })
@@ -72,7 +84,14 @@ describe('Newmark coefficients', () => {
     const dtS = 0.02
     const ag = Float64Array.from({ length: 200 }, (_, i) => Math.sin(0.3 * i) + 0.2 * Math.cos(1.1 * i))
     for (const beta of [0.25, 1 / 6]) {
-      const textbook = newmarkSdof({ stiffness: omega * omega, dampingRatio: 0.07, groundAccel: ag, dtS, gamma: 0.5, beta })
+      const textbook = newmarkSdof({
+        stiffness: omega * omega,
+        dampingRatio: 0.07,
+        groundAccel: ag,
+        dtS,
+        gamma: 0.5,
+        beta,
+      })
       const c = newmarkCoefficients(omega, 0.07, dtS, 0.5, beta)
       let u = 0
       let v = 0
@@ -90,7 +109,10 @@ describe('Newmark coefficients', () => {
       const h = ratio
       const c = newmarkCoefficients(omega, 0, h, 0.5, 0.25)
       // Discrete phase per step is 2·arctan(ωh/2); exact is ωh.
-      expect(eigenvalueError(c, omega, 0, h)).toBeCloseTo((omega * h - 2 * Math.atan((omega * h) / 2)) / (omega * h), 12)
+      expect(eigenvalueError(c, omega, 0, h)).toBeCloseTo(
+        (omega * h - 2 * Math.atan((omega * h) / 2)) / (omega * h),
+        12,
+      )
     }
   })
 

@@ -8,7 +8,11 @@
 
 export type SpectrumMethod = 'newmark-average' | 'newmark-linear' | 'piecewise-exact'
 
-export const SPECTRUM_METHODS: readonly SpectrumMethod[] = ['newmark-average', 'newmark-linear', 'piecewise-exact']
+export const SPECTRUM_METHODS: readonly SpectrumMethod[] = [
+  'newmark-average',
+  'newmark-linear',
+  'piecewise-exact',
+]
 
 /**
  * Newmark (1959, J. Eng. Mech. Div. ASCE 85(EM3)) parameters: average
@@ -154,7 +158,10 @@ export function nigamJenningsClosedForm(omega: number, zeta: number, h: number):
     ((2 * zeta) / (omega * h) +
       decay * (((1 - 2 * zeta * zeta) / (omegaD * h) - r) * sin - (1 + (2 * zeta) / (omega * h)) * cos))
   const D =
-    (1 / k) * (1 - (2 * zeta) / (omega * h) + decay * (((2 * zeta * zeta - 1) / (omegaD * h)) * sin + ((2 * zeta) / (omega * h)) * cos))
+    (1 / k) *
+    (1 -
+      (2 * zeta) / (omega * h) +
+      decay * (((2 * zeta * zeta - 1) / (omegaD * h)) * sin + ((2 * zeta) / (omega * h)) * cos))
   const Ad = -decay * (omega / root) * sin
   const Bd = decay * (cos - r * sin)
   const Cd = (1 / k) * (-1 / h + decay * ((omega / root + zeta / (h * root)) * sin + (1 / h) * cos))
@@ -181,7 +188,12 @@ export function recurrenceCoefficients(
  * and its real part the error in decay. Infinite when μ is real: the step no
  * longer oscillates.
  */
-export function eigenvalueError(coefficients: RecurrenceCoefficients, omega: number, zeta: number, h: number): number {
+export function eigenvalueError(
+  coefficients: RecurrenceCoefficients,
+  omega: number,
+  zeta: number,
+  h: number,
+): number {
   const { a11, a12, a21, a22 } = coefficients
   const trace = a11 + a22
   const discriminant = (a11 - a22) * (a11 - a22) + 4 * a12 * a21

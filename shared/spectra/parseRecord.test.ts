@@ -35,8 +35,14 @@ describe('parseRecord', () => {
     })
 
     it('converts cm/s² and in/s² exactly (1 gal = 0.01 m/s², 1 in = 0.0254 m)', () => {
-      expect(parseRecord(VALUES.join('\n'), { units: 'cm/s2', dtS: 0.01 }).accelMPerS2[9]).toBeCloseTo(0.001, 15)
-      expect(parseRecord(VALUES.join('\n'), { units: 'in/s2', dtS: 0.01 }).accelMPerS2[9]).toBeCloseTo(0.00254, 15)
+      expect(parseRecord(VALUES.join('\n'), { units: 'cm/s2', dtS: 0.01 }).accelMPerS2[9]).toBeCloseTo(
+        0.001,
+        15,
+      )
+      expect(parseRecord(VALUES.join('\n'), { units: 'in/s2', dtS: 0.01 }).accelMPerS2[9]).toBeCloseTo(
+        0.00254,
+        15,
+      )
       expect(parseRecord(VALUES.join('\n'), { units: 'm/s2', dtS: 0.01 }).accelMPerS2[9]).toBe(0.1)
     })
 
@@ -46,10 +52,13 @@ describe('parseRecord', () => {
       const cr = parseRecord(VALUES.join('\r'), { units: 'g', dtS: 0.01 })
       expect(crlf.accelMPerS2).toEqual(lf.accelMPerS2)
       expect(cr.accelMPerS2).toEqual(lf.accelMPerS2)
-      const exponents = parseRecord(VALUES.map((v) => Number(v).toExponential(3).replace('e', 'D')).join('\n'), {
-        units: 'g',
-        dtS: 0.01,
-      })
+      const exponents = parseRecord(
+        VALUES.map((v) => Number(v).toExponential(3).replace('e', 'D')).join('\n'),
+        {
+          units: 'g',
+          dtS: 0.01,
+        },
+      )
       expect(exponents.accelMPerS2[4]).toBeCloseTo(0.05 * G, 12)
     })
   })
@@ -133,7 +142,9 @@ describe('parseRecord', () => {
 
   describe('rejections, each naming the line', () => {
     it('rejects a non-numeric value', () => {
-      const text = ['units: g', 'dt = 0.01', ...VALUES.slice(0, 10), '0.3 abc', ...VALUES.slice(10)].join('\n')
+      const text = ['units: g', 'dt = 0.01', ...VALUES.slice(0, 10), '0.3 abc', ...VALUES.slice(10)].join(
+        '\n',
+      )
       const error = expectRejection(() => parseRecord(text), 'non_numeric', 13)
       expect(error.message).toContain('"abc"')
     })
@@ -156,7 +167,9 @@ describe('parseRecord', () => {
     })
 
     it('rejects a non-uniform time step', () => {
-      const text = VALUES.map((v, i) => `${(i < 12 ? i * 0.01 : i * 0.01 + 0.003).toFixed(3)},${v}`).join('\n')
+      const text = VALUES.map((v, i) => `${(i < 12 ? i * 0.01 : i * 0.01 + 0.003).toFixed(3)},${v}`).join(
+        '\n',
+      )
       expectRejection(() => parseRecord(text, { units: 'g' }), 'time_not_uniform', 13)
     })
 
@@ -167,17 +180,29 @@ describe('parseRecord', () => {
     })
 
     it('rejects fewer than 16 samples', () => {
-      expectRejection(() => parseRecord(VALUES.slice(0, 15).join('\n'), { units: 'g', dtS: 0.01 }), 'too_few_points', 15)
+      expectRejection(
+        () => parseRecord(VALUES.slice(0, 15).join('\n'), { units: 'g', dtS: 0.01 }),
+        'too_few_points',
+        15,
+      )
     })
 
     it('rejects more than 2,000,000 samples', () => {
       const text = '0\n'.repeat(MAX_RECORD_POINTS + 1)
-      expectRejection(() => parseRecord(text, { units: 'g', dtS: 0.01 }), 'too_many_points', MAX_RECORD_POINTS + 1)
+      expectRejection(
+        () => parseRecord(text, { units: 'g', dtS: 0.01 }),
+        'too_many_points',
+        MAX_RECORD_POINTS + 1,
+      )
     })
 
     it('rejects |a| > 20 g after conversion, asking to check the units', () => {
       const text = [...VALUES.slice(0, 3), '250', ...VALUES.slice(3)].join('\n')
-      const error = expectRejection(() => parseRecord(text, { units: 'm/s2', dtS: 0.01 }), 'implausible_amplitude', 4)
+      const error = expectRejection(
+        () => parseRecord(text, { units: 'm/s2', dtS: 0.01 }),
+        'implausible_amplitude',
+        4,
+      )
       expect(error.message).toContain('Check the units')
       // The same number is plausible in cm/s² (0.25 g).
       expect(parseRecord(text, { units: 'cm/s2', dtS: 0.01 }).points).toBe(21)
@@ -209,7 +234,9 @@ describe('parseRecord', () => {
 
     it('rejects an unclosed quote, an empty file and a file with no values', () => {
       const text = VALUES.map((v, i) => (i === 3 ? `${i * 0.01},"${v}` : `${i * 0.01},${v}`)).join('\n')
-      expect(expectRejection(() => parseRecord(text, { units: 'g' }), 'malformed_csv', 20).message).toContain('Quote')
+      expect(expectRejection(() => parseRecord(text, { units: 'g' }), 'malformed_csv', 20).message).toContain(
+        'Quote',
+      )
       expectRejection(() => parseRecord('\n  \n'), 'empty')
       expectRejection(() => parseRecord('station: none\nno data'), 'no_values')
     })

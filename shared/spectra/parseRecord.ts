@@ -312,7 +312,12 @@ function layout(rows: Rows, statements: HeaderStatements): RecordFormat {
 
 const sameStep = (a: number, b: number) => Math.abs(a - b) <= 1e-3 * Math.abs(b)
 
-function timeValueSeries(rows: Rows): { accel: Float64Array; dtS: number; accelLines: Int32Array; startS: number } {
+function timeValueSeries(rows: Rows): {
+  accel: Float64Array
+  dtS: number
+  accelLines: Int32Array
+  startS: number
+} {
   const n = rows.rowCount
   for (let row = 0; row < n; row++) {
     if (rows.counts[row] !== 2) {
@@ -438,7 +443,9 @@ export function parseRecord(text: string, options: ParseRecordOptions = {}): Par
     const given = options.dtS ?? statedDt?.value
     if (given !== undefined && accel.length >= 2 && Math.abs(given - dtS) > 1e-3 * given) {
       const source =
-        options.dtS !== undefined ? `The time step given (${given} s)` : `Line ${statedDt?.line} ("${statedDt?.text}")`
+        options.dtS !== undefined
+          ? `The time step given (${given} s)`
+          : `Line ${statedDt?.line} ("${statedDt?.text}")`
       throw new RecordParseError(
         'dt_conflict',
         `${source} disagrees with the time column from line ${firstDataLine}, which steps by ${formatSeconds(dtS)} s. Correct one of them.`,
@@ -446,7 +453,9 @@ export function parseRecord(text: string, options: ParseRecordOptions = {}): Par
       )
     }
     if (Math.abs(series.startS) > 1e-3 * dtS + (rows.firstQuantum[0] ?? 0)) {
-      warnings.push(`The time column starts at ${formatSeconds(series.startS)} s; the record is taken to start at its first sample.`)
+      warnings.push(
+        `The time column starts at ${formatSeconds(series.startS)} s; the record is taken to start at its first sample.`,
+      )
     }
   } else {
     accel = rows.values.slice()

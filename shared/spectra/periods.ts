@@ -9,7 +9,8 @@
  */
 export function logPeriodGrid(minS: number, maxS: number, count: number): number[] {
   if (!(Number.isFinite(minS) && minS > 0)) throw new RangeError('minS must be a positive number of seconds')
-  if (!(Number.isFinite(maxS) && maxS >= minS)) throw new RangeError('maxS must be a number of seconds ≥ minS')
+  if (!(Number.isFinite(maxS) && maxS >= minS))
+    throw new RangeError('maxS must be a number of seconds ≥ minS')
   if (!(Number.isInteger(count) && count >= 1)) throw new RangeError('count must be a positive integer')
   if (count === 1) return [minS]
   if (minS === maxS) throw new RangeError('minS and maxS must differ when count > 1')

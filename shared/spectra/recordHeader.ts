@@ -79,7 +79,10 @@ const RATE_RE = new RegExp(
     NUM,
   'i',
 )
-const RATE_SUFFIX_RE = new RegExp(NUM + String.raw`\s*(?:sps\b|samples?\s*(?:per|\/)\s*s(?:ec(?:ond)?)?\b)`, 'i')
+const RATE_SUFFIX_RE = new RegExp(
+  NUM + String.raw`\s*(?:sps\b|samples?\s*(?:per|\/)\s*s(?:ec(?:ond)?)?\b)`,
+  'i',
+)
 const POINTS_RE =
   /\b(?:npts|nsamples|n[\s_-]*(?:of[\s_-]*)?(?:points|samples|pts)|num(?:ber)?[\s_-]*(?:of[\s_-]*)?(?:points|samples|pts|values)|points|samples|pts|values)\s*(?:[:=]|\bis\b)\s*(\d+)(?![\d.])/i
 const POINTS_SUFFIX_RE = /\b(\d+)\s*(?:points|samples|pts|values)\b(?!\s*(?:per\b|\/))/i
@@ -188,11 +191,13 @@ export function inspectRecordHeader(text: string): RecordHeaderInfo {
   const statedPoints = statements.points[0]?.value ?? null
   const twoColumns = firstRows.length >= 2 && firstRows.every((row) => row.length === 2)
   const timeStep = twoColumns ? (firstRows[1]?.[0] ?? NaN) - (firstRows[0]?.[0] ?? NaN) : NaN
-  const timeColumn = twoColumns && timeStep > 0 && (statedDt === null || Math.abs(timeStep - statedDt) <= 1e-3 * statedDt)
+  const timeColumn =
+    twoColumns && timeStep > 0 && (statedDt === null || Math.abs(timeStep - statedDt) <= 1e-3 * statedDt)
   let format: RecordFormat | null = null
   if (firstRows.length > 0) {
     if (timeColumn) format = 'time-value'
-    else if (statedDt !== null || statedPoints !== null || firstRows.some((row) => row.length > 2)) format = 'headered'
+    else if (statedDt !== null || statedPoints !== null || firstRows.some((row) => row.length > 2))
+      format = 'headered'
     else format = 'single-column'
   }
   return {

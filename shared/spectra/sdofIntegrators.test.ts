@@ -13,7 +13,8 @@ const k = 10
 const zeta = 0.05
 const omega = Math.sqrt(k / m)
 const pulse = (t: number) => (t <= 0.6 + 1e-12 ? 10 * Math.sin((Math.PI * t) / 0.6) : 0)
-const force = (dtS: number, endS = 1) => Float64Array.from({ length: Math.round(endS / dtS) + 1 }, (_, i) => pulse(i * dtS))
+const force = (dtS: number, endS = 1) =>
+  Float64Array.from({ length: Math.round(endS / dtS) + 1 }, (_, i) => pulse(i * dtS))
 const NEWMARK_TABLE = [0, 0.0437, 0.2326, 0.6121, 1.0825, 1.431, 1.4231, 0.9622, 0.1908, -0.6044, -1.1442]
 const EXACT_TABLE = [0, 0.0328, 0.2332, 0.6487, 1.1605, 1.5242, 1.4814, 0.9245, 0.0593, -0.7752, -1.2718]
 
@@ -27,19 +28,39 @@ function exactPulseResponse(t: number): number {
 
 describe('newmarkSdof (Chopra Table 5.4.2, fixed step)', () => {
   it('reproduces the textbook average-acceleration table at Δt = 0.1 s to its 4 decimals', () => {
-    const { u } = newmarkSdof({ mass: m, stiffness: k, dampingRatio: zeta, force: force(0.1), dtS: 0.1, gamma: 0.5, beta: 0.25 })
-    NEWMARK_TABLE.forEach((expected, i) => expect(Math.abs(u[i]! - expected)).toBeLessThanOrEqual(0.00005 + 1e-9))
+    const { u } = newmarkSdof({
+      mass: m,
+      stiffness: k,
+      dampingRatio: zeta,
+      force: force(0.1),
+      dtS: 0.1,
+      gamma: 0.5,
+      beta: 0.25,
+    })
+    NEWMARK_TABLE.forEach((expected, i) =>
+      expect(Math.abs(u[i]! - expected)).toBeLessThanOrEqual(0.00005 + 1e-9),
+    )
   })
 
   it('the closed-form solution reproduces the textbook exact row to its 4 decimals', () => {
-    EXACT_TABLE.forEach((expected, i) => expect(Math.abs(exactPulseResponse(i * 0.1) - expected)).toBeLessThanOrEqual(0.00005 + 1e-9))
+    EXACT_TABLE.forEach((expected, i) =>
+      expect(Math.abs(exactPulseResponse(i * 0.1) - expected)).toBeLessThanOrEqual(0.00005 + 1e-9),
+    )
   })
 
   it('converges at second order: halving Δt divides the error at t = 1 s by about 4 (both Newmark variants)', () => {
     const exact = exactPulseResponse(1)
     for (const beta of [0.25, 1 / 6]) {
       const errors = [0.02, 0.01, 0.005].map((dtS) => {
-        const { u } = newmarkSdof({ mass: m, stiffness: k, dampingRatio: zeta, force: force(dtS), dtS, gamma: 0.5, beta })
+        const { u } = newmarkSdof({
+          mass: m,
+          stiffness: k,
+          dampingRatio: zeta,
+          force: force(dtS),
+          dtS,
+          gamma: 0.5,
+          beta,
+        })
         return Math.abs(u[u.length - 1]! - exact)
       })
       expect(errors[0]! / errors[1]!).toBeGreaterThan(3.6)
@@ -99,7 +120,15 @@ describe('newmarkSdof (Chopra Table 5.4.2, fixed step)', () => {
 describe('piecewiseExactSdof (Nigam & Jennings 1969; Chopra sec. 5.2)', () => {
   it('follows free vibration exactly (Chopra eq. 2.2.4)', () => {
     const dtS = 0.13
-    const { u, v } = piecewiseExactSdof({ mass: m, stiffness: k, dampingRatio: 0.12, force: new Float64Array(60), dtS, u0: 0.7, v0: -3 })
+    const { u, v } = piecewiseExactSdof({
+      mass: m,
+      stiffness: k,
+      dampingRatio: 0.12,
+      force: new Float64Array(60),
+      dtS,
+      u0: 0.7,
+      v0: -3,
+    })
     for (let i = 0; i < 60; i += 7) {
       const exact = freeVibration(0.7, -3, omega, 0.12, i * dtS)
       expect(u[i]! - exact.u).toBeCloseTo(0, 12)
@@ -126,12 +155,20 @@ describe('piecewiseExactSdof (Nigam & Jennings 1969; Chopra sec. 5.2)', () => {
     })
     expect(errors[0]! / errors[1]!).toBeGreaterThan(3.6)
     expect(errors[0]! / errors[1]!).toBeLessThan(4.4)
-    const { u } = piecewiseExactSdof({ mass: m, stiffness: k, dampingRatio: zeta, force: force(0.001), dtS: 0.001 })
+    const { u } = piecewiseExactSdof({
+      mass: m,
+      stiffness: k,
+      dampingRatio: zeta,
+      force: force(0.001),
+      dtS: 0.001,
+    })
     EXACT_TABLE.forEach((expected, i) => expect(Math.abs(u[i * 100]! - expected)).toBeLessThanOrEqual(0.0001))
   })
 
   it('rejects inconsistent input', () => {
-    expect(() => piecewiseExactSdof({ stiffness: 1, force: new Float64Array(3), dtS: 0.1 })).toThrow(RangeError)
+    expect(() => piecewiseExactSdof({ stiffness: 1, force: new Float64Array(3), dtS: 0.1 })).toThrow(
+      RangeError,
+    )
     expect(() => piecewiseExactSdof({ stiffness: 1, dampingRatio: 0.05, dtS: 0.1 })).toThrow(RangeError)
   })
 })

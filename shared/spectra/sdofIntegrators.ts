@@ -63,6 +63,14 @@ function resolve(input: SdofInput): Resolved {
   return { m, k, c, p, dt: input.dtS, u0: input.u0 ?? 0, v0: input.v0 ?? 0 }
 }
 
+/** Empty histories, one value per step, starting from (u0, v0). */
+function startHistory(n: number, u0: number, v0: number): SdofHistory {
+  const history = { u: new Float64Array(n), v: new Float64Array(n), a: new Float64Array(n) }
+  history.u[0] = u0
+  history.v[0] = v0
+  return history
+}
+
 /**
  * Newmark-β in the incremental form of Chopra, Dynamics of Structures,
  * Table 5.4.2 (linear systems): γ = 1/2, β = 1/4 is average acceleration
@@ -74,11 +82,7 @@ export function newmarkSdof(input: NewmarkSdofInput): SdofHistory {
   const { gamma, beta } = input
   if (!(beta > 0 && gamma >= 0)) throw new RangeError('Newmark needs β > 0 and γ ≥ 0')
   const n = p.length
-  const u = new Float64Array(n)
-  const v = new Float64Array(n)
-  const a = new Float64Array(n)
-  u[0] = u0
-  v[0] = v0
+  const { u, v, a } = startHistory(n, u0, v0)
   a[0] = (p[0]! - c * v0 - k * u0) / m
   const kHat = k + (gamma / (beta * dt)) * c + m / (beta * dt * dt)
   const A = m / (beta * dt) + (gamma / beta) * c
@@ -106,11 +110,7 @@ export function piecewiseExactSdof(input: SdofInput): SdofHistory {
   if (!(zeta < 1)) throw new RangeError('the piecewise-exact recurrence needs an underdamped system (ζ < 1)')
   const { a11, a12, b1, c1, a21, a22, b2, c2 } = piecewiseExactCoefficients(omega, zeta, dt)
   const n = p.length
-  const u = new Float64Array(n)
-  const v = new Float64Array(n)
-  const a = new Float64Array(n)
-  u[0] = u0
-  v[0] = v0
+  const { u, v, a } = startHistory(n, u0, v0)
   // The unit-mass recurrence is driven by −a_g = p/m.
   for (let i = 0; i + 1 < n; i++) {
     const f0 = -p[i]! / m

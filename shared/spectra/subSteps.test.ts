@@ -1,9 +1,17 @@
 import { describe, expect, it } from 'vitest'
-import { MAX_SUB_STEPS, PEAK_PICKING_BOUND, chooseSubSteps, peakPickingBound, quantiseSubSteps } from './subSteps.js'
+import {
+  MAX_SUB_STEPS,
+  PEAK_PICKING_BOUND,
+  chooseSubSteps,
+  peakPickingBound,
+  quantiseSubSteps,
+} from './subSteps.js'
 
 describe('sub-step rule', () => {
   it('rounds counts up to 1–8 or 8, 10, 12, 14 times a power of two', () => {
-    expect([1, 5, 8, 9, 11, 13, 15, 17, 100].map(quantiseSubSteps)).toEqual([1, 5, 8, 10, 12, 14, 16, 20, 112])
+    expect([1, 5, 8, 9, 11, 13, 15, 17, 100].map(quantiseSubSteps)).toEqual([
+      1, 5, 8, 10, 12, 14, 16, 20, 112,
+    ])
   })
 
   it('gives at least 64 steps per period: a sinusoid under-reads by at most 1 − cos(π/64) ≈ 0.12%', () => {

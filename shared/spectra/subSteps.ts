@@ -80,7 +80,10 @@ export function solverErrorEstimate(
   if (method === 'piecewise-exact') return 0
   const omega = (2 * Math.PI) / periodS
   const coefficients = recurrenceCoefficients(method, omega, dampingRatio, h)
-  return eigenvalueError(coefficients, omega, dampingRatio, h) * (2 + omega * memoryS(omega, dampingRatio, durationS))
+  return (
+    eigenvalueError(coefficients, omega, dampingRatio, h) *
+    (2 + omega * memoryS(omega, dampingRatio, durationS))
+  )
 }
 
 export interface SubStepChoice {
@@ -165,7 +168,10 @@ export function peakPickingBound(input: PeakPickingInput): number {
   if (!(sd > 0 && sv > 0 && sa > 0)) return 0
   const uh = raise * sd + (input.pgaMPerS2 + (c * input.maxSlopeMPerS3) / k) / k
   const vh = raise * sv + input.maxSlopeMPerS3 / k
-  const amplitude = Math.min(Math.hypot(uh, (vh + zeta * omega * uh) / omegaD), input.freeAmplitudeM ?? Infinity)
+  const amplitude = Math.min(
+    Math.hypot(uh, (vh + zeta * omega * uh) / omegaD),
+    input.freeAmplitudeM ?? Infinity,
+  )
   const h2 = (input.stepS * input.stepS) / 8
   return Math.max(
     (k * amplitude * h2) / sd,
@@ -225,5 +231,8 @@ export function freeAmplitudeBound(
 
 /** Sub-steps that bring a peak-picking bound found at m down to the budget (it falls as h²). */
 export function refinedSubSteps(m: number, bound: number): number {
-  return Math.min(MAX_SUB_STEPS, quantiseSubSteps(Math.max(m + 1, m * Math.sqrt(bound / PEAK_PICKING_BUDGET) * 1.02)))
+  return Math.min(
+    MAX_SUB_STEPS,
+    quantiseSubSteps(Math.max(m + 1, m * Math.sqrt(bound / PEAK_PICKING_BUDGET) * 1.02)),
+  )
 }

@@ -72,7 +72,10 @@ export function sweepOscillators(
     let groupEnd = next
     while (groupEnd < count && oscillators[order[groupEnd]!]!.subSteps === subSteps) groupEnd++
     const stepsEach = Math.max(1, intervals * subSteps)
-    const chunkSize = Math.min(MAX_CHUNK, Math.max(width, Math.floor(STEPS_PER_CHUNK / stepsEach / width) * width))
+    const chunkSize = Math.min(
+      MAX_CHUNK,
+      Math.max(width, Math.floor(STEPS_PER_CHUNK / stepsEach / width) * width),
+    )
     for (let chunkStart = next; chunkStart < groupEnd; chunkStart += chunkSize) {
       const members = order.slice(chunkStart, Math.min(groupEnd, chunkStart + chunkSize))
       const padded = Math.ceil(members.length / lanes) * lanes
@@ -80,7 +83,18 @@ export function sweepOscillators(
         const oscillator = oscillators[members[Math.min(slot, members.length - 1)]!]!
         const omega = (2 * Math.PI) / oscillator.periodS
         const c = recurrenceCoefficients(method, omega, oscillator.dampingRatio, dtS / subSteps)
-        const values = [c.a11, c.a12, c.b1, c.c1, c.a21, c.a22, c.b2, c.c2, 2 * oscillator.dampingRatio * omega, omega * omega]
+        const values = [
+          c.a11,
+          c.a12,
+          c.b1,
+          c.c1,
+          c.a21,
+          c.a22,
+          c.b2,
+          c.c2,
+          2 * oscillator.dampingRatio * omega,
+          omega * omega,
+        ]
         for (let q = 0; q < COEFFICIENT_ARRAYS; q++) coeffs[q * padded + slot] = values[q]!
       }
       // A nested sweep (from onProgress) may have loaded another record meanwhile.
@@ -96,7 +110,12 @@ export function sweepOscillators(
         let saTime = out[4 * padded + slot]! * stepS
         if (withTail) {
           const omega = (2 * Math.PI) / oscillator.periodS
-          const tail = freeVibrationTailPeaks(out[5 * padded + slot]!, out[6 * padded + slot]!, omega, oscillator.dampingRatio)
+          const tail = freeVibrationTailPeaks(
+            out[5 * padded + slot]!,
+            out[6 * padded + slot]!,
+            omega,
+            oscillator.dampingRatio,
+          )
           if (tail.u.value > sd) {
             sd = tail.u.value
             sdTime = durationS + tail.u.timeS

@@ -8,10 +8,16 @@ import { toSpectrumJson } from './toSpectrumJson.js'
 
 describe('toSpectrumJson', () => {
   const parsed = parseRecord(demoRecord('synthetic-near-fault-pulse').text)
-  const computation = computeSpectrum(parsed, { dampingRatios: [0.02, 0.05], periodsS: [0.1, 1, 3], method: 'piecewise-exact' })
-  const json = toSpectrumJson({ ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits }, computation, [
-    'a record warning',
-  ])
+  const computation = computeSpectrum(parsed, {
+    dampingRatios: [0.02, 0.05],
+    periodsS: [0.1, 1, 3],
+    method: 'piecewise-exact',
+  })
+  const json = toSpectrumJson(
+    { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits },
+    computation,
+    ['a record warning'],
+  )
 
   it('produces the documented shape, which the schema accepts, in SI units with plain arrays', () => {
     const result = spectrumResultSchema.parse(JSON.parse(JSON.stringify(json)))
@@ -29,7 +35,13 @@ describe('toSpectrumJson', () => {
     const [curve] = json.curves
     const withExtras = {
       ...json,
-      settings: { method: 'piecewise-exact', dampingRatios: [0.05], periodsS: [0.1, 1, 3], periodChoice: 'list', periodGrid: null },
+      settings: {
+        method: 'piecewise-exact',
+        dampingRatios: [0.05],
+        periodsS: [0.1, 1, 3],
+        periodChoice: 'list',
+        periodGrid: null,
+      },
       curves: [{ ...curve!, combination: 'rotd50', sdTimeS: undefined, saTimeS: undefined }],
     }
     expect(spectrumResultSchema.safeParse(withExtras).success).toBe(true)

@@ -86,7 +86,9 @@ interface Spectrum {
 function spectralDensity(omega: number, s: Spectrum): number {
   const wg = 2 * Math.PI * s.groundHz
   const wf = 2 * Math.PI * s.highPassHz
-  const kt = (wg ** 4 + 4 * s.groundRatio ** 2 * wg ** 2 * omega ** 2) / ((wg ** 2 - omega ** 2) ** 2 + 4 * s.groundRatio ** 2 * wg ** 2 * omega ** 2)
+  const kt =
+    (wg ** 4 + 4 * s.groundRatio ** 2 * wg ** 2 * omega ** 2) /
+    ((wg ** 2 - omega ** 2) ** 2 + 4 * s.groundRatio ** 2 * wg ** 2 * omega ** 2)
   const cp = omega ** 4 / ((wf ** 2 - omega ** 2) ** 2 + 4 * 0.6 ** 2 * wf ** 2 * omega ** 2)
   return kt * cp
 }
@@ -176,9 +178,7 @@ function synthesise(recipe: RecordRecipe): Float64Array {
 function valuesBlock(values: Float64Array, perLine: number): string[] {
   const lines: string[] = []
   for (let i = 0; i < values.length; i += perLine) {
-    lines.push(
-      Array.from(values.subarray(i, i + perLine), (value) => formatValue(value)).join('  '),
-    )
+    lines.push(Array.from(values.subarray(i, i + perLine), (value) => formatValue(value)).join('  '))
   }
   return lines
 }
@@ -245,7 +245,14 @@ const DEMO_RECIPES = [
       dtS: 0.01,
       pgaG: 0.12,
       envelope: envelope(30, 3, 15, 120),
-      spectrum: { groundHz: 1.2, groundRatio: 0.4, highPassHz: 0.12, minHz: 0.05, maxHz: 20, components: 160 },
+      spectrum: {
+        groundHz: 1.2,
+        groundRatio: 0.4,
+        highPassHz: 0.12,
+        minHz: 0.05,
+        maxHz: 20,
+        components: 160,
+      },
     },
     layout: (accel: Float64Array) => {
       const cm = accel.map((g) => g * STANDARD_GRAVITY_M_PER_S2 * 100)
