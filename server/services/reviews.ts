@@ -387,23 +387,26 @@ export function addReviewComment(
   body: ReviewCommentBody,
 ): ReviewComment {
   const at = Date.now()
-  const id = db.transaction((tx) => {
-    const review = tx
-      .select({ subjectType: reviews.subjectType, subjectId: reviews.subjectId })
-      .from(reviews)
-      .where(and(eq(reviews.firmId, member.firmId), eq(reviews.id, reviewId)))
-      .get()
-    if (!review) throw notFound('The review')
-    const commentId = insertComment(tx, reviewId, member.userId, body.body, at)
-    recordAudit(tx, {
-      firmId: member.firmId,
-      userId: member.userId,
-      action: 'review.commented',
-      subjectType: review.subjectType,
-      subjectId: review.subjectId,
-      detail: { reviewId, commentId },
-    })
-    return commentId
-  })
+  const id = db.transaction(
+    (tx) => {
+      const review = tx
+        .select({ subjectType: reviews.subjectType, subjectId: reviews.subjectId })
+        .from(reviews)
+        .where(and(eq(reviews.firmId, member.firmId), eq(reviews.id, reviewId)))
+        .get()
+      if (!review) throw notFound('The review')
+      const commentId = insertComment(tx, reviewId, member.userId, body.body, at)
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: 'review.commented',
+        subjectType: review.subjectType,
+        subjectId: review.subjectId,
+        detail: { reviewId, commentId },
+      })
+      return commentId
+    },
+    { behavior: 'immediate' },
+  )
   return { id, author: { id: member.userId, name: member.name }, body: body.body, createdAt: at }
 }
