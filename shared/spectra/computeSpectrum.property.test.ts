@@ -19,13 +19,19 @@ const QUANTITIES = ['sdM', 'svMPerS', 'saMPerS2', 'psvMPerS', 'psaMPerS2'] as co
  */
 const record = fc.record({
   accelMPerS2: fc
-    .array(fc.oneof(fc.double({ min: -100, max: 100, noNaN: true }), fc.constant(0)), { minLength: 2, maxLength: 300 })
+    .array(fc.oneof(fc.double({ min: -100, max: 100, noNaN: true }), fc.constant(0)), {
+      minLength: 2,
+      maxLength: 300,
+    })
     .map((values) => Float64Array.from(values, (v) => (Math.abs(v) < 1e-9 ? 0 : v))),
   dtS: fc.double({ min: 0.001, max: 0.05, noNaN: true }),
 })
 
 const settings = fc.record({
-  dampingRatios: fc.uniqueArray(fc.double({ min: 0, max: 0.49, noNaN: true }), { minLength: 1, maxLength: 3 }),
+  dampingRatios: fc.uniqueArray(fc.double({ min: 0, max: 0.49, noNaN: true }), {
+    minLength: 1,
+    maxLength: 3,
+  }),
   periodsS: fc.uniqueArray(fc.double({ min: 0.01, max: 20, noNaN: true }), { minLength: 1, maxLength: 6 }),
   method: fc.constantFrom(...SPECTRUM_METHODS),
 })
@@ -52,10 +58,16 @@ describe('computeSpectrum (property-based)', () => {
   it('never answers NaN for finite input of extreme magnitude (1e-300 to 1e100 m/s²)', () => {
     const extreme = fc.record({
       accelMPerS2: fc
-        .array(fc.oneof(fc.double({ min: -1e100, max: 1e100, noNaN: true }), fc.double({ min: -1e-300, max: 1e-300, noNaN: true })), {
-          minLength: 2,
-          maxLength: 100,
-        })
+        .array(
+          fc.oneof(
+            fc.double({ min: -1e100, max: 1e100, noNaN: true }),
+            fc.double({ min: -1e-300, max: 1e-300, noNaN: true }),
+          ),
+          {
+            minLength: 2,
+            maxLength: 100,
+          },
+        )
         .map((values) => Float64Array.from(values)),
       dtS: fc.double({ min: 0.001, max: 0.05, noNaN: true }),
     })
@@ -81,7 +93,9 @@ describe('computeSpectrum (property-based)', () => {
               const got = scaled.curves[c]![q][p]!
               // Linear in exact arithmetic; rounding of k·a and of each step leaves ~1e-15 per
               // operation, so 1e-9 of the curve's peak is tight yet clear of round-off.
-              expect(Math.abs(got - k * value), `${q} at ${s.periodsS[p]} s`).toBeLessThanOrEqual(1e-9 * k * peak)
+              expect(Math.abs(got - k * value), `${q} at ${s.periodsS[p]} s`).toBeLessThanOrEqual(
+                1e-9 * k * peak,
+              )
             })
           }
         })

@@ -1,6 +1,12 @@
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { MAX_PLAUSIBLE_ACCEL_G, MIN_RECORD_POINTS, type ParseRecordOptions, RecordParseError, parseRecord } from './parseRecord.js'
+import {
+  MAX_PLAUSIBLE_ACCEL_G,
+  MIN_RECORD_POINTS,
+  type ParseRecordOptions,
+  RecordParseError,
+  parseRecord,
+} from './parseRecord.js'
 import { SOURCE_UNITS, STANDARD_GRAVITY_M_PER_S2 } from './units.js'
 
 /**
@@ -38,7 +44,10 @@ const options: fc.Arbitrary<ParseRecordOptions> = fc.record(
   {
     units: fc.constantFrom(...SOURCE_UNITS),
     // Invalid steps too: the parser must refuse them with its own error.
-    dtS: fc.oneof(fc.double({ min: 1e-4, max: 1, noNaN: true }), fc.constantFrom(0, -0.01, Number.NaN, Infinity)),
+    dtS: fc.oneof(
+      fc.double({ min: 1e-4, max: 1, noNaN: true }),
+      fc.constantFrom(0, -0.01, Number.NaN, Infinity),
+    ),
   },
   { requiredKeys: [] },
 )
@@ -46,13 +55,48 @@ const options: fc.Arbitrary<ParseRecordOptions> = fc.record(
 /** Tokens a record file is made of, with the junk that real files carry. */
 const token = fc.oneof(
   { weight: 8, arbitrary: fc.double({ min: -50, max: 50, noNaN: true }).map((v) => v.toString()) },
-  { weight: 2, arbitrary: fc.double({ min: -1, max: 1, noNaN: true }).map((v) => v.toExponential(4).replace('e', 'D')) },
-  { weight: 1, arbitrary: fc.constantFrom('NaN', '-Infinity', 'inf', '', '"0.01"', '"', '1e999', '0x1A', '1,5', '--1', '.', '+') },
+  {
+    weight: 2,
+    arbitrary: fc.double({ min: -1, max: 1, noNaN: true }).map((v) => v.toExponential(4).replace('e', 'D')),
+  },
+  {
+    weight: 1,
+    arbitrary: fc.constantFrom(
+      'NaN',
+      '-Infinity',
+      'inf',
+      '',
+      '"0.01"',
+      '"',
+      '1e999',
+      '0x1A',
+      '1,5',
+      '--1',
+      '.',
+      '+',
+    ),
+  },
   { weight: 1, arbitrary: fc.string({ maxLength: 6 }) },
 )
 const line = fc.oneof(
-  { weight: 10, arbitrary: fc.array(token, { minLength: 1, maxLength: 3 }).chain((t) => fc.constantFrom(' ', ',', ';', '\t').map((sep) => t.join(sep))) },
-  { weight: 1, arbitrary: fc.constantFrom('units: g', 'dt = 0.01 s', 'NPTS= 20, DT= .005 SEC', 'time (s),acceleration (g)', '# comment', 'sampling rate 200 Hz', 'points: 40') },
+  {
+    weight: 10,
+    arbitrary: fc
+      .array(token, { minLength: 1, maxLength: 3 })
+      .chain((t) => fc.constantFrom(' ', ',', ';', '\t').map((sep) => t.join(sep))),
+  },
+  {
+    weight: 1,
+    arbitrary: fc.constantFrom(
+      'units: g',
+      'dt = 0.01 s',
+      'NPTS= 20, DT= .005 SEC',
+      'time (s),acceleration (g)',
+      '# comment',
+      'sampling rate 200 Hz',
+      'points: 40',
+    ),
+  },
 )
 const recordLike = fc
   .tuple(fc.array(line, { minLength: 0, maxLength: 60 }), fc.constantFrom('\n', '\r\n', '\r'), fc.boolean())
@@ -60,12 +104,16 @@ const recordLike = fc
 
 describe('parseRecord (property-based)', () => {
   it('throws nothing but RecordParseError on arbitrary text', () => {
-    fc.assert(fc.property(fc.string({ unit: 'grapheme', maxLength: 400 }), options, parsesOrRefuses), { numRuns: RUNS })
+    fc.assert(fc.property(fc.string({ unit: 'grapheme', maxLength: 400 }), options, parsesOrRefuses), {
+      numRuns: RUNS,
+    })
   })
 
   it('throws nothing but RecordParseError on arbitrary bytes read as UTF-8', () => {
     fc.assert(
-      fc.property(fc.uint8Array({ maxLength: 400 }), options, (bytes, o) => parsesOrRefuses(new TextDecoder().decode(bytes), o)),
+      fc.property(fc.uint8Array({ maxLength: 400 }), options, (bytes, o) =>
+        parsesOrRefuses(new TextDecoder().decode(bytes), o),
+      ),
       { numRuns: RUNS },
     )
   })
@@ -75,7 +123,10 @@ describe('parseRecord (property-based)', () => {
   })
 
   it('reads back exactly the values of a well-formed single column, in any line ending', () => {
-    const column = fc.array(fc.double({ min: -1, max: 1, noNaN: true }), { minLength: MIN_RECORD_POINTS, maxLength: 200 })
+    const column = fc.array(fc.double({ min: -1, max: 1, noNaN: true }), {
+      minLength: MIN_RECORD_POINTS,
+      maxLength: 200,
+    })
     fc.assert(
       fc.property(column, fc.constantFrom('\n', '\r\n', '\r'), (values, eol) => {
         const parsed = parseRecord(values.map(String).join(eol), { units: 'm/s2', dtS: 0.01 })

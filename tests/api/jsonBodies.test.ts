@@ -26,7 +26,11 @@ beforeAll(async () => {
       queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
       deps.runQueue = queue
     },
-    { SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000', SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000', PASSWORD_RESET_MAX_PER_WINDOW: '10000' },
+    {
+      SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000',
+      SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000',
+      PASSWORD_RESET_MAX_PER_WINDOW: '10000',
+    },
   )
   queue.start()
   world = await buildDemoWorld(ctx)
@@ -45,7 +49,10 @@ afterAll(async () => {
 const agentFor = (r: RouteSpec) =>
   r.access === 'public' ? ctx.anonymous() : r.access === 'member' ? agents.engineer! : agents[r.access[0]!]!
 const pathOf = (r: RouteSpec) =>
-  fillPath(r, { id: r.id ? world.idOf[r.id] : undefined, token: r.token ? world.tokenOf[r.token] : undefined })
+  fillPath(r, {
+    id: r.id ? world.idOf[r.id] : undefined,
+    token: r.token ? world.tokenOf[r.token] : undefined,
+  })
 
 function sendRaw(r: RouteSpec, raw: string) {
   const method = r.method.toLowerCase() as 'post' | 'patch'
@@ -65,7 +72,8 @@ function nested(depth: number): string {
   return '{"a":'.repeat(depth) + '1' + '}'.repeat(depth)
 }
 
-const polluted = () => (Object.prototype as Record<string, unknown>).polluted ?? ({} as Record<string, unknown>).polluted
+const polluted = () =>
+  (Object.prototype as Record<string, unknown>).polluted ?? ({} as Record<string, unknown>).polluted
 
 function expectRefused(res: request.Response, status = 400) {
   expect(res.status, `${res.status} ${JSON.stringify(res.body)}`).toBe(status)
@@ -75,70 +83,80 @@ function expectRefused(res: request.Response, status = 400) {
   expect(res.body.error.message.length).toBeGreaterThan(5)
 }
 
-describe.each(routeTable.filter((r) => r.body === 'json').map((r) => [routeKey(r), r] as const))('%s', (_name, r) => {
-  const valid = () => r.validBody!(world.ids)
-  const cases: { title: string; raw: () => string; status?: number; message?: () => RegExp }[] = [
-    { title: 'a list instead of an object', raw: () => '[]' },
-    { title: 'a bare JSON string', raw: () => '"text"' },
-    { title: 'text that is not JSON', raw: () => '{"name": ', message: () => /not valid JSON/ },
-    { title: 'an empty object (missing fields)', raw: () => '{}' },
-    {
-      title: 'an unknown field beside valid ones',
-      raw: () => JSON.stringify({ ...valid(), surplusField: 1 }),
-      message: () => /surplusField/,
-    },
-    ...Object.keys(r.validBody!(placeholderIds)).map((key) => ({
-      title: `the wrong type for ${key}`,
-      raw: () => JSON.stringify({ ...valid(), [key]: wrongType(valid()[key]) }),
-      message: () => new RegExp(`^${key}\\b`),
-    })),
-    {
-      title: 'a huge array (200,000 items)',
-      raw: () => {
-        const body = valid()
-        const arrayKey = Object.keys(body).find((k) => Array.isArray(body[k])) ?? 'surplusList'
-        return JSON.stringify({ ...body, [arrayKey]: new Array(200_000).fill(0) })
+describe.each(routeTable.filter((r) => r.body === 'json').map((r) => [routeKey(r), r] as const))(
+  '%s',
+  (_name, r) => {
+    const valid = () => r.validBody!(world.ids)
+    const cases: { title: string; raw: () => string; status?: number; message?: () => RegExp }[] = [
+      { title: 'a list instead of an object', raw: () => '[]' },
+      { title: 'a bare JSON string', raw: () => '"text"' },
+      { title: 'text that is not JSON', raw: () => '{"name": ', message: () => /not valid JSON/ },
+      { title: 'an empty object (missing fields)', raw: () => '{}' },
+      {
+        title: 'an unknown field beside valid ones',
+        raw: () => JSON.stringify({ ...valid(), surplusField: 1 }),
+        message: () => /surplusField/,
       },
-    },
-    { title: 'a body over the 2 MB limit', raw: () => JSON.stringify({ ...valid(), pad: 'x'.repeat(3 * 1024 * 1024) }), status: 413 },
-    { title: 'nesting 5,000 objects deep', raw: () => nested(5000) },
-    {
-      title: 'nesting 5,000 objects deep inside a known field',
-      // Spliced as text: the test's own JSON.stringify would run out of stack at this depth.
-      raw: () => {
-        const [first, ...rest] = Object.entries(valid())
-        const tail = rest.map(([k, v]) => `,${JSON.stringify(k)}:${JSON.stringify(v)}`).join('')
-        return `{${JSON.stringify(first![0])}:${nested(5000)}${tail}}`
+      ...Object.keys(r.validBody!(placeholderIds)).map((key) => ({
+        title: `the wrong type for ${key}`,
+        raw: () => JSON.stringify({ ...valid(), [key]: wrongType(valid()[key]) }),
+        message: () => new RegExp(`^${key}\\b`),
+      })),
+      {
+        title: 'a huge array (200,000 items)',
+        raw: () => {
+          const body = valid()
+          const arrayKey = Object.keys(body).find((k) => Array.isArray(body[k])) ?? 'surplusList'
+          return JSON.stringify({ ...body, [arrayKey]: new Array(200_000).fill(0) })
+        },
       },
-    },
-    {
-      title: 'a __proto__ key',
-      raw: () => JSON.stringify(valid()).replace(/^\{/, '{"__proto__":{"polluted":"yes","isAdmin":true},'),
-      message: () => /__proto__/,
-    },
-    {
-      title: 'a constructor.prototype key',
-      raw: () => JSON.stringify(valid()).replace(/^\{/, '{"constructor":{"prototype":{"polluted":"yes"}},'),
-      message: () => /constructor/,
-    },
-  ]
+      {
+        title: 'a body over the 2 MB limit',
+        raw: () => JSON.stringify({ ...valid(), pad: 'x'.repeat(3 * 1024 * 1024) }),
+        status: 413,
+      },
+      { title: 'nesting 5,000 objects deep', raw: () => nested(5000) },
+      {
+        title: 'nesting 5,000 objects deep inside a known field',
+        // Spliced as text: the test's own JSON.stringify would run out of stack at this depth.
+        raw: () => {
+          const [first, ...rest] = Object.entries(valid())
+          const tail = rest.map(([k, v]) => `,${JSON.stringify(k)}:${JSON.stringify(v)}`).join('')
+          return `{${JSON.stringify(first![0])}:${nested(5000)}${tail}}`
+        },
+      },
+      {
+        title: 'a __proto__ key',
+        raw: () => JSON.stringify(valid()).replace(/^\{/, '{"__proto__":{"polluted":"yes","isAdmin":true},'),
+        message: () => /__proto__/,
+      },
+      {
+        title: 'a constructor.prototype key',
+        raw: () => JSON.stringify(valid()).replace(/^\{/, '{"constructor":{"prototype":{"polluted":"yes"}},'),
+        message: () => /constructor/,
+      },
+    ]
 
-  for (const c of cases) {
-    it(`refuses ${c.title} with ${c.status ?? 400}, writes nothing and pollutes no prototype`, async () => {
-      const before = snapshotDb(ctx.db)
-      const res = await sendRaw(r, c.raw())
-      expectRefused(res, c.status)
-      if (c.message) expect(res.body.error.message).toMatch(c.message())
-      expect(polluted()).toBeUndefined()
-      expect(snapshotDb(ctx.db)).toEqual(before)
-    })
-  }
-})
+    for (const c of cases) {
+      it(`refuses ${c.title} with ${c.status ?? 400}, writes nothing and pollutes no prototype`, async () => {
+        const before = snapshotDb(ctx.db)
+        const res = await sendRaw(r, c.raw())
+        expectRefused(res, c.status)
+        if (c.message) expect(res.body.error.message).toMatch(c.message())
+        expect(polluted()).toBeUndefined()
+        expect(snapshotDb(ctx.db)).toEqual(before)
+      })
+    }
+  },
+)
 
 /** Ids of the right shape, to list a valid body's keys before the world exists. */
 const placeholderIds = {
   projectId: '00000000-0000-4000-8000-000000000000',
-  recordIds: ['00000000-0000-4000-8000-000000000001', '00000000-0000-4000-8000-000000000002'] as [string, string],
+  recordIds: ['00000000-0000-4000-8000-000000000001', '00000000-0000-4000-8000-000000000002'] as [
+    string,
+    string,
+  ],
   runId: '00000000-0000-4000-8000-000000000003',
   comparisonId: '00000000-0000-4000-8000-000000000004',
   reviewId: '00000000-0000-4000-8000-000000000005',
@@ -156,14 +174,18 @@ describe('query strings', () => {
       expect(res.body.error.message).toMatch(/surplus/)
     })
     it(`${routeKey(r)} refuses __proto__ parameters without polluting the prototype`, async () => {
-      const res = await agentFor(r).get(`${path()}?__proto__[polluted]=yes&constructor[prototype][polluted]=yes`)
+      const res = await agentFor(r).get(
+        `${path()}?__proto__[polluted]=yes&constructor[prototype][polluted]=yes`,
+      )
       expectRefused(res)
       expect(polluted()).toBeUndefined()
     })
   }
 
   it('refuses a repeated parameter where one value is expected', async () => {
-    const res = await agents.engineer!.get(`/api/records?projectId=${world.ids.projectId}&projectId=${world.ids.projectId}`)
+    const res = await agents.engineer!.get(
+      `/api/records?projectId=${world.ids.projectId}&projectId=${world.ids.projectId}`,
+    )
     expectRefused(res)
     expect(res.body.error.message).toMatch(/^projectId/)
   })
@@ -174,8 +196,19 @@ describe('POST /api/records multipart fields', () => {
   const cases: { title: string; fields: [string, string][]; message: RegExp }[] = [
     { title: 'an unknown field', fields: [['surplus', '1']], message: /surplus/ },
     { title: 'a __proto__ field', fields: [['__proto__[polluted]', 'yes']], message: /__proto__/ },
-    { title: 'a constructor.prototype field', fields: [['constructor[prototype][polluted]', 'yes']], message: /constructor/ },
-    { title: 'a field given twice', fields: [['name', 'a'], ['name', 'b']], message: /^name/ },
+    {
+      title: 'a constructor.prototype field',
+      fields: [['constructor[prototype][polluted]', 'yes']],
+      message: /constructor/,
+    },
+    {
+      title: 'a field given twice',
+      fields: [
+        ['name', 'a'],
+        ['name', 'b'],
+      ],
+      message: /^name/,
+    },
     { title: 'a number field that is not a number', fields: [['dtS', 'fast']], message: /^dtS/ },
   ]
   for (const c of cases) {

@@ -91,7 +91,10 @@ describe('POST /api/records with a malformed file', () => {
 
   it('responds 413 to a 60 MB file, naming the limit, and stores nothing', async () => {
     const before = storedState()
-    const res = await upload(Buffer.alloc(60 * 1024 * 1024, '0.001\n'), 'sixty.txt', { units: 'g', dtS: '0.01' })
+    const res = await upload(Buffer.alloc(60 * 1024 * 1024, '0.001\n'), 'sixty.txt', {
+      units: 'g',
+      dtS: '0.01',
+    })
     expect(res.status).toBe(413)
     expect(res.body.error.message).toMatch(/50 MB/)
     expect(storedState()).toEqual(before)

@@ -35,11 +35,21 @@ beforeAll(async () => {
       queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
       deps.runQueue = queue
     },
-    { SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000', SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000', PASSWORD_RESET_MAX_PER_WINDOW: '10000' },
+    {
+      SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000',
+      SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000',
+      PASSWORD_RESET_MAX_PER_WINDOW: '10000',
+    },
   )
   queue.start()
   world = await buildDemoWorld(ctx)
-  await addMember(ctx.db, ctx.seed.firmIds[1]!, 'outsider-admin@ordinate.test', ['engineer', 'checker', 'admin'], 'Oda Brightwater')
+  await addMember(
+    ctx.db,
+    ctx.seed.firmIds[1]!,
+    'outsider-admin@ordinate.test',
+    ['engineer', 'checker', 'admin'],
+    'Oda Brightwater',
+  )
   ;[demo.engineer, demo.checker, demo.admin, outsider] = await Promise.all([
     ctx.signIn('engineer@ordinate.test'),
     ctx.signIn('checker@ordinate.test'),
@@ -54,14 +64,20 @@ afterAll(async () => {
 
 const label = (r: RouteSpec) => routeKey(r)
 const pathOf = (r: RouteSpec, id?: string) =>
-  fillPath(r, { id: id ?? (r.id ? world.idOf[r.id] : undefined), token: r.token ? world.tokenOf[r.token] : undefined })
+  fillPath(r, {
+    id: id ?? (r.id ? world.idOf[r.id] : undefined),
+    token: r.token ? world.tokenOf[r.token] : undefined,
+  })
 
 /** Sends the route's request: its valid body (or a one-line upload) so only the check under test can refuse it. */
 function send(agent: request.Agent, r: RouteSpec, path = pathOf(r)) {
   const method = r.method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete'
   const req = agent[method](path)
   if (r.body === 'multipart') {
-    return req.field('units', 'g').field('dtS', '0.01').attach('file', Buffer.from('0\n0.01\n'.repeat(20)), 'r.txt')
+    return req
+      .field('units', 'g')
+      .field('dtS', '0.01')
+      .attach('file', Buffer.from('0\n0.01\n'.repeat(20)), 'r.txt')
   }
   return r.body === 'json' ? req.send(r.validBody!(world.ids)) : req
 }
@@ -136,7 +152,9 @@ describe("another firm's ids", () => {
       const before = snapshotDb(ctx.db)
       const { query, body } = r.foreignIds!(world.ids)
       const method = r.method.toLowerCase() as 'get' | 'post'
-      const res = await outsider[method](pathOf(r)).query(query ?? {}).send(body)
+      const res = await outsider[method](pathOf(r))
+        .query(query ?? {})
+        .send(body)
       if (res.status === 200) expect(res.body.items).toEqual([])
       else expectErrorShape(res, 404, 'not_found')
       expect(snapshotDb(ctx.db)).toEqual(before)
@@ -164,7 +182,10 @@ describe('cross-site requests', () => {
     const known = bare.get(email)
     if (known) return known
     const agent = request.agent(ctx.app)
-    const res = await agent.post('/api/auth/sign-in').set('x-ordinate-client', '1').send({ email, password: 'ordinate-demo' })
+    const res = await agent
+      .post('/api/auth/sign-in')
+      .set('x-ordinate-client', '1')
+      .send({ email, password: 'ordinate-demo' })
     expect(res.status).toBe(200)
     bare.set(email, agent)
     return agent

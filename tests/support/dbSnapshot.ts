@@ -7,7 +7,9 @@ import type { Db } from '../../server/db/client.js'
  */
 export function snapshotDb(db: Db): Record<string, string> {
   const tables = db.$client
-    .prepare("SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name <> 'sessions' ORDER BY name")
+    .prepare(
+      "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%' AND name <> 'sessions' ORDER BY name",
+    )
     .all() as { name: string }[]
   const out: Record<string, string> = {}
   for (const { name } of tables) {

@@ -13,7 +13,13 @@ import { latestMailTo, tokenFromLink } from './mailbox.js'
 import type { IdKind, TokenKind, WorldIds } from './routeTable.js'
 import type { TestContext } from './testApp.js'
 
-const RECORD_FIXTURE = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'fixtures', 'records', 'time-value-header.csv')
+const RECORD_FIXTURE = path.join(
+  path.dirname(fileURLToPath(import.meta.url)),
+  '..',
+  'fixtures',
+  'records',
+  'time-value-header.csv',
+)
 
 export interface DemoWorld {
   ids: WorldIds
@@ -28,9 +34,17 @@ function expectStatus(res: request.Response, status: number, what: string) {
 }
 
 /** Adds a member to a firm directly (a fast bcrypt cost: these are test accounts). */
-export async function addMember(db: Db, firmId: string, email: string, roles: Role[], name = 'Test Member'): Promise<string> {
+export async function addMember(
+  db: Db,
+  firmId: string,
+  email: string,
+  roles: Role[],
+  name = 'Test Member',
+): Promise<string> {
   const userId = newId()
-  db.insert(users).values({ id: userId, email, name, passwordHash: await hashPassword('ordinate-demo', 4) }).run()
+  db.insert(users)
+    .values({ id: userId, email, name, passwordHash: await hashPassword('ordinate-demo', 4) })
+    .run()
   db.insert(memberships).values({ id: newId(), firmId, userId, roles }).run()
   return userId
 }
@@ -42,7 +56,10 @@ export async function addMember(db: Db, firmId: string, email: string, roles: Ro
  * the API can build it, so the objects are what members would make.
  */
 export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
-  const [engineer, admin] = await Promise.all([ctx.signIn('engineer@ordinate.test'), ctx.signIn('admin@ordinate.test')])
+  const [engineer, admin] = await Promise.all([
+    ctx.signIn('engineer@ordinate.test'),
+    ctx.signIn('admin@ordinate.test'),
+  ])
   const firmId = ctx.seed.firmIds[0]!
   const projectId = ctx.seed.projectIds[0]!
   const bytes = readFileSync(RECORD_FIXTURE)
@@ -71,7 +88,9 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
     },
     { timeout: 30_000, interval: 50 },
   )
-  const comparison = await engineer.post('/api/comparisons').send({ name: 'Demo world suite', runIds: [runId], dampingRatio: 0.05 })
+  const comparison = await engineer
+    .post('/api/comparisons')
+    .send({ name: 'Demo world suite', runIds: [runId], dampingRatio: 0.05 })
   expectStatus(comparison, 201, 'comparison')
   const review = await engineer.post('/api/reviews').send({ subjectType: 'run', subjectId: runId })
   expectStatus(review, 201, 'review')
@@ -80,11 +99,23 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
     .send({ name: 'Demo world target', definition: { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 } })
   expectStatus(target, 201, 'target')
 
-  const invitation = await admin.post('/api/firm/invitations').send({ email: 'world-invitee@ordinate.test', roles: ['engineer'] })
+  const invitation = await admin
+    .post('/api/firm/invitations')
+    .send({ email: 'world-invitee@ordinate.test', roles: ['engineer'] })
   expectStatus(invitation, 201, 'invitation')
-  const invitationToken = tokenFromLink(latestMailTo(ctx.db, 'world-invitee@ordinate.test')!.textBody, '/invitations/')
-  expectStatus(await ctx.anonymous().post('/api/auth/password-reset').send({ email: 'checker@ordinate.test' }), 202, 'reset')
-  const resetToken = tokenFromLink(latestMailTo(ctx.db, 'checker@ordinate.test')!.textBody, '/reset-password/')
+  const invitationToken = tokenFromLink(
+    latestMailTo(ctx.db, 'world-invitee@ordinate.test')!.textBody,
+    '/invitations/',
+  )
+  expectStatus(
+    await ctx.anonymous().post('/api/auth/password-reset').send({ email: 'checker@ordinate.test' }),
+    202,
+    'reset',
+  )
+  const resetToken = tokenFromLink(
+    latestMailTo(ctx.db, 'checker@ordinate.test')!.textBody,
+    '/reset-password/',
+  )
 
   const ids: WorldIds = {
     projectId,
@@ -112,7 +143,11 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
 
 function membershipOf(ctx: TestContext, email: string): string {
   const userId = ctx.seed.userIds[email]!
-  const row = ctx.db.select({ id: memberships.id }).from(memberships).where(eq(memberships.userId, userId)).get()
+  const row = ctx.db
+    .select({ id: memberships.id })
+    .from(memberships)
+    .where(eq(memberships.userId, userId))
+    .get()
   if (!row) throw new Error(`no membership for ${email}`)
   return row.id
 }

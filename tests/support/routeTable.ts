@@ -60,40 +60,108 @@ const ASCE7 = { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 }
 export const routeTable: RouteSpec[] = [
   { method: 'GET', path: '/health', access: 'public' },
 
-  { method: 'POST', path: '/auth/sign-in', access: 'public', body: 'json', validBody: () => ({ email: 'nobody@ordinate.test', password: 'not-the-password' }) },
+  {
+    method: 'POST',
+    path: '/auth/sign-in',
+    access: 'public',
+    body: 'json',
+    validBody: () => ({ email: 'nobody@ordinate.test', password: 'not-the-password' }),
+  },
   { method: 'POST', path: '/auth/sign-out', access: 'public' },
   { method: 'GET', path: '/me', access: 'member' },
-  { method: 'POST', path: '/auth/password-reset', access: 'public', body: 'json', validBody: () => ({ email: 'nobody@ordinate.test' }) },
-  { method: 'POST', path: '/auth/password-reset/:token', access: 'public', token: 'reset', body: 'json', validBody: () => ({ password: 'a-new-password-1' }) },
+  {
+    method: 'POST',
+    path: '/auth/password-reset',
+    access: 'public',
+    body: 'json',
+    validBody: () => ({ email: 'nobody@ordinate.test' }),
+  },
+  {
+    method: 'POST',
+    path: '/auth/password-reset/:token',
+    access: 'public',
+    token: 'reset',
+    body: 'json',
+    validBody: () => ({ password: 'a-new-password-1' }),
+  },
 
   { method: 'GET', path: '/firm/members', access: ADMIN },
-  { method: 'PATCH', path: '/firm/members/:id', access: ADMIN, id: 'membership', body: 'json', validBody: () => ({ roles: ['checker'] }) },
+  {
+    method: 'PATCH',
+    path: '/firm/members/:id',
+    access: ADMIN,
+    id: 'membership',
+    body: 'json',
+    validBody: () => ({ roles: ['checker'] }),
+  },
   { method: 'DELETE', path: '/firm/members/:id', access: ADMIN, id: 'membership' },
   { method: 'GET', path: '/firm/invitations', access: ADMIN },
-  { method: 'POST', path: '/firm/invitations', access: ADMIN, body: 'json', validBody: () => ({ email: 'someone-new@ordinate.test', roles: ['engineer'] }) },
+  {
+    method: 'POST',
+    path: '/firm/invitations',
+    access: ADMIN,
+    body: 'json',
+    validBody: () => ({ email: 'someone-new@ordinate.test', roles: ['engineer'] }),
+  },
   { method: 'DELETE', path: '/firm/invitations/:id', access: ADMIN, id: 'invitation' },
   { method: 'GET', path: '/invitations/:token', access: 'public', token: 'invitation' },
-  { method: 'POST', path: '/invitations/:token/accept', access: 'public', token: 'invitation', body: 'json', validBody: () => ({ name: 'Nell Arvidsen', password: 'a-new-password-1' }) },
-  { method: 'GET', path: '/dev/mailbox', access: 'public', mountedWhen: 'the in-process SMTP sink runs (npm start without SMTP_URL)' },
+  {
+    method: 'POST',
+    path: '/invitations/:token/accept',
+    access: 'public',
+    token: 'invitation',
+    body: 'json',
+    validBody: () => ({ name: 'Nell Arvidsen', password: 'a-new-password-1' }),
+  },
+  {
+    method: 'GET',
+    path: '/dev/mailbox',
+    access: 'public',
+    mountedWhen: 'the in-process SMTP sink runs (npm start without SMTP_URL)',
+  },
 
   { method: 'GET', path: '/projects', access: 'member' },
-  { method: 'POST', path: '/projects', access: WRITERS, body: 'json', validBody: () => ({ name: 'Harbour Pavilion' }) },
+  {
+    method: 'POST',
+    path: '/projects',
+    access: WRITERS,
+    body: 'json',
+    validBody: () => ({ name: 'Harbour Pavilion' }),
+  },
 
-  { method: 'GET', path: '/records', access: 'member', query: true, foreignIds: (w) => ({ query: { projectId: w.projectId } }) },
+  {
+    method: 'GET',
+    path: '/records',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { projectId: w.projectId } }),
+  },
   { method: 'POST', path: '/records', access: WRITERS, body: 'multipart' },
   { method: 'GET', path: '/records/:id', access: 'member', id: 'record' },
   { method: 'GET', path: '/records/:id/samples', access: 'member', id: 'record', query: true },
   { method: 'DELETE', path: '/records/:id', access: 'member', id: 'record' },
   { method: 'GET', path: '/record-pairs', access: 'member' },
   {
-    method: 'POST', path: '/record-pairs', access: WRITERS, body: 'json',
+    method: 'POST',
+    path: '/record-pairs',
+    access: WRITERS,
+    body: 'json',
     validBody: (w) => ({ recordIds: w.recordIds }),
     foreignIds: (w) => ({ body: { recordIds: w.recordIds } }),
   },
 
-  { method: 'GET', path: '/runs', access: 'member', query: true, foreignIds: (w) => ({ query: { recordId: w.recordIds[0] } }) },
   {
-    method: 'POST', path: '/runs', access: WRITERS, body: 'json',
+    method: 'GET',
+    path: '/runs',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { recordId: w.recordIds[0] } }),
+  },
+  {
+    method: 'POST',
+    path: '/runs',
+    access: WRITERS,
+    body: 'json',
     validBody: (w) => ({ recordId: w.recordIds[0] }),
     foreignIds: (w) => ({ body: { recordId: w.recordIds[0] } }),
   },
@@ -108,39 +176,100 @@ export const routeTable: RouteSpec[] = [
   { method: 'GET', path: '/credits/packs', access: 'member' },
   { method: 'GET', path: '/credits/purchases', access: ADMIN },
   {
-    method: 'POST', path: '/credits/purchases', access: ADMIN, body: 'json',
-    validBody: () => ({ packId: 'pack-10', cardToken: 'tok_visa', purchaseId: '6f1c2a4e-8b3d-4f5a-9c7e-1d2b3a4c5e6f' }),
+    method: 'POST',
+    path: '/credits/purchases',
+    access: ADMIN,
+    body: 'json',
+    validBody: () => ({
+      packId: 'pack-10',
+      cardToken: 'tok_visa',
+      purchaseId: '6f1c2a4e-8b3d-4f5a-9c7e-1d2b3a4c5e6f',
+    }),
   },
   { method: 'GET', path: '/payments/config', access: 'member' },
 
-  { method: 'POST', path: '/targets/preview', access: 'member', body: 'json', validBody: () => ({ ...ASCE7 }) },
-  { method: 'GET', path: '/targets', access: 'member', query: true, foreignIds: (w) => ({ query: { projectId: w.projectId } }) },
   {
-    method: 'POST', path: '/targets', access: WRITERS, body: 'json',
+    method: 'POST',
+    path: '/targets/preview',
+    access: 'member',
+    body: 'json',
+    validBody: () => ({ ...ASCE7 }),
+  },
+  {
+    method: 'GET',
+    path: '/targets',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { projectId: w.projectId } }),
+  },
+  {
+    method: 'POST',
+    path: '/targets',
+    access: WRITERS,
+    body: 'json',
     validBody: () => ({ name: 'Site target', definition: { ...ASCE7 } }),
     foreignIds: (w) => ({ body: { name: 'Site target', projectId: w.projectId, definition: { ...ASCE7 } } }),
   },
 
-  { method: 'GET', path: '/comparisons', access: 'member', query: true, foreignIds: (w) => ({ query: { projectId: w.projectId } }) },
+  {
+    method: 'GET',
+    path: '/comparisons',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { projectId: w.projectId } }),
+  },
   { method: 'GET', path: '/comparisons/:id', access: 'member', id: 'comparison' },
   {
-    method: 'POST', path: '/comparisons', access: WRITERS, body: 'json',
+    method: 'POST',
+    path: '/comparisons',
+    access: WRITERS,
+    body: 'json',
     validBody: (w) => ({ name: 'Suite A', runIds: [w.runId], dampingRatio: 0.05 }),
     foreignIds: (w) => ({ body: { name: 'Suite A', runIds: [w.runId], dampingRatio: 0.05 } }),
   },
-  { method: 'PATCH', path: '/comparisons/:id', access: WRITERS, id: 'comparison', body: 'json', validBody: () => ({ name: 'Suite A, revised' }) },
+  {
+    method: 'PATCH',
+    path: '/comparisons/:id',
+    access: WRITERS,
+    id: 'comparison',
+    body: 'json',
+    validBody: () => ({ name: 'Suite A, revised' }),
+  },
   { method: 'GET', path: '/comparisons/:id/sheet', access: 'member', id: 'comparison' },
   { method: 'GET', path: '/comparisons/:id/export.:format', access: 'member', id: 'comparison', query: true },
 
-  { method: 'GET', path: '/reviews', access: 'member', query: true, foreignIds: (w) => ({ query: { subjectType: 'run', subjectId: w.runId } }) },
+  {
+    method: 'GET',
+    path: '/reviews',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { subjectType: 'run', subjectId: w.runId } }),
+  },
   { method: 'GET', path: '/reviews/:id', access: 'member', id: 'review' },
   {
-    method: 'POST', path: '/reviews', access: ['engineer'], body: 'json',
+    method: 'POST',
+    path: '/reviews',
+    access: ['engineer'],
+    body: 'json',
     validBody: (w) => ({ subjectType: 'run', subjectId: w.runId }),
     foreignIds: (w) => ({ body: { subjectType: 'run', subjectId: w.runId } }),
   },
-  { method: 'POST', path: '/reviews/:id/decision', access: ['checker'], id: 'review', body: 'json', validBody: () => ({ decision: 'checked' }) },
-  { method: 'POST', path: '/reviews/:id/comments', access: WRITERS, id: 'review', body: 'json', validBody: () => ({ body: 'Please state the damping used.' }) },
+  {
+    method: 'POST',
+    path: '/reviews/:id/decision',
+    access: ['checker'],
+    id: 'review',
+    body: 'json',
+    validBody: () => ({ decision: 'checked' }),
+  },
+  {
+    method: 'POST',
+    path: '/reviews/:id/comments',
+    access: WRITERS,
+    id: 'review',
+    body: 'json',
+    validBody: () => ({ body: 'Please state the damping used.' }),
+  },
 ]
 
 export const isStateChanging = (route: RouteSpec) => route.method !== 'GET'
@@ -166,7 +295,8 @@ export function mountedApiRoutes(app: Express): string[] {
         const paths = Array.isArray(layer.route.path) ? layer.route.path : [layer.route.path]
         for (const p of paths) {
           for (const [method, on] of Object.entries(layer.route.methods)) {
-            if (on && method !== '_all') found.push(routeKey({ method: method.toUpperCase(), path: prefix + p }))
+            if (on && method !== '_all')
+              found.push(routeKey({ method: method.toUpperCase(), path: prefix + p }))
           }
         }
       } else if (layer.handle?.stack) {
