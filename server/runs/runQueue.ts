@@ -1,4 +1,5 @@
 import { EventEmitter } from 'node:events'
+import { existsSync } from 'node:fs'
 import { availableParallelism } from 'node:os'
 import { fileURLToPath } from 'node:url'
 import type { Worker } from 'node:worker_threads'
@@ -52,7 +53,7 @@ export function defaultWorkerFile(): URL {
     : new URL('../../workers/spectrumWorker.dev.mjs', import.meta.url)
 }
 
-type WorkerResult = Extract<WorkerReply, { type: 'result' }>
+type WorkerResult = Extract<WorkerReply, { type: 'result' | 'pair-result' }>
 
 interface ActiveRun {
   claimed: ClaimedRun
@@ -73,6 +74,12 @@ interface Slot {
  * acquire (STACK.md), so each acquired worker is kept and handed the next run by message, and
  * is let go only after `idleMs` without work. Progress and status changes are written to the
  * runs table and published to subscribers (the server-sent event streams).
+ *
+ * A run finishes exactly once: every write after the claim is guarded by the run's attempt
+ * number, runs left `running` by a crash are queued again at `start()`, and a run that fails
+ * (worker error, exit, time limit) gets its credit back in the same transaction.
+ * Two-component runs slot in through `loadRunJob` (a `pair` job with two sample buffers) and
+ * the worker's message schema; the queue itself does not look inside a job.
  */
 export class RunQueue {
   readonly workerCount: number
@@ -96,6 +103,12 @@ export class RunQueue {
     this.timeLimitMs = options.runTimeLimitS * 1000
     this.idleMs = options.idleMs ?? 10_000
     this.workerFile = options.workerFile ?? defaultWorkerFile()
+    // Fail at boot, not on every run, when the build is incomplete.
+    if (!existsSync(this.workerFile)) {
+      throw new Error(
+        `The run worker ${fileURLToPath(this.workerFile)} is missing: run \`npm run build\` first.`,
+      )
+    }
     this.log = options.log ?? (() => {})
     this.pool = new Pool({ max: this.workerCount })
     this.events.setMaxListeners(0)
@@ -257,6 +270,7 @@ export class RunQueue {
         method: claimed.settings.method,
         dampingRatios: claimed.settings.dampingRatios,
         periodsS: claimed.settings.periodsS,
+        ...(claimed.settings.combinations ? { combinations: claimed.settings.combinations } : {}),
       },
     }
     slot.worker.postMessage(request, input.transfer)
@@ -281,6 +295,7 @@ export class RunQueue {
         this.endActive(slot, `The computation failed: ${reply.message}`)
         return
       case 'result':
+      case 'pair-result':
         this.endActive(slot, reply)
         return
     }
