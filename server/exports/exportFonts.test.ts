@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { Font } from 'fonteditor-core'
 import { describe, expect, it } from 'vitest'
-import { exportFontFiles, printableDeep, printableText } from './exportFonts.js'
+import { exportFontFiles, mergedFontTtf, printableDeep, printableText } from './exportFonts.js'
 
 describe('exportFontFiles', () => {
   it('merges the subsets: Greek for ζ β γ Δ, and accented Latin for station names', () => {
@@ -13,6 +13,12 @@ describe('exportFontFiles', () => {
         expect(codePoints.has(char.codePointAt(0) as number), `glyph for ${char}`).toBe(true)
       }
     }
+  })
+})
+
+describe('mergedFontTtf', () => {
+  it('builds the same bytes every time, so a sheet exported after a rebuild embeds the same font', () => {
+    expect(mergedFontTtf('regular').equals(mergedFontTtf('regular'))).toBe(true)
   })
 })
 
