@@ -31,6 +31,8 @@ export interface RunningServer {
   url: string
   /** Everything the server printed so far (for failure messages). */
   output: () => string
+  /** The server's process id, which also names its process group (for fault tests that kill it). */
+  pid: number
   stop: () => Promise<void>
 }
 
@@ -108,6 +110,7 @@ export async function startServer(env: Record<string, string> = {}): Promise<Run
   return {
     url,
     output: () => output,
+    pid: child.pid!,
     async stop() {
       killGroup(child, 'SIGTERM')
       if (!(await waitForExit(child, 5_000))) {
