@@ -6,7 +6,8 @@
 //   u' = a11·u + a12·v + b1·f + c1·f'
 //   v' = a21·u + a22·v + b2·f + c2·f'
 // where f, f' are the ground acceleration at the start and end of a sub-step,
-// interpolated linearly between record samples. The absolute acceleration is
+// interpolated linearly between record samples (into a scratch area, a block of
+// samples at a time, so the hot loop only reads them). The absolute acceleration is
 // −(cc·v + kk·u) with cc = 2ζω and kk = ω². Four oscillators advance per time
 // step as two f64x2 vectors held in locals (a last pair as one vector); nothing
 // is allocated.
@@ -14,7 +15,7 @@
 // The operations and their order match jsSweep in sweepKernel.ts exactly, so
 // both kernels give the same bits (IEEE-754 double, no fused multiply-add).
 //
-// Memory layout (arrays of `count` f64, count even):
+// Memory layout (arrays of `count` f64, count even; scratch holds 4097 f64):
 //   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk
 //   out:    max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end
 // Steps count sub-steps from 0 (the start, at rest).
@@ -29,16 +30,53 @@ function lin(a: v128, x: v128, b: v128, y: v128, c: v128, f0: v128, d: v128, f1:
   return f64x2.add(f64x2.add(f64x2.add(f64x2.mul(a, x), f64x2.mul(b, y)), f64x2.mul(c, f0)), f64x2.mul(d, f1))
 }
 
-export function sweep(count: i32, samples: i32, subSteps: i32, coeffs: usize, record: usize, out: usize): void {
+/** Sub-steps of forcing interpolated per block (the scratch area holds one more value). */
+const BLOCK_STEPS: i32 = 4096
+
+export function sweep(
+  count: i32,
+  samples: i32,
+  subSteps: i32,
+  coeffs: usize,
+  record: usize,
+  out: usize,
+  scratch: usize,
+): void {
   const stride = (<usize>count) << 3
   let o: i32 = 0
-  for (; o + 4 <= count; o += 4) sweepFour(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3))
-  if (o < count) sweepTwo(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3))
+  for (; o + 4 <= count; o += 4) {
+    sweepFour(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3), scratch)
+  }
+  if (o < count) sweepTwo(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3), scratch)
+}
+
+/**
+ * The ground acceleration at the sub-steps of samples [first, first + intervals]:
+ * f = a_i + ((a_(i+1) − a_i)/m)·j for j = 0 … m − 1, then a_(first+intervals).
+ * With one sub-step the record itself serves.
+ */
+function forcing(record: usize, first: i32, intervals: i32, subSteps: i32, scratch: usize): usize {
+  const start = record + ((<usize>first) << 3)
+  if (subSteps == 1) return start
+  const m = <f64>subSteps
+  let at = scratch
+  for (let i: i32 = 0; i < intervals; i++) {
+    const a0 = load<f64>(start + ((<usize>i) << 3))
+    const a1 = load<f64>(start + ((<usize>(i + 1)) << 3))
+    const slope = (a1 - a0) / m
+    store<f64>(at, a0)
+    at += 8
+    for (let j: i32 = 1; j < subSteps; j++) {
+      store<f64>(at, a0 + slope * <f64>j)
+      at += 8
+    }
+  }
+  store<f64>(at, load<f64>(start + ((<usize>intervals) << 3)))
+  return scratch
 }
 
 /** Four oscillators as two f64x2 vectors (p, q); `c` and `r` point at their first coefficient and output. */
-function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize): void {
-  const m = <f64>subSteps
+function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize, scratch: usize): void {
   const a11p = v128.load(c), a11q = v128.load(c, 16)
   const a12p = v128.load(c + stride), a12q = v128.load(c + stride, 16)
   const b1p = v128.load(c + 2 * stride), b1q = v128.load(c + 2 * stride, 16)
@@ -55,16 +93,15 @@ function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record:
   let mup = zero, muq = zero, mvp = zero, mvq = zero, map = zero, maq = zero
   let kup = zero, kuq = zero, kap = zero, kaq = zero
   let step: f64 = 0
-  let start = load<f64>(record)
-  for (let i: i32 = 1; i < samples; i++) {
-    const end = load<f64>(record + ((<usize>i) << 3))
-    const slope = (end - start) / m
-    let f = start
-    for (let j: i32 = 1; j <= subSteps; j++) {
-      const fNext: f64 = j == subSteps ? end : start + slope * <f64>j
+  const blockIntervals = max(1, BLOCK_STEPS / subSteps)
+  for (let first: i32 = 0; first < samples - 1; first += blockIntervals) {
+    const intervals = min(blockIntervals, samples - 1 - first)
+    const f = forcing(record, first, intervals, subSteps, scratch)
+    const steps = intervals * subSteps
+    let f0 = f64x2.splat(load<f64>(f))
+    for (let k: i32 = 1; k <= steps; k++) {
+      const f1 = f64x2.splat(load<f64>(f + ((<usize>k) << 3)))
       step += 1
-      const f0 = f64x2.splat(f)
-      const f1 = f64x2.splat(fNext)
       const kv = f64x2.splat(step)
 
       const nup = lin(a11p, up, a12p, vp, b1p, f0, c1p, f1)
@@ -91,9 +128,8 @@ function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record:
       kaq = v128.bitselect(kv, kaq, f64x2.gt(aaq, maq))
       maq = f64x2.max(maq, aaq)
 
-      f = fNext
+      f0 = f1
     }
-    start = end
   }
 
   v128.store(r, mup)
@@ -113,8 +149,7 @@ function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record:
 }
 
 /** The last two oscillators when the count is not a multiple of four: one f64x2 vector. */
-function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize): void {
-  const m = <f64>subSteps
+function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize, scratch: usize): void {
   const a11 = v128.load(c)
   const a12 = v128.load(c + stride)
   const b1 = v128.load(c + 2 * stride)
@@ -129,16 +164,15 @@ function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: 
   const zero = f64x2.splat(0)
   let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero
   let step: f64 = 0
-  let start = load<f64>(record)
-  for (let i: i32 = 1; i < samples; i++) {
-    const end = load<f64>(record + ((<usize>i) << 3))
-    const slope = (end - start) / m
-    let f = start
-    for (let j: i32 = 1; j <= subSteps; j++) {
-      const fNext: f64 = j == subSteps ? end : start + slope * <f64>j
+  const blockIntervals = max(1, BLOCK_STEPS / subSteps)
+  for (let first: i32 = 0; first < samples - 1; first += blockIntervals) {
+    const intervals = min(blockIntervals, samples - 1 - first)
+    const f = forcing(record, first, intervals, subSteps, scratch)
+    const steps = intervals * subSteps
+    let f0 = f64x2.splat(load<f64>(f))
+    for (let k: i32 = 1; k <= steps; k++) {
+      const f1 = f64x2.splat(load<f64>(f + ((<usize>k) << 3)))
       step += 1
-      const f0 = f64x2.splat(f)
-      const f1 = f64x2.splat(fNext)
       const kv = f64x2.splat(step)
       const nu = lin(a11, u, a12, v, b1, f0, c1, f1)
       const nv = lin(a21, u, a22, v, b2, f0, c2, f1)
@@ -151,9 +185,8 @@ function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: 
       const aa = f64x2.abs(f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
       ka = v128.bitselect(kv, ka, f64x2.gt(aa, ma))
       ma = f64x2.max(ma, aa)
-      f = fNext
+      f0 = f1
     }
-    start = end
   }
   v128.store(r, mu)
   v128.store(r + stride, mv)

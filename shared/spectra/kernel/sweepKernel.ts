@@ -134,7 +134,15 @@ interface WasmApi {
 interface KernelExports {
   memory: { buffer: ArrayBuffer; grow(pages: number): number }
   heapBase(): number
-  sweep(count: number, samples: number, subSteps: number, coeffs: number, record: number, out: number): void
+  sweep(
+    count: number,
+    samples: number,
+    subSteps: number,
+    coeffs: number,
+    record: number,
+    out: number,
+    scratch: number,
+  ): void
 }
 
 function decodeBase64(base64: string): Uint8Array<ArrayBuffer> {
@@ -145,6 +153,9 @@ function decodeBase64(base64: string): Uint8Array<ArrayBuffer> {
 }
 
 const PAGE_BYTES = 65_536
+/** Bytes of the kernel's forcing scratch area: BLOCK_STEPS + 1 values in sweepKernel.as, rounded to 16. */
+const SCRATCH_BYTES = (4096 + 2) * 8
+const align16 = (address: number) => Math.ceil(address / 16) * 16
 
 /**
  * Instantiates the WebAssembly kernel synchronously (allowed in Node and in
@@ -191,13 +202,14 @@ export function createWasmKernel(): SweepKernel | null {
     },
     sweep(count, subSteps, coeffs, out) {
       if (count % 2 !== 0) throw new RangeError('the WebAssembly kernel takes oscillators in pairs')
-      const coeffsAt = base + recordBytes()
+      const scratchAt = align16(base + recordBytes())
+      const coeffsAt = scratchAt + SCRATCH_BYTES
       const outAt = coeffsAt + COEFFICIENT_ARRAYS * count * 8
       ensureBytes(outAt + OUTPUT_ARRAYS * count * 8)
       new Float64Array(exports.memory.buffer, coeffsAt, COEFFICIENT_ARRAYS * count).set(
         coeffs.subarray(0, COEFFICIENT_ARRAYS * count),
       )
-      exports.sweep(count, samples, subSteps, coeffsAt, base, outAt)
+      exports.sweep(count, samples, subSteps, coeffsAt, base, outAt, scratchAt)
       out.set(new Float64Array(exports.memory.buffer, outAt, OUTPUT_ARRAYS * count))
     },
   }
