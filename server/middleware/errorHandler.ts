@@ -47,7 +47,13 @@ export function errorHandler(log: (line: string) => void = console.error) {
       return
     }
     const requestId = randomUUID()
-    log(`[${requestId}] ${req.method} ${req.path} failed: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`)
+    // The matched route's pattern (relative to its router), never the path: invitation and
+    // reset paths carry single-use tokens.
+    const pattern: unknown = (req.route as { path?: unknown } | undefined)?.path
+    const route = pattern === undefined ? 'outside any route' : `route ${String(pattern)}`
+    log(
+      `[${requestId}] ${req.method} ${route} failed: ${err instanceof Error ? (err.stack ?? err.message) : String(err)}`,
+    )
     res.status(500).json({
       error: { code: 'internal', message: `Something went wrong on our side (request ${requestId}).` },
     })

@@ -1,4 +1,5 @@
 import { existsSync, readFileSync, readdirSync } from 'node:fs'
+import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { count } from 'drizzle-orm'
@@ -122,6 +123,41 @@ describe('POST /api/records with an odd but valid file', () => {
         expect(res.body[key], key).toBe(referenceAnswer[key])
       }
       expect(res.body.sha256).not.toBe(referenceAnswer.sha256)
+    })
+  }
+})
+
+describe('POST /api/records with a hostile file name', () => {
+  /** Every file under the data folder, relative to it. */
+  function filesUnder(dir: string, prefix = ''): string[] {
+    return readdirSync(path.join(dir, prefix), { withFileTypes: true }).flatMap((e) =>
+      e.isDirectory() ? filesUnder(dir, path.join(prefix, e.name)) : [path.join(prefix, e.name)],
+    )
+  }
+
+  const names = [
+    '../../etc/passwd',
+    '../../../../../../tmp/ordinate-escape.txt',
+    '..\\..\\windows\\win.ini',
+    '/tmp/ordinate-absolute.txt',
+    'originals/../../test.sqlite',
+    '%2e%2e%2f%2e%2e%2fencoded.txt',
+  ]
+  for (const [i, name] of names.entries()) {
+    it(`stores ${JSON.stringify(name)} under its SHA-256 only, and keeps the name for display`, async () => {
+      const bytes = Buffer.from(`# synthetic ${i}\n` + '0\n0.01\n-0.01\n'.repeat(8))
+      const res = await upload(bytes, name, { units: 'g', dtS: '0.01' })
+      expect(res.status, JSON.stringify(res.body)).toBe(201)
+      // Only the database and originals named by their hash live in the data folder.
+      for (const file of filesUnder(ctx.dataDir)) {
+        expect(file).toMatch(/^(test\.sqlite(-wal|-shm)?|originals\/[0-9a-f]{64})$/)
+      }
+      expect(existsSync(path.join(ctx.dataDir, 'originals', res.body.sha256))).toBe(true)
+      for (const escaped of ['ordinate-escape.txt', 'ordinate-absolute.txt']) {
+        expect(existsSync(path.join(tmpdir(), escaped))).toBe(false)
+      }
+      const detail = await engineer.get(`/api/records/${res.body.id}`)
+      expect(detail.body.sourceFileName).not.toMatch(/[\\/]/)
     })
   }
 })
