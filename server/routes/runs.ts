@@ -1,6 +1,7 @@
 import { Router, type Response } from 'express'
 import { idParamsSchema } from '../../shared/schemas/common.js'
 import {
+  createPairRunBodySchema,
   createRunBodySchema,
   isFinished,
   runListQuerySchema,
@@ -30,7 +31,8 @@ export function runsRouter(deps: AppDeps) {
 
   // Role table (accounts issue): engineers start runs, checkers for independent re-runs; an admin only when also one of these.
   router.post('/runs', requireRole('engineer', 'checker'), (req, res) => {
-    const body = createRunBodySchema.parse(req.body)
+    const isPair = typeof req.body === 'object' && req.body !== null && 'pairId' in req.body
+    const body = isPair ? createPairRunBodySchema.parse(req.body) : createRunBodySchema.parse(req.body)
     const run = createRun(deps.db, memberOf(req), body)
     deps.runQueue?.kick()
     res.status(202).json(run)

@@ -53,7 +53,7 @@ export function defaultWorkerFile(): URL {
     : new URL('../../workers/spectrumWorker.dev.mjs', import.meta.url)
 }
 
-type WorkerResult = Extract<WorkerReply, { type: 'result' }>
+type WorkerResult = Extract<WorkerReply, { type: 'result' | 'pair-result' }>
 
 interface ActiveRun {
   claimed: ClaimedRun
@@ -270,6 +270,7 @@ export class RunQueue {
         method: claimed.settings.method,
         dampingRatios: claimed.settings.dampingRatios,
         periodsS: claimed.settings.periodsS,
+        ...(claimed.settings.combinations ? { combinations: claimed.settings.combinations } : {}),
       },
     }
     slot.worker.postMessage(request, input.transfer)
@@ -294,6 +295,7 @@ export class RunQueue {
         this.endActive(slot, `The computation failed: ${reply.message}`)
         return
       case 'result':
+      case 'pair-result':
         this.endActive(slot, reply)
         return
     }

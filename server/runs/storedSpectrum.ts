@@ -6,29 +6,20 @@ import { isSourceUnits } from '../../shared/spectra/units.js'
 import type { Db } from '../db/client.js'
 import { records } from '../db/schema.js'
 import type { ClaimedRun } from '../services/runs.js'
+import { recordSummaryColumns } from './recordSummaryColumns.js'
+import { storedPairSpectrum } from './storedPairSpectrum.js'
 
-type WorkerResult = Extract<WorkerReply, { type: 'result' }>
+type WorkerResult = Extract<WorkerReply, { type: 'result' | 'pair-result' }>
 
 /**
  * The spectrum row of a finished run: the engine's JSON of the computation the worker posted
  * (the same function the command line uses), with the record's parameters and warnings.
  */
 export function storedSpectrum(db: Db, run: ClaimedRun, reply: WorkerResult): SpectrumResult {
+  if (reply.type === 'pair-result') return storedPairSpectrum(db, run, reply.computation)
   const record = run.recordId
     ? db
-        .select({
-          points: records.points,
-          dtS: records.dtS,
-          durationS: records.durationS,
-          sourceUnits: records.sourceUnits,
-          pgaMPerS2: records.pgaMPerS2,
-          pgvMPerS: records.pgvMPerS,
-          pgdM: records.pgdM,
-          ariasMPerS: records.ariasMPerS,
-          d595S: records.d595S,
-          cavMPerS: records.cavMPerS,
-          warnings: records.warnings,
-        })
+        .select(recordSummaryColumns)
         .from(records)
         .where(and(eq(records.firmId, run.firmId), eq(records.id, run.recordId)))
         .get()

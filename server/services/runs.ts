@@ -1,5 +1,6 @@
 import { and, asc, desc, eq, sql, type SQL } from 'drizzle-orm'
 import {
+  type CreatePairRunBody,
   type CreateRunBody,
   type Run,
   type RunListQuery,
@@ -10,12 +11,13 @@ import type { SpectrumJob } from '../../shared/schemas/spectrumWorker.js'
 import { defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import type { Db } from '../db/client.js'
 import { recordPairs, records, runs, spectra, users } from '../db/schema.js'
-import { conflict, notFound } from '../httpError.js'
+import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
+import { reviewStateOf, reviewStates } from './reviews.js'
 import { decodeSamples } from './sampleBlob.js'
-import { reserveRunCredit, returnRunCredit } from './credits.js'
+import { type DbOrTx, reserveRunCredit, returnRunCredit } from './credits.js'
 
 /** Turns the request's settings into the settings the run is computed with (periods resolved). */
 export function resolveRunSettings(input: Omit<CreateRunBody, 'recordId'>): RunSettings {
@@ -53,6 +55,8 @@ const runColumns = {
   createdAt: runs.createdAt,
   startedAt: runs.startedAt,
   finishedAt: runs.finishedAt,
+  revision: runs.revision,
+  revisionOf: runs.revisionOf,
 }
 
 function selectRuns(db: Pick<Db, 'select'>, where: SQL | undefined) {
@@ -67,11 +71,12 @@ function selectRuns(db: Pick<Db, 'select'>, where: SQL | undefined) {
 
 type RunRow = Awaited<ReturnType<ReturnType<typeof selectRuns>['all']>>[number]
 
-function toRun({ createdById, createdByName, ...row }: RunRow): Run {
+function toRun({ createdById, createdByName, ...row }: RunRow, reviewState: Run['reviewState']): Run {
   return {
     ...row,
     settings: row.settings as RunSettings,
     createdBy: { id: createdById, name: createdByName },
+    reviewState,
   }
 }
 
@@ -82,43 +87,133 @@ export function listRuns(db: Db, firmId: string, query: RunListQuery, limit = 50
     query.projectId ? eq(runs.projectId, query.projectId) : undefined,
     query.recordId ? eq(runs.recordId, query.recordId) : undefined,
   )
-  return selectRuns(db, where).orderBy(desc(runs.createdAt), desc(runs.id)).limit(limit).all().map(toRun)
+  const rows = selectRuns(db, where).orderBy(desc(runs.createdAt), desc(runs.id)).limit(limit).all()
+  const states = reviewStates(
+    db,
+    firmId,
+    'run',
+    rows.map((r) => r.id),
+  )
+  return rows.map((row) => toRun(row, states.get(row.id) ?? 'draft'))
 }
 
 /** One of the firm's runs; another firm's id answers 404. */
 export function getRun(db: Pick<Db, 'select'>, firmId: string, runId: string): Run {
   const row = selectRuns(db, and(eq(runs.firmId, firmId), eq(runs.id, runId))).get()
   if (!row) throw notFound('The run')
-  return toRun(row)
+  return toRun(row, reviewStateOf(db, firmId, 'run', runId))
+}
+
+/** The record or pair a new run computes, as its row and its audit row need it. */
+interface RunSubject {
+  projectId: string
+  recordId: string | null
+  pairId: string | null
+  /** The record's SHA-256; for a pair, both components' joined by "+". */
+  sha256: string
+  auditDetail: Record<string, unknown>
+}
+
+function runSubject(tx: DbOrTx, firmId: string, body: CreateRunBody | CreatePairRunBody): RunSubject {
+  if ('recordId' in body) {
+    const record = tx
+      .select({ projectId: records.projectId, sha256: records.sha256, name: records.name })
+      .from(records)
+      .where(and(eq(records.firmId, firmId), eq(records.id, body.recordId)))
+      .get()
+    if (!record) throw notFound('The record')
+    const { projectId, sha256, name } = record
+    return {
+      projectId,
+      recordId: body.recordId,
+      pairId: null,
+      sha256,
+      auditDetail: { recordId: body.recordId, recordName: name },
+    }
+  }
+  const pair = tx
+    .select({
+      projectId: recordPairs.projectId,
+      name: recordPairs.name,
+      record1Id: recordPairs.record1Id,
+      record2Id: recordPairs.record2Id,
+    })
+    .from(recordPairs)
+    .where(and(eq(recordPairs.firmId, firmId), eq(recordPairs.id, body.pairId)))
+    .get()
+  if (!pair) throw notFound('The record pair')
+  const hashes = [pair.record1Id, pair.record2Id].map((id) => {
+    const row = tx
+      .select({ sha256: records.sha256 })
+      .from(records)
+      .where(and(eq(records.firmId, firmId), eq(records.id, id)))
+      .get()
+    if (!row) throw notFound('A record of the pair')
+    return row.sha256
+  })
+  return {
+    projectId: pair.projectId,
+    recordId: null,
+    pairId: body.pairId,
+    sha256: hashes.join('+'),
+    auditDetail: {
+      pairId: body.pairId,
+      pairName: pair.name,
+      combinations: 'combinations' in body ? body.combinations : [],
+    },
+  }
+}
+
+/** The revision of a re-run: one more than the run it revises, which must be of the same record or pair. */
+function runRevision(
+  tx: DbOrTx,
+  firmId: string,
+  revisionOf: string | undefined,
+  subject: RunSubject,
+): number {
+  if (!revisionOf) return 1
+  const previous = tx
+    .select({ revision: runs.revision, recordId: runs.recordId, pairId: runs.pairId })
+    .from(runs)
+    .where(and(eq(runs.firmId, firmId), eq(runs.id, revisionOf)))
+    .get()
+  if (!previous) throw notFound('The run to revise')
+  if (previous.recordId !== subject.recordId || previous.pairId !== subject.pairId) {
+    throw badRequest(
+      'A revision must run the same record or pair as the run it revises.',
+      'revision_subject_mismatch',
+    )
+  }
+  return previous.revision + 1
 }
 
 /**
- * Queues a run of one record. The run row, the reserved credit and the audit row are written in
- * one IMMEDIATE transaction, so concurrent requests can never spend the same last credit and a
- * refused request (404, 402) leaves nothing behind.
+ * Queues a run of one record, or of a record pair with its combinations (one credit either way).
+ * The run row, the reserved credit and the audit row are written in one IMMEDIATE transaction,
+ * so concurrent requests can never spend the same last credit and a refused request (404, 402)
+ * leaves nothing behind.
  */
-export function createRun(db: Db, member: Member, body: CreateRunBody): Run {
-  const { recordId, ...input } = body
-  const settings = resolveRunSettings(input)
+export function createRun(db: Db, member: Member, body: CreateRunBody | CreatePairRunBody): Run {
+  const settings = resolveRunSettings(body)
+  if ('combinations' in body) settings.combinations = [...body.combinations]
   const runId = newId()
   db.transaction(
     (tx) => {
-      const record = tx
-        .select({ projectId: records.projectId, sha256: records.sha256, name: records.name })
-        .from(records)
-        .where(and(eq(records.firmId, member.firmId), eq(records.id, recordId)))
-        .get()
-      if (!record) throw notFound('The record')
+      const subject = runSubject(tx, member.firmId, body)
+      const revision = runRevision(tx, member.firmId, body.revisionOf, subject)
       tx.insert(runs)
         .values({
           id: runId,
           firmId: member.firmId,
-          projectId: record.projectId,
-          recordId,
+          projectId: subject.projectId,
+          recordId: subject.recordId,
+          pairId: subject.pairId,
           status: 'queued',
           progress: 0,
           settings,
-          recordSha256: record.sha256,
+          recordSha256: subject.sha256,
+          revision,
+          revisionOf: body.revisionOf ?? null,
           createdBy: member.userId,
           createdAt: Date.now(),
         })
@@ -131,11 +226,11 @@ export function createRun(db: Db, member: Member, body: CreateRunBody): Run {
         subjectType: 'run',
         subjectId: runId,
         detail: {
-          recordId,
-          recordName: record.name,
+          ...subject.auditDetail,
           method: settings.method,
           dampingRatios: settings.dampingRatios,
           periods: settings.periodsS.length,
+          ...(body.revisionOf ? { revisionOf: body.revisionOf, revision } : {}),
         },
       })
     },
@@ -259,9 +354,10 @@ export interface RunJob {
   transfer: ArrayBuffer[]
 }
 
-/** Loads the samples of a claimed run's record. Throws with a message when the record is gone. */
+/** Loads the samples of a claimed run's record (or pair). Throws with a message when a record is gone. */
 export function loadRunJob(db: Db, run: ClaimedRun): RunJob {
-  if (!run.recordId) throw new Error('This kind of run is not supported yet.')
+  if (run.pairId) return loadPairJob(db, run.firmId, run.pairId)
+  if (!run.recordId) throw new Error('This run has neither a record nor a record pair.')
   const record = db
     .select({ dtS: records.dtS, samples: records.samples })
     .from(records)
@@ -270,6 +366,29 @@ export function loadRunJob(db: Db, run: ClaimedRun): RunJob {
   if (!record) throw new Error('The record of this run no longer exists.')
   const samples = decodeSamples(record.samples).buffer as ArrayBuffer
   return { job: { kind: 'record', dtS: record.dtS, samples }, transfer: [samples] }
+}
+
+function loadPairJob(db: Db, firmId: string, pairId: string): RunJob {
+  const pair = db
+    .select({ record1Id: recordPairs.record1Id, record2Id: recordPairs.record2Id })
+    .from(recordPairs)
+    .where(and(eq(recordPairs.firmId, firmId), eq(recordPairs.id, pairId)))
+    .get()
+  if (!pair) throw new Error('The record pair of this run no longer exists.')
+  const [first, second] = [pair.record1Id, pair.record2Id].map((id) => {
+    const row = db
+      .select({ dtS: records.dtS, samples: records.samples })
+      .from(records)
+      .where(and(eq(records.firmId, firmId), eq(records.id, id)))
+      .get()
+    if (!row) throw new Error('A record of this run’s pair no longer exists.')
+    return { dtS: row.dtS, samples: decodeSamples(row.samples).buffer as ArrayBuffer }
+  })
+  if (!first || !second) throw new Error('The record pair of this run is incomplete.')
+  return {
+    job: { kind: 'pair', dtS: first.dtS, samples1: first.samples, samples2: second.samples },
+    transfer: [first.samples, second.samples],
+  }
 }
 
 /** Stores a running run's progress (0–1); ignored once the run is no longer this attempt's. */

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { idSchema } from './common.js'
+import { reviewStateSchema } from './reviews.js'
 
 /** Limits of a run's settings (runs issue): what one credit buys. */
 export const MAX_DAMPING_RATIOS = 10
@@ -62,14 +63,40 @@ export const runSettingsInputShape = {
   method: runMethodSchema.default('newmark-average'),
 }
 
+/** A re-run of an earlier run of the same record or pair (a new revision, e.g. after it was checked). */
+const revisionOfShape = { revisionOf: idSchema.optional() }
+
 /** POST /api/runs */
 export const createRunBodySchema = z
-  .strictObject({ recordId: idSchema, ...runSettingsInputShape })
+  .strictObject({ recordId: idSchema, ...runSettingsInputShape, ...revisionOfShape })
   .refine((b) => !(b.periodsS && b.periodGrid), {
     message: 'Give either periodsS or periodGrid, not both.',
     path: ['periodGrid'],
   })
 export type CreateRunBody = z.infer<typeof createRunBodySchema>
+
+/** How a pair run combines its two horizontal components (Boore 2010 for RotD50/RotD100). */
+export const runCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'], {
+  error: 'Each combination must be geomean, rotd50 or rotd100.',
+})
+export type RunCombination = z.infer<typeof runCombinationSchema>
+
+/** POST /api/runs for a record pair: the same settings, with the combinations to compute. */
+export const createPairRunBodySchema = z
+  .strictObject({
+    pairId: idSchema,
+    combinations: z
+      .array(runCombinationSchema)
+      .min(1, 'Give at least one combination.')
+      .refine((values) => new Set(values).size === values.length, 'Give each combination once.'),
+    ...runSettingsInputShape,
+    ...revisionOfShape,
+  })
+  .refine((b) => !(b.periodsS && b.periodGrid), {
+    message: 'Give either periodsS or periodGrid, not both.',
+    path: ['periodGrid'],
+  })
+export type CreatePairRunBody = z.infer<typeof createPairRunBodySchema>
 
 /** Where a run's periods came from. */
 export const periodChoiceSchema = z.enum(['default', 'list', 'grid'])
@@ -83,6 +110,8 @@ export const runSettingsSchema = z.object({
   periodsS: z.array(z.number()),
   periodChoice: periodChoiceSchema,
   periodGrid: z.object({ minS: z.number(), maxS: z.number(), count: z.number().int() }).nullable(),
+  /** Pair runs: the combinations computed, one curve each per damping ratio. */
+  combinations: z.array(runCombinationSchema).optional(),
 })
 export type RunSettings = z.infer<typeof runSettingsSchema>
 
@@ -112,6 +141,11 @@ export const runSchema = z.object({
   createdAt: z.number(),
   startedAt: z.number().nullable(),
   finishedAt: z.number().nullable(),
+  /** 1 for a first run; a re-run of `revisionOf` counts up. */
+  revision: z.number().int(),
+  revisionOf: z.string().nullable(),
+  /** Where the run stands in checking (draft until submitted). */
+  reviewState: reviewStateSchema,
 })
 export type Run = z.infer<typeof runSchema>
 

@@ -7,14 +7,23 @@ import { runMethodSchema } from './runs.js'
  * buffers, never copied.
  */
 
+/** How a pair run combines its two components (spelled as in shared/schemas/spectrum.ts). */
+const pairCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'])
+
 const float64ArraySchema = z.custom<Float64Array>((v) => v instanceof Float64Array, 'expected a Float64Array')
 
-/** One record's samples (m/s², uniform Δt). A record pair adds a second `kind` beside this one. */
+/** One record's samples (m/s², uniform Δt), or the two components of a record pair. */
 export const spectrumJobSchema = z.discriminatedUnion('kind', [
   z.object({
     kind: z.literal('record'),
     dtS: z.number().positive(),
     samples: z.instanceof(ArrayBuffer, { message: 'expected the samples as an ArrayBuffer' }),
+  }),
+  z.object({
+    kind: z.literal('pair'),
+    dtS: z.number().positive(),
+    samples1: z.instanceof(ArrayBuffer, { message: 'expected the first component as an ArrayBuffer' }),
+    samples2: z.instanceof(ArrayBuffer, { message: 'expected the second component as an ArrayBuffer' }),
   }),
 ])
 export type SpectrumJob = z.infer<typeof spectrumJobSchema>
@@ -24,6 +33,8 @@ export const workerSettingsSchema = z.object({
   method: runMethodSchema,
   dampingRatios: z.array(z.number().min(0).lt(0.5)).min(1),
   periodsS: z.array(z.number().positive()).min(1),
+  /** Pair runs only: which combinations of the two components to compute. */
+  combinations: z.array(pairCombinationSchema).min(1).optional(),
 })
 
 export const workerRequestSchema = z.discriminatedUnion('type', [
@@ -63,6 +74,8 @@ export const methodStatementSchema = z.object({
   accuracyTarget: z.string(),
   kernel: z.enum(['wasm-simd', 'js']),
   engineVersion: z.string(),
+  /** Pair runs: how the two components were combined (shared/spectra/rotd.ts). */
+  combinationRule: z.string().optional(),
 })
 
 /** The engine's SpectrumComputation, as the worker posts it (series as transferred buffers). */
@@ -74,6 +87,26 @@ export const workerComputationSchema = z.object({
   oscillatorSteps: z.number(),
 })
 
+/** One damping ratio and combination of a pair run (shared/spectra/rotd.ts), series as buffers. */
+export const workerPairCurveSchema = z.object({
+  dampingRatio: z.number(),
+  combination: pairCombinationSchema,
+  sdM: float64ArraySchema,
+  svMPerS: float64ArraySchema,
+  saMPerS2: float64ArraySchema,
+  psvMPerS: float64ArraySchema,
+  psaMPerS2: float64ArraySchema,
+})
+
+/** computeRotDSpectrum's result as the worker posts it. */
+export const workerPairComputationSchema = z.object({
+  periodsS: float64ArraySchema,
+  curves: z.array(workerPairCurveSchema).min(1),
+  methodStatement: methodStatementSchema.extend({ combinationRule: z.string() }),
+  warnings: z.array(z.string()),
+  oscillatorSteps: z.number(),
+})
+
 export const workerReplySchema = z.discriminatedUnion('type', [
   z.object({ type: z.literal('progress'), runId: z.string(), progress: z.number().min(0).max(1) }),
   z.object({
@@ -81,6 +114,12 @@ export const workerReplySchema = z.discriminatedUnion('type', [
     runId: z.string(),
     computation: workerComputationSchema,
     /** Wall time of the computation inside the worker. */
+    computeMs: z.number().nonnegative(),
+  }),
+  z.object({
+    type: z.literal('pair-result'),
+    runId: z.string(),
+    computation: workerPairComputationSchema,
     computeMs: z.number().nonnegative(),
   }),
   z.object({ type: z.literal('error'), runId: z.string(), message: z.string() }),

@@ -11,9 +11,14 @@
  * median convention is from memory).
  */
 
-import { MAX_DAMPING_RATIO, planSpectrum } from './computeSpectrum.js'
+import { ENGINE_VERSION, MAX_DAMPING_RATIO, type MethodStatement, planSpectrum } from './computeSpectrum.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
-import { SPECTRUM_METHODS, type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
+import {
+  NEWMARK_PARAMETERS,
+  SPECTRUM_METHODS,
+  type SpectrumMethod,
+  recurrenceCoefficients,
+} from './oscillatorRecurrence.js'
 import { MAX_SUB_STEPS, PEAK_PICKING_BUDGET, peakPickingBound, refinedSubSteps } from './subSteps.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
@@ -290,8 +295,10 @@ export interface PairSpectrumComputation {
   periodsS: Float64Array
   /** Damping-major, then in the order of `combinations`. */
   curves: PairSpectrumCurve[]
-  /** How the two components were combined, for the method statement. */
-  combinationStatement: string
+  /** What produced the numbers, in the single-record engine's shape, with the combination rule. */
+  methodStatement: MethodStatement & { combinationRule: string }
+  /** Non-blocking cautions about this computation. */
+  warnings: string[]
   /** Sub-steps of each oscillator after refinement, damping-major (index = d·periods + p). */
   subSteps: Int32Array
   oscillatorSteps: number
@@ -562,15 +569,62 @@ export function computeRotDSpectrum(
     curves.push(...made.values())
   })
   let oscillatorSteps = 0
-  for (const m of subSteps) oscillatorSteps += 2 * intervals * m
+  let subStepsMin = Infinity
+  let subStepsMax = 0
+  for (const m of subSteps) {
+    oscillatorSteps += 2 * intervals * m
+    subStepsMin = Math.min(subStepsMin, m)
+    subStepsMax = Math.max(subStepsMax, m)
+  }
+  const newmark = method === 'piecewise-exact' ? null : NEWMARK_PARAMETERS[method]
+  const warnings: string[] = []
+  const shortest = periodsS.filter((periodS) => periodS < 2 * record.dtS).length
+  if (shortest > 0) {
+    warnings.push(
+      `${shortest} period${shortest === 1 ? ' is' : 's are'} shorter than 2Δt = ${2 * record.dtS} s, the shortest the records resolve; ordinates there follow the straight lines between samples.`,
+    )
+  }
+  if (plan.capped.length > 0) {
+    warnings.push(
+      `For ${plan.capped.length} oscillator(s) the cap of ${MAX_SUB_STEPS} sub-steps stopped short of the solver-accuracy rule.`,
+    )
+  }
   return {
     periodsS: Float64Array.from(periodsS),
     curves,
-    combinationStatement: PAIR_COMBINATION_STATEMENT,
+    methodStatement: {
+      method,
+      solver: PAIR_SOLVER_TEXT[method],
+      newmarkGamma: newmark?.gamma ?? null,
+      newmarkBeta: newmark?.beta ?? null,
+      recordDtS: record.dtS,
+      initialConditions: 'At rest at the first sample.',
+      subStepRule: PAIR_SUB_STEP_RULE,
+      subStepsMin,
+      subStepsMax,
+      freeVibrationTail:
+        'Included: after the last sample the ground is still; the peaks of the free vibration are found in closed form in every direction.',
+      accuracyTarget:
+        'Sub-steps as for a single record (0.5% target), refined on the maximum-direction peaks; rotated peaks are exact over the steps.',
+      kernel: 'js',
+      engineVersion: ENGINE_VERSION,
+      combinationRule: PAIR_COMBINATION_STATEMENT,
+    },
+    warnings,
     subSteps,
     oscillatorSteps,
   }
 }
+
+const PAIR_SOLVER_TEXT: Record<SpectrumMethod, string> = {
+  'newmark-average': 'Newmark-β, average acceleration (γ = 1/2, β = 1/4), on each component (Newmark 1959)',
+  'newmark-linear': 'Newmark-β, linear acceleration (γ = 1/2, β = 1/6), on each component (Newmark 1959)',
+  'piecewise-exact': 'Piecewise-exact recurrence on each component (Nigam & Jennings 1969)',
+}
+
+const PAIR_SUB_STEP_RULE =
+  'Per oscillator, the single-record first-pass sub-steps (planSpectrum), then up to three refinements while the ' +
+  'peak-picking bound, from the maximum-direction peaks and the pair’s resultant PGA and steepest resultant slope, exceeds 0.25%.'
 
 export const PAIR_COMBINATION_STATEMENT =
   'Two components: each oscillator solved once per component; responses rotated as u(θ,t) = u₁(t)cosθ + u₂(t)sinθ ' +
