@@ -126,6 +126,43 @@ describe('POST /api/comparisons', () => {
     expect(res.body.target.label).toMatch(/^Saved user target/)
   })
 
+  it('compares a pair run by the combination asked for, RotD100 by default', async () => {
+    const owner = {
+      firmId: ctx.seed.firmIds[0] as string,
+      projectId: ctx.seed.projectIds[0] as string,
+      userId: ctx.seed.userIds['engineer@ordinate.test'] as string,
+    }
+    const pairRun = insertSucceededRun(ctx.db, owner, {
+      name: 'Synthetic pair P',
+      periodsS,
+      pair: true,
+      curves: [
+        { dampingRatio: 0.05, combination: 'rotd50', psaG: [0.5, 0.5, 0.5] },
+        { dampingRatio: 0.05, combination: 'rotd100', psaG: [0.8, 0.8, 0.8] },
+      ],
+    })
+    const byDefault = await engineer
+      .post('/api/comparisons')
+      .send({ name: 'Pair default', runIds: [pairRun, runA], dampingRatio: 0.05 })
+    expect(byDefault.status).toBe(201)
+    expect(byDefault.body.curves[0]).toMatchObject({
+      combination: 'rotd100',
+      label: 'Synthetic pair P, RotD100',
+    })
+    expect(byDefault.body.curves[0].psaG[0]).toBeCloseTo(0.8, 12)
+    expect(byDefault.body.curves[1]).not.toHaveProperty('combination')
+    expect(byDefault.body.labels.combination).toMatch(/RotD100/)
+    const rotd50 = await engineer
+      .post('/api/comparisons')
+      .send({ name: 'Pair 50', runIds: [pairRun], dampingRatio: 0.05, combination: 'rotd50' })
+    expect(rotd50.body.curves[0].psaG[0]).toBeCloseTo(0.5, 12)
+    const missing = await engineer
+      .post('/api/comparisons')
+      .send({ name: 'Pair gm', runIds: [pairRun], dampingRatio: 0.05, combination: 'geomean' })
+    expect(missing.status).toBe(400)
+    expect(missing.body.error.code).toBe('combination_not_in_run')
+  })
+
   it('responds 400 when a run has no curve at the damping ratio', async () => {
     const res = await engineer
       .post('/api/comparisons')

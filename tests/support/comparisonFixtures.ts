@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm'
 import type { Db } from '../../server/db/client.js'
-import { runs, spectra } from '../../server/db/schema.js'
+import { recordPairs, runs, spectra } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { insertRecord } from './runFixtures.js'
@@ -13,19 +13,33 @@ export interface FixtureCurve {
 }
 
 /**
- * Inserts a record and a succeeded run of it with a stored spectrum of the given PSA curves,
- * so comparison and review tests need no worker. The spectra are invented test numbers.
+ * Inserts a record (or a pair of records) and a succeeded run of it with a stored spectrum of
+ * the given PSA curves, so comparison and review tests need no worker. The spectra are invented
+ * test numbers.
  */
 export function insertSucceededRun(
   db: Db,
   owner: { firmId: string; projectId: string; userId: string },
-  options: { name: string; periodsS: number[]; curves: FixtureCurve[] },
+  options: { name: string; periodsS: number[]; curves: FixtureCurve[]; pair?: boolean },
 ): string {
-  const record = insertRecord(
-    db,
-    { firmId: owner.firmId, projectId: owner.projectId, uploadedBy: owner.userId },
-    { name: options.name, points: 200 },
-  )
+  const uploader = { firmId: owner.firmId, projectId: owner.projectId, uploadedBy: owner.userId }
+  const record = insertRecord(db, uploader, { name: options.name, points: 200 })
+  let pairId: string | null = null
+  if (options.pair) {
+    const second = insertRecord(db, uploader, { name: `${options.name} (second component)`, points: 200 })
+    pairId = newId()
+    db.insert(recordPairs)
+      .values({
+        id: pairId,
+        firmId: owner.firmId,
+        projectId: owner.projectId,
+        name: options.name,
+        record1Id: record.id,
+        record2Id: second.id,
+        createdBy: owner.userId,
+      })
+      .run()
+  }
   const runId = newId()
   const now = Date.now()
   db.insert(runs)
@@ -33,7 +47,8 @@ export function insertSucceededRun(
       id: runId,
       firmId: owner.firmId,
       projectId: owner.projectId,
-      recordId: record.id,
+      recordId: pairId ? null : record.id,
+      pairId,
       status: 'succeeded',
       progress: 1,
       settings: {
