@@ -3,6 +3,7 @@ import { idParamsSchema } from '../../shared/schemas/common.js'
 import {
   comparisonListQuerySchema,
   createComparisonBodySchema,
+  previewComparisonBodySchema,
   updateComparisonBodySchema,
 } from '../../shared/schemas/comparisons.js'
 import type { AppDeps } from '../deps.js'
@@ -11,6 +12,7 @@ import {
   createComparison,
   getComparisonView,
   listComparisons,
+  previewComparison,
   updateComparison,
 } from '../services/comparisons.js'
 
@@ -20,6 +22,11 @@ export function comparisonsRouter(deps: AppDeps) {
   router.get('/comparisons', requireMember, (req, res) => {
     const { projectId } = comparisonListQuerySchema.parse(req.query)
     res.json({ items: listComparisons(deps.db, memberOf(req).firmId, projectId) })
+  })
+
+  // A preview stores nothing, so every member may draw one.
+  router.post('/comparisons/preview', requireMember, (req, res) => {
+    res.json(previewComparison(deps.db, memberOf(req).firmId, previewComparisonBodySchema.parse(req.body)))
   })
 
   router.get('/comparisons/:id', requireMember, (req, res) => {

@@ -2,12 +2,14 @@ import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import { z } from 'zod'
 import type {
   Combination,
+  ComparisonDrawing,
   ComparisonSummary,
   ComparisonView,
   MeanKind,
   StoredTarget,
   SuiteStatisticsView,
   createComparisonBodySchema,
+  previewComparisonBodySchema,
   updateComparisonBodySchema,
 } from '../../shared/schemas/comparisons.js'
 import { storedScalingSchema, storedTargetSchema } from '../../shared/schemas/comparisons.js'
@@ -33,6 +35,7 @@ import { assertEditable, reviewStateOf, reviewStates } from './reviews.js'
 import { nullIfNaN, resolveComparisonTarget } from './targets.js'
 
 type CreateInput = z.output<typeof createComparisonBodySchema>
+type PreviewInput = z.output<typeof previewComparisonBodySchema>
 type UpdateInput = z.output<typeof updateComparisonBodySchema>
 
 export const COMPARISON_CAUTION =
@@ -282,7 +285,10 @@ function computeView(db: Pick<Db, 'select'>, firmId: string, inputs: ComparisonI
   })
 }
 
-function buildView(summary: ComparisonSummary, computed: ReturnType<typeof computeView>): ComparisonView {
+function buildDrawing(
+  summary: ComparisonInputs,
+  computed: ReturnType<typeof computeView>,
+): ComparisonDrawing {
   const { curves, grid, onGrid, unscaled, target, scaling } = computed
   const labels = disambiguate(
     curves.map((c) => {
@@ -308,7 +314,6 @@ function buildView(summary: ComparisonSummary, computed: ReturnType<typeof compu
   const first = grid[0] as number
   const last = grid[grid.length - 1] as number
   return {
-    comparison: summary,
     periodsS: Array.from(grid),
     curves: curves.map((c, k) => ({
       runId: c.run.id,
@@ -355,7 +360,21 @@ function buildView(summary: ComparisonSummary, computed: ReturnType<typeof compu
 /** Everything the comparison chart and scale-factor table need; the exports use it too. */
 export function getComparisonView(db: Pick<Db, 'select'>, firmId: string, id: string): ComparisonView {
   const summary = getComparison(db, firmId, id)
-  return buildView(summary, computeView(db, firmId, summary))
+  return { comparison: summary, ...buildDrawing(summary, computeView(db, firmId, summary)) }
+}
+
+/** The chart and table data of a comparison that is not saved, for the workspace's live preview. */
+export function previewComparison(db: Db, firmId: string, body: PreviewInput): ComparisonDrawing {
+  const inputs: ComparisonInputs = {
+    name: body.name ?? 'Comparison',
+    runIds: body.runIds,
+    dampingRatio: body.dampingRatio,
+    meanKind: body.meanKind,
+    combination: body.combination ?? null,
+    target: body.target ? resolveComparisonTarget(db, firmId, body.target) : null,
+    scaling: body.scaling ?? null,
+  }
+  return buildDrawing(inputs, computeView(db, firmId, inputs))
 }
 
 function revisionFor(tx: DbOrTx, firmId: string, revisionOf: string | undefined): number {

@@ -3,7 +3,7 @@
  * the exports (SVG, PNG, the PDF sheet) draw the same chart from the same comparison view
  * (GET /api/comparisons/:id).
  */
-import type { ComparisonView } from '../schemas/comparisons.js'
+import type { ComparisonDrawing } from '../schemas/comparisons.js'
 import type { SpectrumChartInput } from '../schemas/sheets.js'
 import type { AxisScale } from './axes.js'
 import { STANDARD_GRAVITY_MPERS2 } from './units.js'
@@ -27,7 +27,7 @@ const toSI = (valuesG: Array<number | null>, factor = 1) =>
   valuesG.map((v) => (v === null ? Number.NaN : v * factor * STANDARD_GRAVITY_MPERS2))
 
 export function comparisonChartInput(
-  view: ComparisonView,
+  view: ComparisonDrawing,
   chartView: ComparisonChartView = DEFAULT_COMPARISON_CHART_VIEW,
 ): SpectrumChartInput {
   const periodsS = view.periodsS

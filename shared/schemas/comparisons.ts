@@ -69,6 +69,12 @@ export const createComparisonBodySchema = z.strictObject({
 })
 export type CreateComparisonBody = z.input<typeof createComparisonBodySchema>
 
+/** POST /api/comparisons/preview: the same inputs as a new comparison, drawn without saving it. */
+export const previewComparisonBodySchema = createComparisonBodySchema
+  .omit({ revisionOf: true, projectId: true })
+  .extend({ name: nameSchema.optional() })
+export type PreviewComparisonBody = z.input<typeof previewComparisonBodySchema>
+
 /** PATCH /api/comparisons/:id: any field; null removes the target, the scaling or the combination. */
 export const updateComparisonBodySchema = z
   .strictObject({
@@ -191,3 +197,7 @@ export const comparisonViewSchema = z.object({
   caution: z.string(),
 })
 export type ComparisonView = z.infer<typeof comparisonViewSchema>
+
+/** The answer of POST /api/comparisons/preview: a view without a saved comparison. */
+export const comparisonDrawingSchema = comparisonViewSchema.omit({ comparison: true })
+export type ComparisonDrawing = z.infer<typeof comparisonDrawingSchema>

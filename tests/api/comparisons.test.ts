@@ -219,6 +219,34 @@ describe('POST /api/comparisons', () => {
   })
 })
 
+describe('POST /api/comparisons/preview', () => {
+  it('draws a comparison without saving it', async () => {
+    const before = (await engineer.get('/api/comparisons')).body.items.length
+    const res = await admin
+      .post('/api/comparisons/preview')
+      .send({
+        runIds: [runA, runB],
+        dampingRatio: 0.05,
+        target,
+        scaling: { fromS: 0.5, toS: 2, rule: 'suite-90' },
+      })
+    expect(res.status).toBe(200)
+    expect(res.body).not.toHaveProperty('comparison')
+    expect(res.body.scaling.check.passed).toBe(true)
+    expect(res.body.curves[0].scaleFactor).toBeCloseTo(3.6, 12)
+    expect((await engineer.get('/api/comparisons')).body.items.length).toBe(before)
+  })
+
+  it('answers 400 for bad input and 404 for another firm’s runs', async () => {
+    expect(
+      (await engineer.post('/api/comparisons/preview').send({ runIds: [], dampingRatio: 0.05 })).status,
+    ).toBe(400)
+    expect(
+      (await outsider.post('/api/comparisons/preview').send({ runIds: [runA], dampingRatio: 0.05 })).status,
+    ).toBe(404)
+  })
+})
+
 describe('GET /api/comparisons', () => {
   it('lists the firm’s comparisons with their review state', async () => {
     const res = await admin.get('/api/comparisons')
