@@ -26,7 +26,7 @@ export interface ComparisonSheetFacts {
   view: ComparisonView
   /** The records of each run of the comparison, by run id (two for a pair run). */
   recordsByRun: Map<string, SheetRecordFacts[]>
-  /** The warnings the engine attached to each run's spectrum, by run id. */
+  /** The warnings stored with each run's spectrum (the record's and the computation's), by run id. */
   warningsByRun: Map<string, string[]>
   review: ReviewFacts | null
 }
@@ -182,10 +182,9 @@ export function buildComparisonSheetFromFacts(facts: ComparisonSheetFacts): Shee
     chart: comparisonChartInput(view),
     tables: [scaleFactorTable(view), suiteOrdinateTable(view)],
     comparison: { target: targetFields(view), scaling: scalingFields(view) },
-    warnings: view.curves.flatMap((curve) => [
-      ...(facts.recordsByRun.get(curve.runId) ?? []).flatMap((r) => r.warnings.map((w) => `${r.name}: ${w}`)),
-      ...(facts.warningsByRun.get(curve.runId) ?? []).map((w) => `${curve.label}: ${w}`),
-    ]),
+    warnings: view.curves.flatMap((curve) =>
+      (facts.warningsByRun.get(curve.runId) ?? []).map((w) => `${curve.label}: ${w}`),
+    ),
     cautions: [...SHEET_CAUTIONS],
   }
 }

@@ -4,6 +4,7 @@
  * sheet reproducible.
  */
 import {
+  COMBINATION_LABELS,
   type RunSpectrumLike,
   type SpectrumView,
   DEFAULT_SPECTRUM_VIEW,
@@ -34,7 +35,6 @@ export interface SheetRecordFacts extends RecordParameters {
   format: string
   sourceUnits: string
   synthetic: boolean
-  warnings: string[]
 }
 
 /** The engine's statement of how it solved the oscillators. */
@@ -62,7 +62,7 @@ export interface RunSheetFacts {
   spectrum: RunSpectrumLike
   /** One statement per computed record (two for a pair). */
   methods: MethodFacts[]
-  /** Warnings the engine attached to the spectrum (large Δt/T and the like). */
+  /** The warnings stored with the spectrum: the record's (named, for a pair) and the computation's. */
   spectrumWarnings: string[]
   review: ReviewFacts | null
   view?: SpectrumView
@@ -149,7 +149,9 @@ export function recordSection(record: SheetRecordFacts, compact = false): SheetR
 }
 
 function curveLabel(curve: RunSpectrumLike['curves'][number]): string {
-  const combination = curve.combination ? ` ${curve.combination}` : ''
+  const combination = curve.combination
+    ? `, ${COMBINATION_LABELS[curve.combination] ?? curve.combination}`
+    : ''
   return `${dampingLabel(curve.dampingRatio)}${combination}`
 }
 
@@ -256,8 +258,7 @@ export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
     chart: runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
     tables: [runOrdinateTable(facts.spectrum, single ? single.pgaMPerS2 : null)],
     comparison: null,
-    // The engine repeats the record's warnings with its own; each is printed once.
-    warnings: [...new Set([...facts.records.flatMap((r) => r.warnings), ...facts.spectrumWarnings])],
+    warnings: [...facts.spectrumWarnings],
     cautions: [...SHEET_CAUTIONS],
   }
 }

@@ -60,7 +60,6 @@ const recordFactColumns = {
   d595S: records.d595S,
   cavMPerS: records.cavMPerS,
   synthetic: records.synthetic,
-  warnings: records.warnings,
 }
 
 function recordFacts(db: Db, firmId: string, recordId: string): SheetRecordFacts {

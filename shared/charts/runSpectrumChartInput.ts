@@ -58,7 +58,8 @@ const QUANTITY_KEYS = {
   SD: 'sdM',
 } as const satisfies Record<SpectrumQuantity, keyof RunSpectrumCurve>
 
-const COMBINATION_LABELS: Record<string, string> = {
+/** How two components were combined, as labels say it. */
+export const COMBINATION_LABELS: Record<string, string> = {
   geomean: 'geometric mean',
   rotd50: 'RotD50',
   rotd100: 'RotD100',

@@ -11,9 +11,10 @@ import { runSpectrumChartInput } from '../../shared/charts/runSpectrumChartInput
 import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
 import { STANDARD_GRAVITY_MPERS2, formatSignificant } from '../../shared/charts/units.js'
 import { sheetSchema } from '../../shared/schemas/sheets.js'
-import { auditLog, reviews, runs } from '../../server/db/schema.js'
+import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
+import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
-import { insertRecord, setCredits } from '../support/runFixtures.js'
+import { insertRecord, setCredits, syntheticMotion } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 /** A record name a browser would render as markup if it were ever interpreted. */
@@ -413,5 +414,59 @@ describe('comparison exports', () => {
   it('answers 404 to another firm', async () => {
     expect((await outsider.get(`/api/comparisons/${comparisonId}/export.pdf`)).status).toBe(404)
     expect((await outsider.get(`/api/comparisons/${comparisonId}/sheet`)).status).toBe(404)
+  })
+})
+
+describe('a two-component run', () => {
+  let pairRunId: string
+  let hashes: string[]
+
+  beforeAll(async () => {
+    const firmId = ctx.seed.firmIds[0] as string
+    const owner = {
+      firmId,
+      projectId: ctx.seed.projectIds[0] as string,
+      uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
+    }
+    const motion = syntheticMotion(800, 0.01)
+    const h1 = insertRecord(ctx.db, owner, { name: 'Synthetic H1', samples: motion, dtS: 0.01 })
+    const h2 = insertRecord(ctx.db, owner, {
+      name: 'Synthetic H2',
+      samples: motion.map((v, i) => v * Math.cos(i / 50)),
+      dtS: 0.01,
+    })
+    hashes = [h1.sha256, h2.sha256]
+    const pairId = newId()
+    ctx.db
+      .insert(recordPairs)
+      .values({
+        id: pairId,
+        ...owner,
+        name: 'Synthetic pair',
+        record1Id: h1.id,
+        record2Id: h2.id,
+        createdBy: owner.uploadedBy,
+      })
+      .run()
+    const res = await engineer
+      .post('/api/runs')
+      .send({
+        pairId,
+        dampingRatios: [0.05],
+        periodsS: [0.1, 0.5, 1, 2],
+        combinations: ['rotd50', 'rotd100'],
+      })
+    expect(res.status).toBe(202)
+    await expect(finished(res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
+    pairRunId = res.body.id
+  })
+
+  it('lists both components and one column per combination', async () => {
+    const text = pdfText((await binary(engineer.get(`/api/runs/${pairRunId}/export.pdf`))).body as Buffer)
+    expect(text).toContain('Elastic response spectrum: Synthetic pair')
+    for (const hash of hashes) expect(text).toContain(hash)
+    expect(text).toMatch(/Period T \(s\)\s+ζ = 5%, RotD50\s+ζ = 5%, RotD100/)
+    expect(text).toContain('4 periods as listed, from 0.1 s to 2 s')
+    expect(text).toContain('The PGA of a combination of two components is not tabulated')
   })
 })

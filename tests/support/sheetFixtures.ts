@@ -58,13 +58,16 @@ export function demoRunFacts(): RunSheetFacts {
         d595S: params.d595S,
         cavMPerS: params.cavMPerS,
         synthetic: true,
-        warnings: [...parsed.warnings, ...recordWarnings(parsed.accelMPerS2, parsed.dtS)],
       },
     ],
     subjectName: demo.name,
     spectrum: { periodsS: Array.from(computation.periodsS), curves: computation.curves },
     methods: [computation.methodStatement],
-    spectrumWarnings: computation.warnings,
+    spectrumWarnings: [
+      ...parsed.warnings,
+      ...recordWarnings(parsed.accelMPerS2, parsed.dtS),
+      ...computation.warnings,
+    ],
     review: null,
   }
 }
