@@ -541,7 +541,12 @@ describe('GET /api/runs/:id/events', () => {
   it('streams progress and then the final status, and closes', async () => {
     const res = await engineer
       .post('/api/runs')
-      .send({ recordId: record.id, dampingRatios: [0.02, 0.05, 0.1, 0.2] })
+      // Enough work (4,000 oscillators) for the sweep to report progress several times.
+      .send({
+        recordId: record.id,
+        dampingRatios: [0.02, 0.05, 0.1, 0.2],
+        periodGrid: { minS: 0.01, maxS: 20, count: 1000 },
+      })
     const stream = await engineer.get(`/api/runs/${res.body.id}/events`).buffer(true)
     expect(stream.status).toBe(200)
     expect(stream.headers['content-type']).toMatch(/^text\/event-stream/)
