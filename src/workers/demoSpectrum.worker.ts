@@ -2,6 +2,7 @@
  * Browser worker for the Overview: computes the demo record's spectrum off the
  * page's thread. The message is checked at this edge; the work is shared code.
  */
+import '../zodJitless'
 import { z } from 'zod'
 import { MAX_DAMPING_RATIO } from '../../shared/spectra/computeSpectrum'
 import { computeDemoSpectrum, transferablesOf } from './computeDemoSpectrum'
