@@ -226,6 +226,10 @@ describe('POST /api/records multipart fields', () => {
 })
 
 describe('the route handlers', () => {
+  // Choosing a schema by whether a key is present (as POST /runs does for pair runs) reads no value.
+  const keyGuard =
+    /typeof req\.(body|query|params) === 'object'|req\.(body|query|params) !== null|'\w+' in req\.(body|query|params)/g
+
   it('read body, query and params only through a zod schema', () => {
     const routesDir = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', '..', 'server', 'routes')
     const unparsed: string[] = []
@@ -233,11 +237,12 @@ describe('the route handlers', () => {
     for (const file of readdirSync(routesDir).filter((f) => f.endsWith('.ts'))) {
       readFileSync(path.join(routesDir, file), 'utf8')
         .split('\n')
-        .forEach((line, i) => {
+        .forEach((fullLine, i) => {
+          const line = fullLine.replace(keyGuard, '(guard)')
           for (const match of line.matchAll(/req\.(body|query|params)\b/g)) {
             reads++
             const parsed = new RegExp(`\\w+Schema\\.parse\\(req\\.${match[1]}( \\?\\? \\{\\})?\\)`).test(line)
-            if (!parsed) unparsed.push(`${file}:${i + 1}: ${line.trim()}`)
+            if (!parsed) unparsed.push(`${file}:${i + 1}: ${fullLine.trim()}`)
           }
         })
     }

@@ -21,6 +21,14 @@ afterAll(async () => {
   if (dataDir) await rm(dataDir, { recursive: true, force: true })
 })
 
+/** The parts of API answers this test reads. */
+interface ApiBody {
+  id: string
+  status: string
+  progress: number
+  items: { id: string; status: string }[]
+}
+
 /** A signed-in HTTP client for one server: keeps the session cookie and sends the CSRF header. */
 async function signIn(baseUrl: string, email: string) {
   const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
@@ -38,7 +46,7 @@ async function signIn(baseUrl: string, email: string) {
       ;(init.headers as Record<string, string>)['content-type'] = 'application/json'
     }
     const answer = await fetch(`${baseUrl}/api${route}`, init)
-    return { status: answer.status, body: (await answer.json()) as Record<string, any> }
+    return { status: answer.status, body: (await answer.json()) as ApiBody }
   }
 }
 
@@ -91,8 +99,8 @@ describe('the server killed with runs queued and running, then restarted', () =>
       { timeout: 30_000, interval: 20 },
     )
     const before = await api('GET', '/runs')
-    const statuses = before.body.items.map((r: { status: string }) => r.status)
-    expect(statuses.filter((s: string) => s === 'queued').length).toBeGreaterThan(0)
+    const statuses = before.body.items.map((r) => r.status)
+    expect(statuses.filter((s) => s === 'queued').length).toBeGreaterThan(0)
 
     process.kill(-first.pid, 'SIGKILL')
     await vi.waitFor(() => expect(processGone(first.pid)).toBe(true), { timeout: 10_000 })
@@ -104,8 +112,8 @@ describe('the server killed with runs queued and running, then restarted', () =>
     await vi.waitFor(
       async () => {
         const list = await again('GET', '/runs')
-        const mine = list.body.items.filter((r: { id: string }) => ids.includes(r.id))
-        expect(mine.map((r: { status: string }) => r.status)).toEqual(new Array(RUNS).fill('succeeded'))
+        const mine = list.body.items.filter((r) => ids.includes(r.id))
+        expect(mine.map((r) => r.status)).toEqual(new Array(RUNS).fill('succeeded'))
       },
       { timeout: 120_000, interval: 200 },
     )

@@ -60,7 +60,6 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
     ctx.signIn('engineer@ordinate.test'),
     ctx.signIn('admin@ordinate.test'),
   ])
-  const firmId = ctx.seed.firmIds[0]!
   const projectId = ctx.seed.projectIds[0]!
   const bytes = readFileSync(RECORD_FIXTURE)
 

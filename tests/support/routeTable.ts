@@ -221,6 +221,14 @@ export const routeTable: RouteSpec[] = [
   { method: 'GET', path: '/comparisons/:id', access: 'member', id: 'comparison' },
   {
     method: 'POST',
+    path: '/comparisons/preview',
+    access: 'member',
+    body: 'json',
+    validBody: (w) => ({ runIds: [w.runId], dampingRatio: 0.05 }),
+    foreignIds: (w) => ({ body: { runIds: [w.runId], dampingRatio: 0.05 } }),
+  },
+  {
+    method: 'POST',
     path: '/comparisons',
     access: WRITERS,
     body: 'json',
