@@ -24,6 +24,12 @@ export const navigation: NavEntry[] = [
   { to: '/', label: 'Overview', iconPath: 'M3 17V3M3 17h14M5 14c3-1 4-9 6-9s3 6 6 7' },
   { to: '/records', label: 'Records', iconPath: 'M2 10h3l2-5 2 10 2-8 2 6 1.5-3H18' },
   { to: '/runs', label: 'Runs', iconPath: 'M3 16c2-9 4-12 6-12s3 5 4 8 2 4 4 4M3 17h14' },
+  {
+    to: '/comparisons',
+    label: 'Comparisons',
+    iconPath: 'M3 17V3M3 17h14M5 13c2-5 4-8 6-8s3 4 6 5M5 15c2-3 4-5 6-5s3 2 6 2',
+  },
+  { to: '/reviews', label: 'Checking', iconPath: 'M4 3h12v14H4zM7 10l2 2 4-5' },
   { to: '/credits', label: 'Credits', iconPath: 'M3 6h14v9H3zM3 9h14M6 12.5h3' },
   { to: '/members', label: 'Members', roles: ['admin'], iconPath: 'M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6M2 17c0-3 2.2-5 5-5s5 2 5 5M13 4.5a2.5 2.5 0 0 1 0 5M15 12c1.8.6 3 2.4 3 5' },
 ]

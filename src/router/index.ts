@@ -91,6 +91,31 @@ const router = createRouter({
       meta: { title: 'Calc sheet' },
     },
     {
+      path: '/comparisons',
+      name: 'comparisons',
+      component: () => import('@/views/ComparisonsView.vue'),
+      meta: { title: 'Comparisons' },
+    },
+    {
+      path: '/comparisons/new',
+      name: 'new-comparison',
+      component: () => import('@/views/ComparisonView.vue'),
+      meta: { roles: ['engineer', 'checker'], title: 'New comparison' },
+    },
+    {
+      path: '/comparisons/:id',
+      name: 'comparison',
+      component: () => import('@/views/ComparisonView.vue'),
+      props: true,
+      meta: { title: 'Comparison' },
+    },
+    {
+      path: '/reviews',
+      name: 'reviews',
+      component: () => import('@/views/ReviewsView.vue'),
+      meta: { title: 'Checking' },
+    },
+    {
       path: '/comparisons/:id/sheet',
       name: 'comparison-sheet',
       component: () => import('@/views/SheetView.vue'),
