@@ -239,6 +239,7 @@ function loadExport(
   query: PlotExportQuery,
 ): { sheet: Sheet; csv: () => string; chart: () => SpectrumChartInput } {
   if (subject === 'run') {
+    if (query.scaled !== undefined) throw badRequest('scaled applies to comparisons only.', 'invalid_input')
     const { sheet, spectrum, subjectName } = loadRunSheet(db, firmId, id)
     return {
       sheet,
@@ -265,6 +266,7 @@ function loadExport(
         ...DEFAULT_COMPARISON_CHART_VIEW,
         ...(query.xScale ? { xScale: query.xScale } : {}),
         ...(query.yScale ? { yScale: query.yScale } : {}),
+        ...(query.scaled !== undefined ? { scaled: query.scaled } : {}),
       }),
   }
 }
@@ -312,7 +314,15 @@ export async function exportSheet(
       sha256: createHash('sha256').update(file.body).digest('hex'),
       ...(format === 'png' ? { widthMm: query.widthMm } : {}),
       ...(format === 'png' || format === 'svg'
-        ? { view: { quantity: query.quantity, unit: query.unit, xScale: query.xScale, yScale: query.yScale } }
+        ? {
+            view: {
+              quantity: query.quantity,
+              unit: query.unit,
+              xScale: query.xScale,
+              yScale: query.yScale,
+              scaled: query.scaled,
+            },
+          }
         : {}),
     },
   })

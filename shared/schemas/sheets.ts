@@ -115,7 +115,8 @@ export const EXPORT_WIDTH_MM = { min: 50, max: 400, default: 170 } as const
 
 /**
  * The query of the exports. The plot exports (PNG, SVG) draw the view the engineer has on
- * screen when it is given (quantity, unit, axis scales); the PDF sheet always shows PSA in g.
+ * screen when it is given (quantity, unit, axis scales, scaled records); the PDF sheet
+ * always shows its own chart.
  */
 export const plotExportQuerySchema = z
   .strictObject({
@@ -128,6 +129,11 @@ export const plotExportQuerySchema = z
     unit: unitSchema.optional(),
     xScale: scaleSchema.optional(),
     yScale: scaleSchema.optional(),
+    /** Comparisons: draw the records as scaled (the default) or as recorded. */
+    scaled: z
+      .enum(['true', 'false'], { error: 'scaled is true or false.' })
+      .transform((v) => v === 'true')
+      .optional(),
   })
   .refine((q) => !q.unit || displayUnits[q.unit].kind === spectrumQuantities[q.quantity ?? 'PSA'].kind, {
     message: 'unit does not measure the quantity (for example SD in g).',

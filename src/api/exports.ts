@@ -17,6 +17,8 @@ export interface PlotView {
   unit?: string
   xScale?: 'log' | 'linear'
   yScale?: 'log' | 'linear'
+  /** Comparisons: records drawn scaled (true) or as recorded. */
+  scaled?: boolean
 }
 
 /**
@@ -35,7 +37,7 @@ export function exportUrl(
   if (format === 'png' && options.widthMm !== undefined) params.set('widthMm', String(options.widthMm))
   if (format === 'png' || format === 'svg') {
     for (const [key, value] of Object.entries(options.view ?? {})) {
-      if (value !== undefined) params.set(key, value)
+      if (value !== undefined) params.set(key, String(value))
     }
   }
   const query = params.toString()

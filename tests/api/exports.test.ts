@@ -380,6 +380,19 @@ describe('comparison exports', () => {
     expect(served).toBe(spectrumChartSvg(input.data, input.options))
   })
 
+  it('draws the workspace’s view when asked: records as recorded, linear ordinates', async () => {
+    const view = (await engineer.get(`/api/comparisons/${comparisonId}`)).body
+    const input = comparisonChartInput(view, { xScale: 'log', yScale: 'linear', scaled: false })
+    const res = await engineer
+      .get(`/api/comparisons/${comparisonId}/export.svg`)
+      .query({ yScale: 'linear', scaled: 'false' })
+      .buffer(true)
+    expect(res.status).toBe(200)
+    const served = Buffer.isBuffer(res.body) ? res.body.toString('utf8') : res.text
+    expect(served).toBe(spectrumChartSvg(input.data, input.options))
+    expect(served).not.toContain(' × ')
+  })
+
   it('plots a comparison only as PSA in g', async () => {
     const res = await engineer.get(`/api/comparisons/${comparisonId}/export.png?quantity=SD&unit=mm`)
     expect(res.status).toBe(400)
@@ -448,14 +461,12 @@ describe('a two-component run', () => {
         createdBy: owner.uploadedBy,
       })
       .run()
-    const res = await engineer
-      .post('/api/runs')
-      .send({
-        pairId,
-        dampingRatios: [0.05],
-        periodsS: [0.1, 0.5, 1, 2],
-        combinations: ['rotd50', 'rotd100'],
-      })
+    const res = await engineer.post('/api/runs').send({
+      pairId,
+      dampingRatios: [0.05],
+      periodsS: [0.1, 0.5, 1, 2],
+      combinations: ['rotd50', 'rotd100'],
+    })
     expect(res.status).toBe(202)
     await expect(finished(res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
     pairRunId = res.body.id
