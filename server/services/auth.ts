@@ -14,8 +14,16 @@ export function hashPassword(password: string, cost = BCRYPT_COST): Promise<stri
   return bcrypt.hash(password, cost)
 }
 
-// A real hash to compare against when the e-mail is unknown, so both paths take the same time.
-const DUMMY_HASH = bcrypt.hashSync('not-a-real-password-ordinate', 4)
+let dummyHash: Promise<string> | undefined
+/**
+ * A real hash to compare against when the e-mail is unknown. It has the members' cost, so both
+ * paths take the same time and the answer's timing does not tell which addresses have accounts.
+ * Made on first use, to keep start-up fast.
+ */
+export function dummyPasswordHash(): Promise<string> {
+  dummyHash ??= hashPassword('not-a-real-password-ordinate')
+  return dummyHash
+}
 
 export function toSessionInfo(member: Member): SessionInfo {
   return {
@@ -28,7 +36,7 @@ export function toSessionInfo(member: Member): SessionInfo {
 /** Checks credentials; returns the member or throws 401 with a message that does not reveal which part was wrong. */
 export async function verifyCredentials(db: Db, email: string, password: string): Promise<Member> {
   const user = db.select().from(users).where(eq(users.email, email)).get()
-  const ok = await bcrypt.compare(password, user?.passwordHash ?? DUMMY_HASH)
+  const ok = await bcrypt.compare(password, user?.passwordHash ?? (await dummyPasswordHash()))
   const member = user && ok ? findMember(db, user.id) : undefined
   if (!member) {
     recordAudit(db, { userId: user?.id, action: 'auth.sign_in_failed', detail: { email } })

@@ -1,8 +1,12 @@
+import bcrypt from 'bcryptjs'
+import { eq } from 'drizzle-orm'
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Role } from '../../shared/schemas/accounts.js'
 import type { SmtpSink } from '../../server/mail/smtpSink.js'
+import { users } from '../../server/db/schema.js'
 import { RunQueue } from '../../server/runs/runQueue.js'
+import { BCRYPT_COST, dummyPasswordHash } from '../../server/services/auth.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
 import { addMember, buildDemoWorld, type DemoWorld } from '../support/demoWorld.js'
 import {
@@ -220,5 +224,32 @@ describe('unknown /api routes', () => {
 
   it('answers a JSON 404, not the app page, for a wrong method on a known path', async () => {
     expectErrorShape(await demo.engineer!.put('/api/records'), 404, 'not_found')
+  })
+})
+
+describe('sign-in with an unknown e-mail', () => {
+  // Timing is not asserted (speed belongs in benchmarks); what makes both paths equally slow is
+  // that the unknown address is checked against a hash of the same bcrypt cost as a member's.
+  it('is checked against a hash of the same bcrypt cost as the members’ passwords', async () => {
+    const member = ctx.db
+      .select({ hash: users.passwordHash })
+      .from(users)
+      .where(eq(users.email, 'engineer@ordinate.test'))
+      .get()!
+    expect(bcrypt.getRounds(member.hash)).toBe(BCRYPT_COST)
+    expect(bcrypt.getRounds(await dummyPasswordHash())).toBe(BCRYPT_COST)
+  })
+
+  it('answers 401 with the same message as a wrong password', async () => {
+    const unknown = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: 'nobody-here@ordinate.test', password: 'some-password' })
+    const wrong = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'some-password' })
+    expectErrorShape(unknown, 401, 'unauthorized')
+    expect(unknown.body).toEqual(wrong.body)
   })
 })
