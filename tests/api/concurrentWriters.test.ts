@@ -17,7 +17,7 @@ import { createTestContext, type TestContext } from '../support/testApp.js'
  * to 0 shows that the writers really do collide.
  */
 const WRITERS = 4
-const WRITES_EACH = 300
+const WRITES_EACH = 150
 
 let ctx: TestContext
 let engineer: request.Agent
@@ -45,6 +45,7 @@ beforeAll(async () => {
 afterAll(() => ctx.close())
 
 function startWriters(busyTimeoutMs?: number) {
+  const startLine = new SharedArrayBuffer(4)
   return Array.from({ length: WRITERS }, (_, writer) => {
     const task: WriterTask = {
       databasePath: ctx.deps.config.databasePath,
@@ -53,6 +54,8 @@ function startWriters(busyTimeoutMs?: number) {
       member: checkerMember,
       reviewId,
       busyTimeoutMs,
+      startLine,
+      writers: WRITERS,
     }
     const worker = new Worker(new URL('../support/concurrentWriter.worker.mjs', import.meta.url), {
       workerData: task,

@@ -13,6 +13,9 @@ export interface WriterTask {
   reviewId: string
   /** Overrides the connection's busy timeout (the control case sets 0). */
   busyTimeoutMs?: number
+  /** A start line shared by the writers: each counts itself in and waits for all `writers`. */
+  startLine: SharedArrayBuffer
+  writers: number
 }
 
 /**
@@ -23,6 +26,13 @@ export interface WriterTask {
 const task = workerData as WriterTask
 const db = openDb(task.databasePath)
 if (task.busyTimeoutMs !== undefined) db.$client.pragma(`busy_timeout = ${task.busyTimeoutMs}`)
+// Start together, so the writers overlap however long each thread took to load.
+const arrived = new Int32Array(task.startLine)
+Atomics.add(arrived, 0, 1)
+Atomics.notify(arrived, 0)
+for (let seen = Atomics.load(arrived, 0); seen < task.writers; seen = Atomics.load(arrived, 0)) {
+  Atomics.wait(arrived, 0, seen, 100)
+}
 const errors: string[] = []
 let done = 0
 for (let i = 0; i < task.writes; i++) {
