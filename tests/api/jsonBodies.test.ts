@@ -3,51 +3,29 @@ import path from 'node:path'
 import { fileURLToPath } from 'node:url'
 import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import type { Role } from '../../shared/schemas/accounts.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
-import { buildDemoWorld, type DemoWorld } from '../support/demoWorld.js'
+import { createWorldContext, type DemoWorld, type WorldContext } from '../support/demoWorld.js'
 import { type RouteSpec, fillPath, routeKey, routeTable } from '../support/routeTable.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import type { TestContext } from '../support/testApp.js'
 
 /**
  * Hostile and careless bodies against every JSON route of the route table, and hostile query
  * strings and multipart fields: each refused with a 4xx in the one error shape, nothing written,
  * and Object.prototype left alone.
  */
+let w: WorldContext
 let ctx: TestContext
-let queue: RunQueue
 let world: DemoWorld
-const agents: Partial<Record<Role, request.Agent>> = {}
+let agents: WorldContext['members']
 
 beforeAll(async () => {
-  ctx = await createTestContext(
-    (deps) => {
-      queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
-      deps.runQueue = queue
-    },
-    {
-      SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000',
-      SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000',
-      PASSWORD_RESET_MAX_PER_WINDOW: '10000',
-    },
-  )
-  queue.start()
-  world = await buildDemoWorld(ctx)
-  ;[agents.engineer, agents.checker, agents.admin] = await Promise.all([
-    ctx.signIn('engineer@ordinate.test'),
-    ctx.signIn('checker@ordinate.test'),
-    ctx.signIn('admin@ordinate.test'),
-  ])
+  w = await createWorldContext()
+  ;({ ctx, world, members: agents } = w)
 })
-afterAll(async () => {
-  await queue?.stop(0)
-  ctx?.close()
-})
+afterAll(() => w?.close())
 
 /** A member allowed past the route's role check, so only the body can be refused. */
-const agentFor = (r: RouteSpec) =>
-  r.access === 'public' ? ctx.anonymous() : r.access === 'member' ? agents.engineer! : agents[r.access[0]!]!
+const agentFor = (r: RouteSpec) => w.agentFor(r)
 const pathOf = (r: RouteSpec) =>
   fillPath(r, {
     id: r.id ? world.idOf[r.id] : undefined,
@@ -183,7 +161,7 @@ describe('query strings', () => {
   }
 
   it('refuses a repeated parameter where one value is expected', async () => {
-    const res = await agents.engineer!.get(
+    const res = await agents.engineer.get(
       `/api/records?projectId=${world.ids.projectId}&projectId=${world.ids.projectId}`,
     )
     expectRefused(res)
@@ -214,7 +192,7 @@ describe('POST /api/records multipart fields', () => {
   for (const c of cases) {
     it(`refuses ${c.title} with 400, writes nothing and pollutes no prototype`, async () => {
       const before = snapshotDb(ctx.db)
-      let req = agents.engineer!.post('/api/records').field('units', 'g')
+      let req = agents.engineer.post('/api/records').field('units', 'g')
       for (const [k, v] of c.fields) req = req.field(k, v)
       const res = await req.attach('file', file(), 'x.txt')
       expectRefused(res)

@@ -1,4 +1,3 @@
-import net from 'node:net'
 import { eq } from 'drizzle-orm'
 import { afterEach, describe, expect, it } from 'vitest'
 import request from 'supertest'
@@ -8,6 +7,7 @@ import { isLoopback } from '../../server/routes/devMailbox.js'
 import { escapeHtml, invitationMail, passwordResetMail } from '../../server/mail/templates.js'
 import { MailDispatcher, createMailTransport, defaultBackoffMs, enqueueMail } from '../../server/services/mail.js'
 import { sinkMessageListSchema } from '../../shared/schemas/devMailbox.js'
+import { closedPort } from '../support/closedPort.js'
 import { tokenFromLink } from '../support/mailbox.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -32,15 +32,6 @@ function dispatcher(ctx: TestContext, smtpUrl: string, now?: () => number, maxAt
   const d = new MailDispatcher({ db: ctx.db, transport: createMailTransport(smtpUrl), from: 'Ordinate <no-reply@ordinate.test>', now, maxAttempts })
   cleanups.push(() => d.stop())
   return d
-}
-
-/** A loopback port with nothing listening on it: SMTP "down". */
-async function closedPort(): Promise<number> {
-  const server = net.createServer()
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve))
-  const { port } = server.address() as net.AddressInfo
-  await new Promise<void>((resolve) => server.close(() => resolve()))
-  return port
 }
 
 const outboxRow = (ctx: TestContext, id: string) => ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, id)).get()!

@@ -1,5 +1,4 @@
 import { randomBytes, randomUUID } from 'node:crypto'
-import net from 'node:net'
 import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { createPayments, type Payments } from '../../server/payments/payments.js'
@@ -7,6 +6,7 @@ import { startStripeMock, type StripeMockServer } from '../../server/payments/st
 import { DEMO_PASSWORD } from '../../server/services/demoData.js'
 import { MailDispatcher, createMailTransport } from '../../server/services/mail.js'
 import { latestMailTo, tokenFromLink } from '../support/mailbox.js'
+import { closedPort } from '../support/closedPort.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 /**
@@ -73,15 +73,6 @@ afterAll(async () => {
   await payments?.close()
   await mock?.close()
 })
-
-/** A loopback port with nothing listening on it. */
-async function closedPort(): Promise<number> {
-  const server = net.createServer()
-  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve))
-  const { port } = server.address() as net.AddressInfo
-  await new Promise<void>((resolve) => server.close(() => resolve()))
-  return port
-}
 
 function sessionIdOf(res: request.Response): string {
   const cookie = ([] as string[])

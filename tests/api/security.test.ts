@@ -5,10 +5,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { Role } from '../../shared/schemas/accounts.js'
 import type { SmtpSink } from '../../server/mail/smtpSink.js'
 import { users } from '../../server/db/schema.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
 import { BCRYPT_COST, dummyPasswordHash } from '../../server/services/auth.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
-import { addMember, buildDemoWorld, type DemoWorld } from '../support/demoWorld.js'
+import { addMember, createWorldContext, type DemoWorld, type WorldContext } from '../support/demoWorld.js'
 import {
   type RouteSpec,
   fillPath,
@@ -17,36 +16,26 @@ import {
   routeKey,
   routeTable,
 } from '../support/routeTable.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import type { TestContext } from '../support/testApp.js'
 
 /**
  * Sweeps over every route of the API (tests/support/routeTable.ts): signed-out visitors, missing
  * roles, another firm's ids, malformed ids and cross-site requests. Each refusal must come in the
  * one error shape and leave the database as it was.
  */
+let w: WorldContext
 let ctx: TestContext
-let queue: RunQueue
 let world: DemoWorld
-const demo: Partial<Record<Role, request.Agent>> = {}
+let demo: WorldContext['members']
 /** A member of the second firm holding every role, so only firm scoping stands between them and the demo firm's data. */
 let outsider: request.Agent
 
 beforeAll(async () => {
-  ctx = await createTestContext(
-    (deps) => {
-      // Stands in for the in-process SMTP sink so the development mailbox route is mounted too.
-      deps.devMailbox = { messages: () => [] } as unknown as SmtpSink
-      queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
-      deps.runQueue = queue
-    },
-    {
-      SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000',
-      SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000',
-      PASSWORD_RESET_MAX_PER_WINDOW: '10000',
-    },
-  )
-  queue.start()
-  world = await buildDemoWorld(ctx)
+  w = await createWorldContext((deps) => {
+    // Stands in for the in-process SMTP sink so the development mailbox route is mounted too.
+    deps.devMailbox = { messages: () => [] } as unknown as SmtpSink
+  })
+  ;({ ctx, world, members: demo } = w)
   await addMember(
     ctx.db,
     ctx.seed.firmIds[1]!,
@@ -54,17 +43,9 @@ beforeAll(async () => {
     ['engineer', 'checker', 'admin'],
     'Oda Brightwater',
   )
-  ;[demo.engineer, demo.checker, demo.admin, outsider] = await Promise.all([
-    ctx.signIn('engineer@ordinate.test'),
-    ctx.signIn('checker@ordinate.test'),
-    ctx.signIn('admin@ordinate.test'),
-    ctx.signIn('outsider-admin@ordinate.test'),
-  ])
+  outsider = await ctx.signIn('outsider-admin@ordinate.test')
 })
-afterAll(async () => {
-  await queue?.stop(0)
-  ctx?.close()
-})
+afterAll(() => w?.close())
 
 const label = (r: RouteSpec) => routeKey(r)
 const pathOf = (r: RouteSpec, id?: string) =>
@@ -126,7 +107,7 @@ describe('role checks', () => {
     for (const role of ROLES.filter((x) => !allowed.includes(x))) {
       it(`${label(r)} refuses a member holding only the ${role} role with 403 naming the role needed`, async () => {
         const before = snapshotDb(ctx.db)
-        const res = await send(demo[role]!, r)
+        const res = await send(demo[role], r)
         expectErrorShape(res, 403, 'forbidden')
         for (const needed of allowed) expect(res.body.error.message).toContain(needed)
         expect(snapshotDb(ctx.db)).toEqual(before)
@@ -146,7 +127,7 @@ describe("another firm's ids", () => {
 
   for (const r of routeTable.filter((r) => r.id && r.method === 'GET')) {
     it(`${label(r)} does answer the demo firm's own members (the ids are real)`, async () => {
-      const res = await send(demo.engineer!, r)
+      const res = await send(demo.engineer, r)
       expect(res.status, JSON.stringify(res.body)).toBe(200)
     })
   }
@@ -167,12 +148,10 @@ describe("another firm's ids", () => {
 })
 
 describe('malformed ids and tokens', () => {
-  const agentFor = (r: RouteSpec) =>
-    r.access === 'public' ? ctx.anonymous() : r.access === 'member' ? demo.engineer! : demo[r.access[0]!]!
   for (const r of routeTable.filter((r) => r.id || r.token)) {
     it(`${label(r)} answers 400 naming the parameter for an id that is not one`, async () => {
       const path = fillPath(r, { id: 'not-an-id', token: 'not-a-token' })
-      const res = await send(agentFor(r), r, path)
+      const res = await send(w.agentFor(r), r, path)
       expectErrorShape(res, 400, 'invalid_input')
       expect(res.body.error.message).toMatch(r.id ? /^id:/ : /^token:/)
     })
@@ -216,14 +195,14 @@ describe('cross-site requests', () => {
 describe('unknown /api routes', () => {
   for (const method of ['get', 'post', 'put', 'patch', 'delete'] as const) {
     it(`${method.toUpperCase()} answers a JSON 404 naming the route`, async () => {
-      const res = await demo.engineer![method]('/api/no-such-thing/42')
+      const res = await demo.engineer[method]('/api/no-such-thing/42')
       expectErrorShape(res, 404, 'not_found')
       expect(res.body.error.message).toContain(`${method.toUpperCase()} /api/no-such-thing/42`)
     })
   }
 
   it('answers a JSON 404, not the app page, for a wrong method on a known path', async () => {
-    expectErrorShape(await demo.engineer!.put('/api/records'), 404, 'not_found')
+    expectErrorShape(await demo.engineer.put('/api/records'), 404, 'not_found')
   })
 })
 

@@ -8,10 +8,12 @@ import type { Role } from '../../shared/schemas/accounts.js'
 import type { Db } from '../../server/db/client.js'
 import { memberships, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
+import type { AppDeps } from '../../server/deps.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { latestMailTo, tokenFromLink } from './mailbox.js'
-import type { IdKind, TokenKind, WorldIds } from './routeTable.js'
-import type { TestContext } from './testApp.js'
+import type { IdKind, RouteSpec, TokenKind, WorldIds } from './routeTable.js'
+import { createTestContext, type TestContext } from './testApp.js'
 
 const RECORD_FIXTURE = path.join(
   path.dirname(fileURLToPath(import.meta.url)),
@@ -149,4 +151,55 @@ function membershipOf(ctx: TestContext, email: string): string {
     .get()
   if (!row) throw new Error(`no membership for ${email}`)
   return row.id
+}
+
+/** A test context holding the demo world, its run queue, and the demo members signed in. */
+export interface WorldContext {
+  ctx: TestContext
+  world: DemoWorld
+  members: Record<Role, request.Agent>
+  /** An agent the route's role check lets through (anonymous for public routes). */
+  agentFor(route: RouteSpec): request.Agent
+  close(): Promise<void>
+}
+
+/**
+ * For the sweeps over the route table: a fresh app with a one-thread run queue and rate limits
+ * high enough for hundreds of refused requests from one address, then the demo world.
+ */
+export async function createWorldContext(extend: (deps: AppDeps) => void = () => {}): Promise<WorldContext> {
+  let queue: RunQueue | undefined
+  const ctx = await createTestContext(
+    (deps) => {
+      queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60 })
+      deps.runQueue = queue
+      extend(deps)
+    },
+    {
+      SIGN_IN_MAX_FAILURES_PER_ADDRESS: '10000',
+      SIGN_IN_MAX_FAILURES_PER_EMAIL: '10000',
+      PASSWORD_RESET_MAX_PER_WINDOW: '10000',
+    },
+  )
+  queue!.start()
+  const world = await buildDemoWorld(ctx)
+  const [engineer, checker, admin] = await Promise.all(
+    ['engineer', 'checker', 'admin'].map((role) => ctx.signIn(`${role}@ordinate.test`)),
+  )
+  const members = { engineer: engineer!, checker: checker!, admin: admin! }
+  return {
+    ctx,
+    world,
+    members,
+    agentFor: (r) =>
+      r.access === 'public'
+        ? ctx.anonymous()
+        : r.access === 'member'
+          ? members.engineer
+          : members[r.access[0]!],
+    async close() {
+      await queue?.stop(0)
+      ctx.close()
+    },
+  }
 }
