@@ -8,7 +8,16 @@ import { type DisplayUnit, type SpectrumQuantity, displayUnits, spectrumQuantiti
  * strings; the chart travels as the inputs of shared/charts/spectrumChart.ts.
  */
 
-const numbers = z.array(z.number())
+/**
+ * Chart ordinates. A gap in a curve is NaN, which JSON carries as null: read back as NaN,
+ * so the chart skips the point rather than drawing it at zero.
+ */
+const numbers = z.array(
+  z
+    .number()
+    .nullable()
+    .transform((v) => v ?? Number.NaN),
+)
 
 const QUANTITIES = Object.keys(spectrumQuantities) as [SpectrumQuantity, ...SpectrumQuantity[]]
 const UNITS = Object.keys(displayUnits) as [DisplayUnit, ...DisplayUnit[]]

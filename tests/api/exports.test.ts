@@ -393,6 +393,20 @@ describe('comparison exports', () => {
     expect(served).not.toContain(' × ')
   })
 
+  it('answers a sheet model whose gaps (90% of the target outside the range) read back as gaps', async () => {
+    const res = await checker.get(`/api/comparisons/${comparisonId}/sheet`)
+    expect(res.status).toBe(200)
+    const sheet = sheetSchema.parse(res.body)
+    const target90 = sheet.chart.data.series.find((s) => s.role === 'target90')
+    const outside = target90?.periodsS.findIndex((t) => t > 2) ?? -1
+    expect(outside).toBeGreaterThan(0)
+    expect(Number.isNaN(target90?.values[outside])).toBe(true)
+    expect(sheet.tables.map((t) => t.title)).toEqual([
+      'Records of the suite and their scale factors',
+      'Suite mean and target at standard periods (PSA, g)',
+    ])
+  })
+
   it('plots a comparison only as PSA in g', async () => {
     const res = await engineer.get(`/api/comparisons/${comparisonId}/export.png?quantity=SD&unit=mm`)
     expect(res.status).toBe(400)

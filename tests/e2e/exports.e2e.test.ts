@@ -114,4 +114,36 @@ describe('calc-package exports in the browser', () => {
     await page.screenshot({ path: artifactPath('exports-sheet-print.png'), fullPage: true })
     await page.emulateMedia({ media: 'screen' })
   })
+
+  it('exports a comparison from its page, and previews its sheet with the scale factors', async () => {
+    const created = await page.request.post(`${server.url}/api/comparisons`, {
+      headers: CLIENT_HEADER,
+      data: {
+        name: 'Browser export suite',
+        runIds: [runId],
+        dampingRatio: 0.05,
+        target: { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 },
+        scaling: { fromS: 0.2, toS: 2, rule: 'lsq-log' },
+      },
+    })
+    expect(created.status()).toBe(201)
+    const comparisonId = (await created.json()).comparison.id as string
+    await page.goto(`${server.url}/comparisons/${comparisonId}`)
+    const menu = page.locator('[data-test="export-menu"]')
+    await menu.locator('summary').click()
+    const [download] = await Promise.all([
+      page.waitForEvent('download'),
+      menu.locator('[data-test="export-svg"]').click(),
+    ])
+    expect(download.suggestedFilename()).toMatch(/^ORD-C-[0-9A-F]{8}-rev1-[a-z0-9-]+\.svg$/)
+    await menu.locator('[data-test="export-preview"]').click()
+    await page.waitForURL(`${server.url}/comparisons/${comparisonId}/sheet`)
+    const sheet = page.locator('[data-test="sheet"]')
+    await sheet.waitFor()
+    await expect(sheet.locator('[data-test="sheet-title"]').innerText()).resolves.toBe(
+      'Suite comparison: Browser export suite',
+    )
+    await expect(sheet.innerText()).resolves.toContain('Records of the suite and their scale factors')
+    await page.screenshot({ path: artifactPath('exports-comparison-sheet.png'), fullPage: true })
+  })
 })
