@@ -11,14 +11,14 @@
  * median convention is from memory).
  */
 
-import { ENGINE_VERSION, MAX_DAMPING_RATIO, type MethodStatement, planSpectrum } from './computeSpectrum.js'
-import { freeVibrationTailPeaks } from './freeVibration.js'
 import {
-  NEWMARK_PARAMETERS,
-  SPECTRUM_METHODS,
-  type SpectrumMethod,
-  recurrenceCoefficients,
-} from './oscillatorRecurrence.js'
+  ENGINE_VERSION,
+  type MethodStatement,
+  checkSpectrumSettings,
+  planSpectrum,
+} from './computeSpectrum.js'
+import { freeVibrationTailPeaks } from './freeVibration.js'
+import { NEWMARK_PARAMETERS, type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
 import { MAX_SUB_STEPS, PEAK_PICKING_BUDGET, peakPickingBound, refinedSubSteps } from './subSteps.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
@@ -413,17 +413,7 @@ function checkPair(record: PairRecord, settings: PairSpectrumSettings): void {
   if (!(Number.isFinite(record.dtS) && record.dtS > 0))
     throw new RangeError('dtS must be a positive number of seconds')
   if (record.accel1MPerS2.length < 2) throw new RangeError('the record needs at least two samples')
-  if (!SPECTRUM_METHODS.includes(settings.method))
-    throw new RangeError(`unknown method ${String(settings.method)}`)
-  if (settings.dampingRatios.length === 0) throw new RangeError('give at least one damping ratio')
-  for (const zeta of settings.dampingRatios) {
-    if (!(zeta >= 0 && zeta < MAX_DAMPING_RATIO)) throw new RangeError('dampingRatio must be in [0, 0.5)')
-  }
-  if (settings.periodsS.length === 0) throw new RangeError('give at least one period')
-  for (const period of settings.periodsS) {
-    if (!(Number.isFinite(period) && period > 0))
-      throw new RangeError('periods must be positive numbers of seconds')
-  }
+  checkSpectrumSettings(settings)
   if (record.accel1MPerS2.length !== record.accel2MPerS2.length) {
     throw new RangeError('the two components must have the same number of samples')
   }
