@@ -27,6 +27,7 @@ import { renderSheetPdf } from '../exports/sheetPdf.js'
 import { type ReviewFacts, ordinateVersion } from '../exports/sheetParts.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import type { Member } from '../middleware/auth.js'
+import { recordSummaryColumns } from '../runs/recordSummaryColumns.js'
 import { recordAudit } from './audit.js'
 import { getComparisonView } from './comparisons.js'
 
@@ -43,22 +44,14 @@ export interface ExportFile {
 /** The warnings of a stored spectrum, which is all a comparison sheet reads of it. */
 const spectrumWarningsSchema = z.object({ warnings: z.array(z.string()).optional() })
 
+/** A record's parameters (as its spectrum states them) and what the sheet says of its file. */
 const recordFactColumns = {
+  ...recordSummaryColumns,
   name: records.name,
   component: records.component,
   sourceFileName: records.sourceFileName,
   sha256: records.sha256,
   format: records.format,
-  sourceUnits: records.sourceUnits,
-  points: records.points,
-  dtS: records.dtS,
-  durationS: records.durationS,
-  pgaMPerS2: records.pgaMPerS2,
-  pgvMPerS: records.pgvMPerS,
-  pgdM: records.pgdM,
-  ariasMPerS: records.ariasMPerS,
-  d595S: records.d595S,
-  cavMPerS: records.cavMPerS,
   synthetic: records.synthetic,
 }
 
