@@ -4,14 +4,17 @@ import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment
 
 /**
  * The built app under its own security headers: helmet's content security policy is sent and
- * the pages work under it (no violation reported), and markup in a record name is shown as
- * text everywhere the name appears (lists, pages, the charts drawn with v-html, the sheet).
+ * the pages work under it (no violation reported), and markup in a record name or a review
+ * comment is shown as text everywhere it appears (lists, pages, the charts drawn with v-html,
+ * the sheet, the review thread).
  */
 const SESSION_SECRET = 'hardening-session-secret-4f8a1c93e2'
 const env = useBrowserTestEnvironment({ SESSION_SECRET })
 
 /** Markup that would run, or at least make an element, if any page put the name in as HTML. */
 const HOSTILE_NAME = '<img src=x onerror="window.__xss=1"><b id="injected">Quay</b>'
+/** The same for a review comment. */
+const HOSTILE_COMMENT = 'See <img src=x onerror="window.__xss=2"><i id="injected-comment">line 3</i>'
 
 /** Records CSP violations (on every later navigation of the page) and console errors. */
 async function watch(page: Page) {
@@ -126,6 +129,10 @@ describe('the built app under its content security policy', () => {
     })
     expect(comparison.status, JSON.stringify(comparison.body)).toBe(201)
     comparisonId = comparison.body.comparison.id
+    const review = await api(page, 'POST', '/reviews', { subjectType: 'run', subjectId: runId })
+    expect(review.status, JSON.stringify(review.body)).toBe(201)
+    const comment = await api(page, 'POST', `/reviews/${review.body.id}/comments`, { body: HOSTILE_COMMENT })
+    expect(comment.status, JSON.stringify(comment.body)).toBe(201)
 
     for (const path of [
       '/',
@@ -135,7 +142,11 @@ describe('the built app under its content security policy', () => {
       '/runs/new',
       `/runs/${runId}`,
       `/runs/${runId}/sheet`,
+      '/comparisons',
+      '/comparisons/new',
+      `/comparisons/${comparisonId}`,
       `/comparisons/${comparisonId}/sheet`,
+      '/reviews',
       '/credits',
     ]) {
       expect(await visit(page, path), path).toEqual([])
@@ -190,6 +201,21 @@ describe('the built app under its content security policy', () => {
       expect(injected, path).toEqual({ images: 0, bold: 0, ran: null })
     }
     await page.screenshot({ path: artifactPath('security-hostile-name.png'), fullPage: true })
+    await page.close()
+  })
+
+  it('shows markup in a review comment as text in the thread, creating no element', async () => {
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.checker.email)
+    await visit(page, `/runs/${runId}`)
+    const thread = page.locator('[data-test="review-thread"]')
+    await thread.getByText(HOSTILE_COMMENT).waitFor()
+    const injected = await page.evaluate(() => ({
+      images: document.querySelectorAll('img[src="x"]').length,
+      italic: document.querySelectorAll('#injected-comment').length,
+      ran: (window as unknown as { __xss?: number }).__xss ?? null,
+    }))
+    expect(injected).toEqual({ images: 0, italic: 0, ran: null })
     await page.close()
   })
 
