@@ -307,11 +307,6 @@ export function requeueInterruptedRuns(db: Db): { requeued: number; failed: numb
   )
 }
 
-/** True when at least one run waits in the queue. */
-export function hasQueuedRuns(db: Db): boolean {
-  return !!db.select({ id: runs.id }).from(runs).where(eq(runs.status, 'queued')).limit(1).get()
-}
-
 /** Takes the oldest queued run and marks it running, in one transaction. */
 export function claimNextRun(db: Db): ClaimedRun | undefined {
   return db.transaction(
