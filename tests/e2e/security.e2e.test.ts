@@ -186,7 +186,10 @@ describe('the built app under its content security policy', () => {
       '/runs',
       `/runs/${runId}`,
       `/runs/${runId}/sheet`,
+      '/comparisons',
+      `/comparisons/${comparisonId}`,
       `/comparisons/${comparisonId}/sheet`,
+      '/reviews',
     ]) {
       await visit(page, path)
       await expect(
