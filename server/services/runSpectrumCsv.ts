@@ -9,10 +9,8 @@ import { getRunSpectrum } from './runs.js'
 export const CSV_CAUTION =
   'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.'
 
-/** The columns, with their units in the names. */
-export const CSV_COLUMNS = [
-  'period_s',
-  'damping_ratio',
+/** The ordinate columns, with their units in the names. */
+export const CSV_ORDINATE_COLUMNS = [
   'sd_m',
   'sv_m_per_s',
   'sa_m_per_s2',
@@ -20,6 +18,9 @@ export const CSV_COLUMNS = [
   'psa_m_per_s2',
   'psa_g',
 ] as const
+
+const COMBINATION_TEXT =
+  'Combination of the two components: geomean = geometric mean of their spectra; rotd50 and rotd100 = median and maximum over rotation angles 0–179° (Boore 2010).'
 
 /** A header line: "# " then the text on one line (a stray newline would break the file). */
 const comment = (text: string) => `# ${text.replace(/[\r\n]+/g, ' ')}`
@@ -33,6 +34,7 @@ const percent = (ratio: number) => `${Number((ratio * 100).toPrecision(6))}%`
  * A succeeded run's spectrum as CSV: `#` comment lines saying what produced it (product and
  * engine versions, the record and its SHA-256, the method, the cautions), then one row per
  * period and damping ratio (periods in the run's order), every ordinate in SI plus PSA in g.
+ * A pair run adds a `combination` column, one block of rows per damping ratio and combination.
  */
 export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileName: string; text: string } {
   const { run, result } = getRunSpectrum(db, firmId, runId)
@@ -50,6 +52,7 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
         .get()
     : undefined
   const m = spectrum.methodStatement
+  const combined = spectrum.curves.some((c) => c.combination !== undefined)
   const subSteps = m.subStepsMin === m.subStepsMax ? `${m.subStepsMin}` : `${m.subStepsMin}–${m.subStepsMax}`
   const lines = [
     comment(`Ordinate ${ordinateVersion()}: elastic response spectrum of run ${run.id}`),
@@ -68,7 +71,7 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
     comment(`Initial conditions: ${m.initialConditions} Free-vibration tail: ${m.freeVibrationTail}`),
     comment(`Accuracy: ${m.accuracyTarget}`),
     comment(
-      `Damping ratios: ${spectrum.curves.map((c) => `${num(c.dampingRatio)} (${percent(c.dampingRatio)})`).join(', ')}`,
+      `Damping ratios: ${run.settings.dampingRatios.map((d) => `${num(d)} (${percent(d)})`).join(', ')}`,
     ),
     comment(
       `Periods: ${spectrum.periodsS.length} (${run.settings.periodChoice === 'default' ? 'default grid, 100 per decade from 0.01 to 10 s' : run.settings.periodChoice === 'grid' ? 'log-spaced grid' : 'as listed'})`,
@@ -77,8 +80,9 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
       `Units: SI (m, m/s, m/s²); psa_g uses g = ${STANDARD_GRAVITY_M_PER_S2} m/s². SV is relative, SA absolute; PSV = ωSD, PSA = ω²SD.`,
     ),
     ...spectrum.warnings.map((w) => comment(`Warning: ${w}`)),
+    ...(combined ? [comment(COMBINATION_TEXT)] : []),
     comment(`Caution: ${CSV_CAUTION}`),
-    CSV_COLUMNS.join(','),
+    ['period_s', 'damping_ratio', ...(combined ? ['combination'] : []), ...CSV_ORDINATE_COLUMNS].join(','),
   ]
   for (const curve of spectrum.curves) {
     spectrum.periodsS.forEach((periodS, i) => {
@@ -86,6 +90,7 @@ export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileNam
         [
           num(periodS),
           num(curve.dampingRatio),
+          ...(combined ? [curve.combination ?? ''] : []),
           num(curve.sdM[i]!),
           num(curve.svMPerS[i]!),
           num(curve.saMPerS2[i]!),

@@ -531,6 +531,46 @@ describe('GET /api/runs/:id/spectrum.csv', () => {
     expect(psaG).toBeCloseTo(psa! / 9.80665, 15) // g = 9.80665 m/s² (3rd CGPM, 1901)
   })
 
+  it('has no combination column for a single record', async () => {
+    const res = await engineer.get(`/api/runs/${smallRun.id}/spectrum.csv`)
+    expect(res.text).not.toMatch(/combination/)
+  })
+
+  it('adds a combination column for a record pair, one block of rows per damping and combination', async () => {
+    const owner = { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! }
+    const h1 = insertRecord(ctx.db, owner, { name: 'Pair H1 (synthetic)', points: 400 })
+    const h2 = insertRecord(ctx.db, owner, {
+      name: 'Pair H2 (synthetic)',
+      samples: syntheticMotion(400, 0.01).reverse(),
+    })
+    const pair = await engineer
+      .post('/api/record-pairs')
+      .send({ recordIds: [h1.id, h2.id], name: 'Synthetic CSV pair' })
+    expect(pair.status).toBe(201)
+    const run = await runToEnd(engineer, {
+      pairId: pair.body.id,
+      combinations: ['geomean', 'rotd100'],
+      dampingRatios: [0.05],
+      periodsS: [0.2, 1],
+    })
+    expect(run.status).toBe('succeeded')
+    const csv = await engineer.get(`/api/runs/${run.id}/spectrum.csv`)
+    const lines = csv.text.trimEnd().split('\r\n')
+    expect(lines.filter((l) => l.startsWith('#')).join('\n')).toMatch(
+      /rotd50 and rotd100 = median and maximum/,
+    )
+    const rows = lines.filter((l) => !l.startsWith('#'))
+    expect(rows[0]).toBe(
+      'period_s,damping_ratio,combination,sd_m,sv_m_per_s,sa_m_per_s2,psv_m_per_s,psa_m_per_s2,psa_g',
+    )
+    expect(rows.slice(1).map((r) => r.split(',').slice(0, 3).join(','))).toEqual([
+      '0.2,0.05,geomean',
+      '1,0.05,geomean',
+      '0.2,0.05,rotd100',
+      '1,0.05,rotd100',
+    ])
+  })
+
   it("answers 404 for another firm's run and 401 when signed out", async () => {
     expect((await outsider.get(`/api/runs/${smallRun.id}/spectrum.csv`)).status).toBe(404)
     expect((await ctx.anonymous().get(`/api/runs/${smallRun.id}/spectrum.csv`)).status).toBe(401)
