@@ -307,11 +307,12 @@ export class RunQueue {
     if (!active) return
     clearTimeout(active.timer)
     slot.run = undefined
+    // Hand the thread its next run first, so it computes while this run's result is stored.
+    this.kick()
     const claimed = active.claimed
     if (typeof outcome === 'string') this.finishFailed(claimed, outcome)
     else this.finishSucceeded(claimed, outcome)
     this.settled()
-    this.kick()
   }
 
   private finishSucceeded(claimed: ClaimedRun, reply: WorkerResult): void {
