@@ -477,7 +477,7 @@ describe('the Content-Security-Policy', () => {
     })
     try {
       const csp = String((await live.anonymous().get('/api/health')).headers['content-security-policy'])
-      expect(csp).toMatch(/script-src 'self' https:\/\/js\.stripe\.com/)
+      expect(csp).toMatch(/script-src 'self' 'wasm-unsafe-eval' https:\/\/js\.stripe\.com/)
       expect(csp).toMatch(/frame-src https:\/\/js\.stripe\.com https:\/\/hooks\.stripe\.com/)
       expect(csp).toMatch(/connect-src 'self' https:\/\/api\.stripe\.com/)
       const config = await (await live.signIn(ADMIN)).get('/api/payments/config')
