@@ -2,9 +2,7 @@ import path from 'node:path'
 import { z } from 'zod'
 import { projectRoot } from './projectRoot.js'
 
-const flag = z
-  .enum(['0', '1', 'true', 'false'])
-  .transform((v) => v === '1' || v === 'true')
+const flag = z.enum(['0', '1', 'true', 'false']).transform((v) => v === '1' || v === 'true')
 
 /** Every environment variable Ordinate reads, parsed once at boot. README lists them. */
 export const envSchema = z.object({

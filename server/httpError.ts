@@ -11,10 +11,14 @@ export class HttpError extends Error {
   }
 }
 
-export const badRequest = (message: string, code = 'bad_request', extra: { line?: number; issues?: unknown[] } = {}) =>
-  new HttpError(400, code, message, extra)
+export const badRequest = (
+  message: string,
+  code = 'bad_request',
+  extra: { line?: number; issues?: unknown[] } = {},
+) => new HttpError(400, code, message, extra)
 export const unauthorized = (message = 'Sign in to continue.') => new HttpError(401, 'unauthorized', message)
-export const paymentRequired = (message: string, code = 'payment_required') => new HttpError(402, code, message)
+export const paymentRequired = (message: string, code = 'payment_required') =>
+  new HttpError(402, code, message)
 export const forbidden = (message: string) => new HttpError(403, 'forbidden', message)
 export const notFound = (what = 'That item') => new HttpError(404, 'not_found', `${what} was not found.`)
 export const conflict = (message: string, code = 'conflict') => new HttpError(409, code, message)

@@ -22,7 +22,12 @@ async function main() {
   const mail = await startMail(db, config, log)
   const payments = await createPayments(config.stripe, { log })
   log(`Payments: ${payments.mode} mode, through ${payments.endpoint}.`)
-  const runQueue = new RunQueue({ db, workerCount: config.workerThreads, runTimeLimitS: config.runTimeLimitS, log })
+  const runQueue = new RunQueue({
+    db,
+    workerCount: config.workerThreads,
+    runTimeLimitS: config.runTimeLimitS,
+    log,
+  })
   runQueue.start()
   log(`Run queue: up to ${runQueue.workerCount} worker thread(s).`)
   const deps: AppDeps = {

@@ -31,7 +31,13 @@ export const navigation: NavEntry[] = [
   },
   { to: '/reviews', label: 'Checking', iconPath: 'M4 3h12v14H4zM7 10l2 2 4-5' },
   { to: '/credits', label: 'Credits', iconPath: 'M3 6h14v9H3zM3 9h14M6 12.5h3' },
-  { to: '/members', label: 'Members', roles: ['admin'], iconPath: 'M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6M2 17c0-3 2.2-5 5-5s5 2 5 5M13 4.5a2.5 2.5 0 0 1 0 5M15 12c1.8.6 3 2.4 3 5' },
+  {
+    to: '/members',
+    label: 'Members',
+    roles: ['admin'],
+    iconPath:
+      'M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6M2 17c0-3 2.2-5 5-5s5 2 5 5M13 4.5a2.5 2.5 0 0 1 0 5M15 12c1.8.6 3 2.4 3 5',
+  },
 ]
 
 /** The entries a member holding `roles` may use, in navigation order. */

@@ -1,13 +1,5 @@
 import { sql } from 'drizzle-orm'
-import {
-  blob,
-  index,
-  integer,
-  real,
-  sqliteTable,
-  text,
-  uniqueIndex,
-} from 'drizzle-orm/sqlite-core'
+import { blob, index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
 
 // Times are stored as integer milliseconds since the epoch (UTC).
 const createdAt = () =>
@@ -310,7 +302,9 @@ export const comparisons = sqliteTable('comparisons', {
   target: text('target', { mode: 'json' }).$type<Record<string, unknown>>(),
   scaling: text('scaling', { mode: 'json' }).$type<Record<string, unknown>>(),
   /** 'arithmetic' or 'geometric': the suite mean drawn and checked against the target. */
-  meanKind: text('mean_kind', { enum: ['arithmetic', 'geometric'] }).notNull().default('arithmetic'),
+  meanKind: text('mean_kind', { enum: ['arithmetic', 'geometric'] })
+    .notNull()
+    .default('arithmetic'),
   /** For runs of record pairs: which combination of the two components is compared. */
   combination: text('combination', { enum: ['geomean', 'rotd50', 'rotd100'] }),
   /** The comparison this one revises after its predecessor was checked and locked. */

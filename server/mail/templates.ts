@@ -2,7 +2,13 @@ import type { Role } from '../../shared/schemas/accounts.js'
 
 const PRODUCT = 'Ordinate'
 
-const HTML_ESCAPES: Record<string, string> = { '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' }
+const HTML_ESCAPES: Record<string, string> = {
+  '&': '&amp;',
+  '<': '&lt;',
+  '>': '&gt;',
+  '"': '&quot;',
+  "'": '&#39;',
+}
 
 /** Escapes a value for HTML text or a quoted attribute. Every interpolated value goes through it. */
 export function escapeHtml(value: string): string {

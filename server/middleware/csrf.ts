@@ -28,7 +28,9 @@ export function csrfGuard(allowedOrigins: () => string[]) {
       } catch {
         // an unparsable Referer is treated as foreign
       }
-      return allowed.has(refOrigin) ? next() : next(forbidden('Cross-site request refused (referer mismatch).'))
+      return allowed.has(refOrigin)
+        ? next()
+        : next(forbidden('Cross-site request refused (referer mismatch).'))
     }
     if (req.get(CSRF_HEADER)) return next()
     next(forbidden(`Cross-site request refused: send the ${CSRF_HEADER} header or a same-origin Origin.`))

@@ -20,7 +20,10 @@ function limiter(name: string, windowMs: number, limit: number, extra: Partial<O
     requestPropertyName: `rateLimit_${name}`,
     handler: (req, res, next) => {
       const info = (req as unknown as Record<string, { resetTime?: Date }>)[`rateLimit_${name}`]
-      const waitS = Math.max(1, Math.ceil(((info?.resetTime?.getTime() ?? Date.now() + windowMs) - Date.now()) / 1000))
+      const waitS = Math.max(
+        1,
+        Math.ceil(((info?.resetTime?.getTime() ?? Date.now() + windowMs) - Date.now()) / 1000),
+      )
       res.setHeader('Retry-After', String(waitS))
       const minutes = Math.ceil(waitS / 60)
       next(
@@ -46,7 +49,10 @@ const byAddress = (req: Request) => ipKeyGenerator(req.ip ?? req.socket.remoteAd
 export function signInLimiters(limits: Limits): RequestHandler[] {
   const failuresOnly = { skipSuccessfulRequests: true }
   return [
-    limiter('signInAddress', limits.windowMs, limits.signInFailuresPerAddress, { ...failuresOnly, keyGenerator: byAddress }),
+    limiter('signInAddress', limits.windowMs, limits.signInFailuresPerAddress, {
+      ...failuresOnly,
+      keyGenerator: byAddress,
+    }),
     limiter('signInEmail', limits.windowMs, limits.signInFailuresPerEmail, {
       ...failuresOnly,
       keyGenerator: (req) => `email:${bodyEmail(req) ?? ''}`,

@@ -30,7 +30,8 @@ export function authRouter(deps: AppDeps, signInLimiters: import('express').Requ
     const member = req.member
     req.session.destroy((err) => {
       if (err) return next(err)
-      if (member) recordAudit(deps.db, { firmId: member.firmId, userId: member.userId, action: 'auth.signed_out' })
+      if (member)
+        recordAudit(deps.db, { firmId: member.firmId, userId: member.userId, action: 'auth.signed_out' })
       res.clearCookie(deps.sessionCookieName)
       res.status(204).end()
     })

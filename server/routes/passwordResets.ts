@@ -1,11 +1,15 @@
 import { Router, type RequestHandler } from 'express'
-import { completePasswordResetBodySchema, requestPasswordResetBodySchema } from '../../shared/schemas/passwordResets.js'
+import {
+  completePasswordResetBodySchema,
+  requestPasswordResetBodySchema,
+} from '../../shared/schemas/passwordResets.js'
 import { tokenParamsSchema } from '../../shared/schemas/tokens.js'
 import type { AppDeps } from '../deps.js'
 import { linkOrigin } from '../mail/links.js'
 import { completePasswordReset, requestPasswordReset } from '../services/passwordResets.js'
 
-const REQUESTED = 'If that address belongs to an Ordinate account, a link to choose a new password is on its way. It works for one hour.'
+const REQUESTED =
+  'If that address belongs to an Ordinate account, a link to choose a new password is on its way. It works for one hour.'
 
 /** Password resets by e-mail link. The request answers 202 whatever the address, so it reveals nothing. */
 export function passwordResetsRouter(deps: AppDeps, requestLimiters: RequestHandler[] = []) {

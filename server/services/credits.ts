@@ -60,7 +60,10 @@ export function appendLedger(db: DbOrTx, entry: LedgerWrite): void {
  */
 export function reserveRunCredit(db: DbOrTx, firmId: string, runId: string, userId: string): void {
   if (creditBalance(db, firmId) < 1) {
-    throw paymentRequired('Your firm has no run credits left. An admin can buy more on the Credits page.', 'no_credits')
+    throw paymentRequired(
+      'Your firm has no run credits left. An admin can buy more on the Credits page.',
+      'no_credits',
+    )
   }
   appendLedger(db, { firmId, delta: -1, kind: 'run_reserved', runId, userId })
 }

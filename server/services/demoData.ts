@@ -12,7 +12,10 @@ export const DEMO_PASSWORD = 'ordinate-demo'
 export const DEMO_FIRMS = [
   {
     name: 'Halvorsen Kade Structural',
-    project: { name: 'Tidewater Library Annex', description: 'Demo project: seismic retrofit of a three-storey library annex (fictional).' },
+    project: {
+      name: 'Tidewater Library Annex',
+      description: 'Demo project: seismic retrofit of a three-storey library annex (fictional).',
+    },
     credits: 25,
     members: [
       { email: 'engineer@ordinate.test', name: 'Ines Marlowe', roles: ['engineer'] as Role[] },
@@ -22,7 +25,10 @@ export const DEMO_FIRMS = [
   },
   {
     name: 'Brightwater Consulting',
-    project: { name: 'Quayside Car Park', description: 'Demo project of a second firm, to show that firms cannot see each other (fictional).' },
+    project: {
+      name: 'Quayside Car Park',
+      description: 'Demo project of a second firm, to show that firms cannot see each other (fictional).',
+    },
     credits: 5,
     members: [{ email: 'outsider@ordinate.test', name: 'Pella Strand', roles: ['engineer'] as Role[] }],
   },
@@ -57,12 +63,20 @@ export async function seedDemoData(db: Db, options: SeedOptions = {}): Promise<D
       tx.insert(firms).values({ id: firmId, name: f.name }).run()
       const projectId = newId()
       tx.insert(projects)
-        .values({ id: projectId, firmId, name: f.project.name, description: f.project.description, isDefault: true })
+        .values({
+          id: projectId,
+          firmId,
+          name: f.project.name,
+          description: f.project.description,
+          isDefault: true,
+        })
         .run()
       for (const m of f.members) {
         const userId = newId()
         tx.insert(users).values({ id: userId, email: m.email, name: m.name, passwordHash }).run()
-        tx.insert(memberships).values({ id: newId(), firmId, userId, roles: [...m.roles] }).run()
+        tx.insert(memberships)
+          .values({ id: newId(), firmId, userId, roles: [...m.roles] })
+          .run()
         seed.userIds[m.email] = userId
       }
       tx.insert(creditLedger)

@@ -164,7 +164,11 @@ function pendingInvitation(db: Db | Tx, token: string) {
     throw new HttpError(410, 'invitation_used', 'This invitation has already been accepted. Sign in instead.')
   }
   if (row.expiresAt <= Date.now()) {
-    throw new HttpError(410, 'invitation_expired', 'This invitation has expired. Ask an admin of the firm to invite you again.')
+    throw new HttpError(
+      410,
+      'invitation_expired',
+      'This invitation has expired. Ask an admin of the firm to invite you again.',
+    )
   }
   return { ...row, roles: row.roles as Role[] }
 }
@@ -181,17 +185,28 @@ export function previewInvitation(db: Db, token: string): InvitationPreview {
  * work names them), so accepting a new invitation reuses it with the new name and password.
  * Returns the user id, for the route to start a fresh session.
  */
-export async function acceptInvitation(db: Db, token: string, input: { name: string; password: string }): Promise<string> {
+export async function acceptInvitation(
+  db: Db,
+  token: string,
+  input: { name: string; password: string },
+): Promise<string> {
   pendingInvitation(db, token)
   const passwordHash = await hashPassword(input.password)
   return db.transaction(
     (tx) => {
       const invitation = pendingInvitation(tx, token)
       if (existingMembership(tx, invitation.email)) {
-        throw conflict(`${invitation.email} already has an Ordinate account. Sign in instead.`, 'already_member')
+        throw conflict(
+          `${invitation.email} already has an Ordinate account. Sign in instead.`,
+          'already_member',
+        )
       }
       const now = Date.now()
-      const formerUser = tx.select({ id: users.id }).from(users).where(eq(users.email, invitation.email)).get()
+      const formerUser = tx
+        .select({ id: users.id })
+        .from(users)
+        .where(eq(users.email, invitation.email))
+        .get()
       const userId = formerUser?.id ?? newId()
       if (formerUser) {
         tx.update(users).set({ name: input.name, passwordHash }).where(eq(users.id, userId)).run()
@@ -199,7 +214,9 @@ export async function acceptInvitation(db: Db, token: string, input: { name: str
         tx.insert(users).values({ id: userId, email: invitation.email, name: input.name, passwordHash }).run()
       }
       const membershipId = newId()
-      tx.insert(memberships).values({ id: membershipId, firmId: invitation.firmId, userId, roles: invitation.roles }).run()
+      tx.insert(memberships)
+        .values({ id: membershipId, firmId: invitation.firmId, userId, roles: invitation.roles })
+        .run()
       tx.update(invitations).set({ acceptedAt: now }).where(eq(invitations.id, invitation.id)).run()
       recordAudit(tx, {
         firmId: invitation.firmId,

@@ -40,7 +40,9 @@ export function createMailTransport(smtpUrl: string): Transporter {
     host: url.hostname,
     port: url.port ? Number(url.port) : url.protocol === 'smtps:' ? 465 : 587,
     secure: url.protocol === 'smtps:',
-    auth: url.username ? { user: decodeURIComponent(url.username), pass: decodeURIComponent(url.password) } : undefined,
+    auth: url.username
+      ? { user: decodeURIComponent(url.username), pass: decodeURIComponent(url.password) }
+      : undefined,
     connectionTimeout: 10_000,
     greetingTimeout: 10_000,
     socketTimeout: 30_000,
@@ -138,7 +140,9 @@ export class MailDispatcher {
     this.timer = setTimeout(() => {
       this.timer = undefined
       void this.dispatchOnce()
-        .catch((err: unknown) => this.log(`Mail dispatch failed: ${err instanceof Error ? err.message : String(err)}`))
+        .catch((err: unknown) =>
+          this.log(`Mail dispatch failed: ${err instanceof Error ? err.message : String(err)}`),
+        )
         .finally(() => {
           if (this.running && !this.timer) this.schedule(this.pollMs)
         })
@@ -186,7 +190,9 @@ export class MailDispatcher {
           .run()
         if (giveUp) result.failed++
         else result.retried++
-        this.log(`Mail to ${row.toAddress} not sent (attempt ${attempts}${giveUp ? ', giving up' : ''}): ${lastError}`)
+        this.log(
+          `Mail to ${row.toAddress} not sent (attempt ${attempts}${giveUp ? ', giving up' : ''}): ${lastError}`,
+        )
       }
     }
     return result

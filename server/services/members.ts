@@ -19,7 +19,10 @@ const memberColumns = {
   joinedAt: memberships.createdAt,
 }
 
-const toMember = (row: { roles: string[] } & Omit<FirmMember, 'roles'>): FirmMember => ({ ...row, roles: row.roles as Role[] })
+const toMember = (row: { roles: string[] } & Omit<FirmMember, 'roles'>): FirmMember => ({
+  ...row,
+  roles: row.roles as Role[],
+})
 
 /** The members of the signed-in member's firm, by name. */
 export function listMembers(db: Db, member: Member): FirmMember[] {
@@ -59,11 +62,19 @@ function keepAnAdmin(tx: Tx, firmId: string, target: FirmMember, actor: Member, 
   if (!target.roles.includes('admin') || adminCount(tx, firmId) > 1) return
   const who = target.userId === actor.userId ? 'You are' : 'This member is'
   const what = action === 'remove' ? 'leave the firm' : 'give up the admin role'
-  throw conflict(`${who} the firm's only admin and cannot ${what}. Give another member the admin role first.`, 'last_admin')
+  throw conflict(
+    `${who} the firm's only admin and cannot ${what}. Give another member the admin role first.`,
+    'last_admin',
+  )
 }
 
 /** PATCH /api/firm/members/:id: replaces the member's roles. */
-export function updateMemberRoles(db: Db, actor: Member, membershipId: string, input: { roles: Role[] }): FirmMember {
+export function updateMemberRoles(
+  db: Db,
+  actor: Member,
+  membershipId: string,
+  input: { roles: Role[] },
+): FirmMember {
   return db.transaction(
     (tx) => {
       const target = findFirmMember(tx, actor.firmId, membershipId)

@@ -31,10 +31,16 @@ export function requestPasswordReset(db: Db, email: string, origin: string): voi
   const expiresAt = now + PASSWORD_RESET_TTL_MS
   db.transaction(
     (tx) => {
-      tx.insert(passwordResets).values({ id, userId: member.userId, tokenHash, expiresAt, createdAt: now }).run()
+      tx.insert(passwordResets)
+        .values({ id, userId: member.userId, tokenHash, expiresAt, createdAt: now })
+        .run()
       enqueueMail(tx, {
         to: member.email,
-        ...passwordResetMail({ name: member.name, url: appLink(origin, `/reset-password/${token}`), expiresAt }),
+        ...passwordResetMail({
+          name: member.name,
+          url: appLink(origin, `/reset-password/${token}`),
+          expiresAt,
+        }),
       })
       recordAudit(tx, {
         firmId: member.firmId,
@@ -50,7 +56,11 @@ export function requestPasswordReset(db: Db, email: string, origin: string): voi
 
 /** The reset a token opens, still usable; an unknown token is 404, a spent or expired one 410. */
 function usableReset(db: Db | Tx, token: string) {
-  const row = db.select().from(passwordResets).where(eq(passwordResets.tokenHash, hashToken(token))).get()
+  const row = db
+    .select()
+    .from(passwordResets)
+    .where(eq(passwordResets.tokenHash, hashToken(token)))
+    .get()
   if (!row) throw notFound('This reset link')
   if (row.usedAt !== null) {
     throw new HttpError(410, 'reset_used', 'This reset link has already been used. Ask for a new one.')

@@ -5,5 +5,6 @@ import type { Db } from '../db/client.js'
  * Sessions are express-session JSON in the sessions table; the user id sits at $.userId.
  */
 export function endSessionsOfUser(db: Pick<Db, '$client'>, userId: string): number {
-  return db.$client.prepare("DELETE FROM sessions WHERE json_extract(data, '$.userId') = ?").run(userId).changes
+  return db.$client.prepare("DELETE FROM sessions WHERE json_extract(data, '$.userId') = ?").run(userId)
+    .changes
 }

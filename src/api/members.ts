@@ -12,7 +12,10 @@ export async function listMembers(): Promise<FirmMember[]> {
 
 /** `PATCH /api/firm/members/:id` (admin): replaces a member's roles; 409 `last_admin` if that would leave no admin. */
 export function updateMemberRoles(id: string, roles: Role[]): Promise<FirmMember> {
-  return apiRequest(`/api/firm/members/${encodeURIComponent(id)}`, memberSchema, { method: 'PATCH', body: { roles } })
+  return apiRequest(`/api/firm/members/${encodeURIComponent(id)}`, memberSchema, {
+    method: 'PATCH',
+    body: { roles },
+  })
 }
 
 /** `DELETE /api/firm/members/:id` (admin): removes the member from the firm (204). */

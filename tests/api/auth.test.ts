@@ -27,7 +27,10 @@ describe('unknown API routes', () => {
 
 describe('POST /api/auth/sign-in', () => {
   it('signs in a demo member and answers their firm and roles', async () => {
-    const res = await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
+    const res = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
     expect(res.status).toBe(200)
     expect(res.body.user.email).toBe('engineer@ordinate.test')
     expect(res.body.firm.name).toBe('Halvorsen Kade Structural')
@@ -35,7 +38,10 @@ describe('POST /api/auth/sign-in', () => {
   })
 
   it('sets an HttpOnly, SameSite=Lax session cookie', async () => {
-    const res = await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })
+    const res = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })
     const cookie = String(res.headers['set-cookie'])
     expect(cookie).toMatch(/ordinate\.sid=/)
     expect(cookie).toMatch(/HttpOnly/i)
@@ -60,7 +66,10 @@ describe('POST /api/auth/sign-in', () => {
 
   describe('with a wrong password', () => {
     it('responds 401 with a message that does not say which part was wrong', async () => {
-      const res = await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'wrong-password' })
+      const res = await ctx
+        .anonymous()
+        .post('/api/auth/sign-in')
+        .send({ email: 'engineer@ordinate.test', password: 'wrong-password' })
       expect(res.status).toBe(401)
       expect(res.body.error.message).toBe('The e-mail address or password is not correct.')
     })
@@ -68,7 +77,10 @@ describe('POST /api/auth/sign-in', () => {
 
   describe('with a malformed body', () => {
     it('responds 400 naming the field', async () => {
-      const res = await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'not-an-address', password: 'x' })
+      const res = await ctx
+        .anonymous()
+        .post('/api/auth/sign-in')
+        .send({ email: 'not-an-address', password: 'x' })
       expect(res.status).toBe(400)
       expect(res.body.error.code).toBe('invalid_input')
       expect(res.body.error.message).toMatch(/^email:/)
@@ -77,8 +89,12 @@ describe('POST /api/auth/sign-in', () => {
 
   it('changes the session id at sign-in (no session fixation)', async () => {
     const agent = ctx.anonymous()
-    const first = await agent.post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
-    const second = await agent.post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
+    const first = await agent
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
+    const second = await agent
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
     const sid = (r: request.Response) => /ordinate\.sid=([^;]+)/.exec(String(r.headers['set-cookie']))?.[1]
     expect(sid(first)).toBeTruthy()
     expect(sid(second)).toBeTruthy()
@@ -118,7 +134,9 @@ describe('CSRF protection on state-changing requests', () => {
   })
 
   it('refuses a POST with neither Origin, Referer nor the client header', async () => {
-    const res = await request(ctx.app).post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
+    const res = await request(ctx.app)
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
     expect(res.status).toBe(403)
   })
 

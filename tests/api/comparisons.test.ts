@@ -222,14 +222,12 @@ describe('POST /api/comparisons', () => {
 describe('POST /api/comparisons/preview', () => {
   it('draws a comparison without saving it', async () => {
     const before = (await engineer.get('/api/comparisons')).body.items.length
-    const res = await admin
-      .post('/api/comparisons/preview')
-      .send({
-        runIds: [runA, runB],
-        dampingRatio: 0.05,
-        target,
-        scaling: { fromS: 0.5, toS: 2, rule: 'suite-90' },
-      })
+    const res = await admin.post('/api/comparisons/preview').send({
+      runIds: [runA, runB],
+      dampingRatio: 0.05,
+      target,
+      scaling: { fromS: 0.5, toS: 2, rule: 'suite-90' },
+    })
     expect(res.status).toBe(200)
     expect(res.body).not.toHaveProperty('comparison')
     expect(res.body.scaling.check.passed).toBe(true)

@@ -3,7 +3,11 @@ import { eq } from 'drizzle-orm'
 import { afterEach, beforeEach, describe, expect, it } from 'vitest'
 import request from 'supertest'
 import { invitations, memberships, users } from '../../server/db/schema.js'
-import { invitationListSchema, invitationPreviewSchema, invitationSchema } from '../../shared/schemas/invitations.js'
+import {
+  invitationListSchema,
+  invitationPreviewSchema,
+  invitationSchema,
+} from '../../shared/schemas/invitations.js'
 import { sessionInfoSchema } from '../../shared/schemas/accounts.js'
 import { auditRows, latestMailTo, tokenFromLink } from '../support/mailbox.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -23,7 +27,11 @@ async function invite(email = NEWCOMER, roles: string[] = ['engineer']) {
   expect(res.status).toBe(201)
   const mail = latestMailTo(ctx.db, email)
   if (!mail) throw new Error('no invitation mail queued')
-  return { admin, invitation: invitationSchema.parse(res.body), token: tokenFromLink(mail.textBody, '/invitations/') }
+  return {
+    admin,
+    invitation: invitationSchema.parse(res.body),
+    token: tokenFromLink(mail.textBody, '/invitations/'),
+  }
 }
 
 const sid = (r: request.Response) => /ordinate\.sid=([^;]+)/.exec(String(r.headers['set-cookie']))?.[1]
@@ -55,7 +63,9 @@ describe('POST /api/firm/invitations', () => {
 
   it('normalises the address to lower case', async () => {
     const admin = await ctx.signIn('admin@ordinate.test')
-    const res = await admin.post('/api/firm/invitations').send({ email: '  New.Person@Ordinate.TEST ', roles: ['engineer'] })
+    const res = await admin
+      .post('/api/firm/invitations')
+      .send({ email: '  New.Person@Ordinate.TEST ', roles: ['engineer'] })
     expect(res.status).toBe(201)
     expect(res.body.email).toBe('new.person@ordinate.test')
   })
@@ -64,12 +74,18 @@ describe('POST /api/firm/invitations', () => {
     ctx.close()
     ctx = await createTestContext(() => {}, { PUBLIC_URL: 'https://ordinate.example.org' })
     const { token } = await invite()
-    expect(latestMailTo(ctx.db, NEWCOMER)!.textBody).toContain(`https://ordinate.example.org/invitations/${token}`)
+    expect(latestMailTo(ctx.db, NEWCOMER)!.textBody).toContain(
+      `https://ordinate.example.org/invitations/${token}`,
+    )
   })
 
   describe('with bad input', () => {
     it.each([
-      ['a malformed address', { email: 'nobody', roles: ['engineer'] }, /^email: Enter a valid e-mail address/],
+      [
+        'a malformed address',
+        { email: 'nobody', roles: ['engineer'] },
+        /^email: Enter a valid e-mail address/,
+      ],
       ['no roles', { email: NEWCOMER, roles: [] }, /^roles: Choose at least one role/],
       ['an unknown role', { email: NEWCOMER, roles: ['owner'] }, /^roles\.0:/],
       ['an unknown field', { email: NEWCOMER, roles: ['engineer'], firmId: 'x' }, /firmId/],
@@ -84,7 +100,9 @@ describe('POST /api/firm/invitations', () => {
 
   it('answers 409 for an address that is already a member of the firm', async () => {
     const admin = await ctx.signIn('admin@ordinate.test')
-    const res = await admin.post('/api/firm/invitations').send({ email: 'checker@ordinate.test', roles: ['engineer'] })
+    const res = await admin
+      .post('/api/firm/invitations')
+      .send({ email: 'checker@ordinate.test', roles: ['engineer'] })
     expect(res.status).toBe(409)
     expect(res.body.error.code).toBe('already_member')
     expect(res.body.error.message).toMatch(/already a member of this firm/)
@@ -92,7 +110,9 @@ describe('POST /api/firm/invitations', () => {
 
   it('answers 409 for an address with an account at another firm', async () => {
     const admin = await ctx.signIn('admin@ordinate.test')
-    const res = await admin.post('/api/firm/invitations').send({ email: 'outsider@ordinate.test', roles: ['engineer'] })
+    const res = await admin
+      .post('/api/firm/invitations')
+      .send({ email: 'outsider@ordinate.test', roles: ['engineer'] })
     expect(res.status).toBe(409)
     expect(res.body.error.message).toMatch(/another firm/)
   })
@@ -114,7 +134,10 @@ describe('POST /api/firm/invitations', () => {
   })
 
   it('answers 401 when signed out', async () => {
-    const res = await ctx.anonymous().post('/api/firm/invitations').send({ email: NEWCOMER, roles: ['engineer'] })
+    const res = await ctx
+      .anonymous()
+      .post('/api/firm/invitations')
+      .send({ email: NEWCOMER, roles: ['engineer'] })
     expect(res.status).toBe(401)
   })
 })
@@ -129,7 +152,9 @@ describe('GET and DELETE /api/firm/invitations', () => {
       .run()
     const outsider = await ctx.signIn('outsider@ordinate.test')
     expect((await outsider.get('/api/firm/invitations')).body).toEqual({ items: [] })
-    expect(invitationListSchema.parse((await admin.get('/api/firm/invitations')).body).items).toEqual([invitation])
+    expect(invitationListSchema.parse((await admin.get('/api/firm/invitations')).body).items).toEqual([
+      invitation,
+    ])
     expect((await outsider.delete(`/api/firm/invitations/${invitation.id}`)).status).toBe(404)
   })
 
@@ -173,7 +198,11 @@ describe('GET /api/invitations/:token', () => {
 
   it('answers 410 invitation_expired after 72 hours', async () => {
     const { invitation, token } = await invite()
-    ctx.db.update(invitations).set({ expiresAt: Date.now() - 1 }).where(eq(invitations.id, invitation.id)).run()
+    ctx.db
+      .update(invitations)
+      .set({ expiresAt: Date.now() - 1 })
+      .where(eq(invitations.id, invitation.id))
+      .run()
     const res = await request(ctx.app).get(`/api/invitations/${token}`)
     expect(res.status).toBe(410)
     expect(res.body.error.code).toBe('invitation_expired')
@@ -189,7 +218,11 @@ describe('POST /api/invitations/:token/accept', () => {
     const res = await agent.post(`/api/invitations/${token}/accept`).send(body)
     expect(res.status).toBe(201)
     const info = sessionInfoSchema.parse(res.body)
-    expect(info).toMatchObject({ user: { email: NEWCOMER, name: 'Noor Calloway' }, firm: { name: 'Halvorsen Kade Structural' }, roles: ['engineer', 'checker'] })
+    expect(info).toMatchObject({
+      user: { email: NEWCOMER, name: 'Noor Calloway' },
+      firm: { name: 'Halvorsen Kade Structural' },
+      roles: ['engineer', 'checker'],
+    })
     const cookie = String(res.headers['set-cookie'])
     expect(cookie).toMatch(/HttpOnly/i)
     expect(cookie).toMatch(/SameSite=Lax/i)
@@ -197,14 +230,19 @@ describe('POST /api/invitations/:token/accept', () => {
     const user = ctx.db.select().from(users).where(eq(users.email, NEWCOMER)).get()!
     expect(user.passwordHash).toMatch(/^\$2[aby]\$12\$/)
     expect(auditRows(ctx.db, 'invitation.accepted')).toHaveLength(1)
-    const signIn = await ctx.anonymous().post('/api/auth/sign-in').send({ email: NEWCOMER, password: body.password })
+    const signIn = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: NEWCOMER, password: body.password })
     expect(signIn.status).toBe(200)
   })
 
   it('starts a fresh session id even when the browser was signed in as someone else', async () => {
     const { token } = await invite()
     const agent = ctx.anonymous()
-    const before = await agent.post('/api/auth/sign-in').send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
+    const before = await agent
+      .post('/api/auth/sign-in')
+      .send({ email: 'engineer@ordinate.test', password: 'ordinate-demo' })
     const res = await agent.post(`/api/invitations/${token}/accept`).send(body)
     expect(res.status).toBe(201)
     expect(sid(res)).toBeTruthy()
@@ -215,7 +253,10 @@ describe('POST /api/invitations/:token/accept', () => {
   it('works only once: a second use answers 410 invitation_used', async () => {
     const { token } = await invite()
     expect((await ctx.anonymous().post(`/api/invitations/${token}/accept`).send(body)).status).toBe(201)
-    const again = await ctx.anonymous().post(`/api/invitations/${token}/accept`).send({ ...body, name: 'Someone Else' })
+    const again = await ctx
+      .anonymous()
+      .post(`/api/invitations/${token}/accept`)
+      .send({ ...body, name: 'Someone Else' })
     expect(again.status).toBe(410)
     expect(again.body.error.code).toBe('invitation_used')
     expect(ctx.db.select().from(users).where(eq(users.email, NEWCOMER)).get()?.name).toBe('Noor Calloway')
@@ -223,7 +264,11 @@ describe('POST /api/invitations/:token/accept', () => {
 
   it('answers 410 for an expired invitation and creates nobody', async () => {
     const { invitation, token } = await invite()
-    ctx.db.update(invitations).set({ expiresAt: Date.now() - 1 }).where(eq(invitations.id, invitation.id)).run()
+    ctx.db
+      .update(invitations)
+      .set({ expiresAt: Date.now() - 1 })
+      .where(eq(invitations.id, invitation.id))
+      .run()
     const res = await ctx.anonymous().post(`/api/invitations/${token}/accept`).send(body)
     expect(res.status).toBe(410)
     expect(res.body.error.code).toBe('invitation_expired')
@@ -232,7 +277,11 @@ describe('POST /api/invitations/:token/accept', () => {
 
   describe('with bad input', () => {
     it.each([
-      ['a password under 10 characters', { name: 'Noor', password: 'short-pw1' }, /^password: Use at least 10 characters/],
+      [
+        'a password under 10 characters',
+        { name: 'Noor', password: 'short-pw1' },
+        /^password: Use at least 10 characters/,
+      ],
       ['a blank name', { name: '   ', password: 'long-enough-passphrase' }, /^name: Enter your name/],
       ['an unknown field', { ...body, roles: ['admin'] }, /roles/],
     ])('responds 400 for %s and leaves the invitation usable', async (_what, bad, message) => {
@@ -245,13 +294,19 @@ describe('POST /api/invitations/:token/accept', () => {
   })
 
   it('answers 404 for an unknown token', async () => {
-    const res = await ctx.anonymous().post(`/api/invitations/${'B'.repeat(43)}/accept`).send(body)
+    const res = await ctx
+      .anonymous()
+      .post(`/api/invitations/${'B'.repeat(43)}/accept`)
+      .send(body)
     expect(res.status).toBe(404)
   })
 
   it('refuses a cross-site accept (CSRF)', async () => {
     const { token } = await invite()
-    const res = await request(ctx.app).post(`/api/invitations/${token}/accept`).set('Origin', 'https://elsewhere.example').send(body)
+    const res = await request(ctx.app)
+      .post(`/api/invitations/${token}/accept`)
+      .set('Origin', 'https://elsewhere.example')
+      .send(body)
     expect(res.status).toBe(403)
   })
 
@@ -261,9 +316,19 @@ describe('POST /api/invitations/:token/accept', () => {
     const membership = ctx.db.select().from(memberships).where(eq(memberships.userId, checkerId)).get()!
     await admin.delete(`/api/firm/members/${membership.id}`).expect(204)
     const { token } = await invite('checker@ordinate.test', ['checker'])
-    const res = await ctx.anonymous().post(`/api/invitations/${token}/accept`).send({ name: 'Tomas Verhoek', password: 'a-brand-new-password' })
+    const res = await ctx
+      .anonymous()
+      .post(`/api/invitations/${token}/accept`)
+      .send({ name: 'Tomas Verhoek', password: 'a-brand-new-password' })
     expect(res.status).toBe(201)
     expect(res.body.user.id).toBe(checkerId)
-    expect((await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })).status).toBe(401)
+    expect(
+      (
+        await ctx
+          .anonymous()
+          .post('/api/auth/sign-in')
+          .send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })
+      ).status,
+    ).toBe(401)
   })
 })

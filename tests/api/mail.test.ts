@@ -5,7 +5,12 @@ import { mailOutbox } from '../../server/db/schema.js'
 import { SmtpSink } from '../../server/mail/smtpSink.js'
 import { isLoopback } from '../../server/routes/devMailbox.js'
 import { escapeHtml, invitationMail, passwordResetMail } from '../../server/mail/templates.js'
-import { MailDispatcher, createMailTransport, defaultBackoffMs, enqueueMail } from '../../server/services/mail.js'
+import {
+  MailDispatcher,
+  createMailTransport,
+  defaultBackoffMs,
+  enqueueMail,
+} from '../../server/services/mail.js'
 import { sinkMessageListSchema } from '../../shared/schemas/devMailbox.js'
 import { closedPort } from '../support/closedPort.js'
 import { tokenFromLink } from '../support/mailbox.js'
@@ -16,7 +21,10 @@ afterEach(async () => {
   for (const clean of cleanups.splice(0).reverse()) await clean()
 })
 
-async function context(extend?: Parameters<typeof createTestContext>[0], env?: NodeJS.ProcessEnv): Promise<TestContext> {
+async function context(
+  extend?: Parameters<typeof createTestContext>[0],
+  env?: NodeJS.ProcessEnv,
+): Promise<TestContext> {
   const ctx = await createTestContext(extend, env)
   cleanups.push(() => ctx.close())
   return ctx
@@ -28,21 +36,44 @@ async function sink(port?: number): Promise<SmtpSink> {
   return s
 }
 
-function dispatcher(ctx: TestContext, smtpUrl: string, now?: () => number, maxAttempts?: number): MailDispatcher {
-  const d = new MailDispatcher({ db: ctx.db, transport: createMailTransport(smtpUrl), from: 'Ordinate <no-reply@ordinate.test>', now, maxAttempts })
+function dispatcher(
+  ctx: TestContext,
+  smtpUrl: string,
+  now?: () => number,
+  maxAttempts?: number,
+): MailDispatcher {
+  const d = new MailDispatcher({
+    db: ctx.db,
+    transport: createMailTransport(smtpUrl),
+    from: 'Ordinate <no-reply@ordinate.test>',
+    now,
+    maxAttempts,
+  })
   cleanups.push(() => d.stop())
   return d
 }
 
-const outboxRow = (ctx: TestContext, id: string) => ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, id)).get()!
-const sample = { to: 'someone@ordinate.test', subject: 'Test message', text: 'Plain text body.\n', html: '<p>HTML body.</p>' }
+const outboxRow = (ctx: TestContext, id: string) =>
+  ctx.db.select().from(mailOutbox).where(eq(mailOutbox.id, id)).get()!
+const sample = {
+  to: 'someone@ordinate.test',
+  subject: 'Test message',
+  text: 'Plain text body.\n',
+  html: '<p>HTML body.</p>',
+}
 
 describe('enqueueMail', () => {
   it('writes a queued row due now and sends nothing', async () => {
     const ctx = await context()
     const id = enqueueMail(ctx.db, sample)
     const row = outboxRow(ctx, id)
-    expect(row).toMatchObject({ toAddress: sample.to, subject: sample.subject, status: 'queued', attempts: 0, sentAt: null })
+    expect(row).toMatchObject({
+      toAddress: sample.to,
+      subject: sample.subject,
+      status: 'queued',
+      attempts: 0,
+      sentAt: null,
+    })
     expect(row.nextAttemptAt).toBeLessThanOrEqual(Date.now())
   })
 })
@@ -54,7 +85,11 @@ describe('MailDispatcher', () => {
     const id = enqueueMail(ctx.db, sample)
     expect(await dispatcher(ctx, s.url).dispatchOnce()).toEqual({ sent: 1, retried: 0, failed: 0 })
     const [received] = s.messages()
-    expect(received).toMatchObject({ to: ['someone@ordinate.test'], subject: 'Test message', text: 'Plain text body.\n' })
+    expect(received).toMatchObject({
+      to: ['someone@ordinate.test'],
+      subject: 'Test message',
+      text: 'Plain text body.\n',
+    })
     expect(received?.from).toMatch(/no-reply@ordinate\.test/)
     expect(outboxRow(ctx, id)).toMatchObject({ status: 'sent', attempts: 1, lastError: null })
     expect(await dispatcher(ctx, s.url).dispatchOnce()).toEqual({ sent: 0, retried: 0, failed: 0 })
@@ -66,7 +101,9 @@ describe('MailDispatcher', () => {
     const ctx = await context()
     const d = dispatcher(ctx, `smtp://127.0.0.1:${port}`, () => clock)
     const admin = await ctx.signIn('admin@ordinate.test')
-    const invited = await admin.post('/api/firm/invitations').send({ email: 'later@ordinate.test', roles: ['checker'] })
+    const invited = await admin
+      .post('/api/firm/invitations')
+      .send({ email: 'later@ordinate.test', roles: ['checker'] })
     expect(invited.status).toBe(201)
 
     clock = Date.now()
@@ -137,7 +174,13 @@ describe('mail content', () => {
 
   it('names the product, and carries no images, remote resources or tracking', () => {
     for (const mail of [
-      invitationMail({ firmName: 'F', inviterName: 'I', roles: ['admin'], url: 'http://h/invitations/t', expiresAt: 0 }),
+      invitationMail({
+        firmName: 'F',
+        inviterName: 'I',
+        roles: ['admin'],
+        url: 'http://h/invitations/t',
+        expiresAt: 0,
+      }),
       passwordResetMail({ name: 'N', url: 'http://h/reset-password/t', expiresAt: 0 }),
     ]) {
       expect(mail.subject).toMatch(/Ordinate/)
@@ -160,7 +203,12 @@ describe('GET /api/dev/mailbox', () => {
   })
 
   it('answers loopback clients only, judged by the socket address', () => {
-    expect(['127.0.0.1', '127.8.9.10', '::1', '::ffff:127.0.0.1'].map(isLoopback)).toEqual([true, true, true, true])
+    expect(['127.0.0.1', '127.8.9.10', '::1', '::ffff:127.0.0.1'].map(isLoopback)).toEqual([
+      true,
+      true,
+      true,
+      true,
+    ])
     expect(['10.0.0.2', '192.168.1.5', '::ffff:10.1.2.3', 'fe80::1', '', undefined].map(isLoopback)).toEqual([
       false,
       false,
@@ -173,9 +221,12 @@ describe('GET /api/dev/mailbox', () => {
 
   it('is not there in production, even with a sink', async () => {
     const s = await sink()
-    const ctx = await context((deps) => {
-      deps.devMailbox = s
-    }, { NODE_ENV: 'production', DEMO_DATA: '1' })
+    const ctx = await context(
+      (deps) => {
+        deps.devMailbox = s
+      },
+      { NODE_ENV: 'production', DEMO_DATA: '1' },
+    )
     expect((await request(ctx.app).get('/api/dev/mailbox')).status).toBe(404)
   })
 
@@ -186,7 +237,10 @@ describe('GET /api/dev/mailbox', () => {
     })
     const d = dispatcher(ctx, s.url)
     const admin = await ctx.signIn('admin@ordinate.test')
-    await admin.post('/api/firm/invitations').send({ email: 'fresh@ordinate.test', roles: ['engineer'] }).expect(201)
+    await admin
+      .post('/api/firm/invitations')
+      .send({ email: 'fresh@ordinate.test', roles: ['engineer'] })
+      .expect(201)
     expect((await d.dispatchOnce()).sent).toBe(1)
 
     const res = await request(ctx.app).get('/api/dev/mailbox')
@@ -200,7 +254,10 @@ describe('GET /api/dev/mailbox', () => {
     const token = tokenFromLink(link!, '/invitations/')
     const invitee = ctx.anonymous()
     expect((await invitee.get(`/api/invitations/${token}`)).body.email).toBe('fresh@ordinate.test')
-    await invitee.post(`/api/invitations/${token}/accept`).send({ name: 'Fresh Face', password: 'fresh-face-password' }).expect(201)
+    await invitee
+      .post(`/api/invitations/${token}/accept`)
+      .send({ name: 'Fresh Face', password: 'fresh-face-password' })
+      .expect(201)
     expect((await invitee.get('/api/me')).body.user.email).toBe('fresh@ordinate.test')
   })
 
@@ -210,11 +267,23 @@ describe('GET /api/dev/mailbox', () => {
       deps.devMailbox = s
     })
     const d = dispatcher(ctx, s.url)
-    await ctx.anonymous().post('/api/auth/password-reset').send({ email: 'checker@ordinate.test' }).expect(202)
+    await ctx
+      .anonymous()
+      .post('/api/auth/password-reset')
+      .send({ email: 'checker@ordinate.test' })
+      .expect(202)
     await d.dispatchOnce()
     const message = await s.waitFor((m) => m.to.includes('checker@ordinate.test'))
     const token = tokenFromLink(message.text, '/reset-password/')
-    await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: 'checker-new-pass' }).expect(204)
-    await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: 'checker-new-pass' }).expect(410)
+    await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: 'checker-new-pass' })
+      .expect(204)
+    await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: 'checker-new-pass' })
+      .expect(410)
   })
 })

@@ -32,7 +32,11 @@ describe('GET /api/firm/members', () => {
     const res = await admin.get('/api/firm/members')
     expect(res.status).toBe(200)
     const { items } = memberListSchema.parse(res.body)
-    expect(items.map((m) => m.email).sort()).toEqual(['admin@ordinate.test', 'checker@ordinate.test', 'engineer@ordinate.test'])
+    expect(items.map((m) => m.email).sort()).toEqual([
+      'admin@ordinate.test',
+      'checker@ordinate.test',
+      'engineer@ordinate.test',
+    ])
     expect(items.find((m) => m.email === 'checker@ordinate.test')?.roles).toEqual(['checker'])
     expect(JSON.stringify(res.body)).not.toMatch(/passwordHash|password_hash/)
   })
@@ -72,7 +76,9 @@ describe('PATCH /api/firm/members/:id', () => {
       ['no body', undefined, /expected object/],
     ])('responds 400 for %s', async (_what, body, message) => {
       const admin = await ctx.signIn('admin@ordinate.test')
-      const res = await admin.patch(`/api/firm/members/${membershipIdOf('engineer@ordinate.test')}`).send(body)
+      const res = await admin
+        .patch(`/api/firm/members/${membershipIdOf('engineer@ordinate.test')}`)
+        .send(body)
       expect(res.status).toBe(400)
       expect(res.body.error.code).toBe('invalid_input')
       expect(res.body.error.message).toMatch(message)
@@ -97,13 +103,17 @@ describe('PATCH /api/firm/members/:id', () => {
 
   it('answers 404 for an id that belongs to nobody', async () => {
     const admin = await ctx.signIn('admin@ordinate.test')
-    const res = await admin.patch('/api/firm/members/00000000-0000-4000-8000-000000000000').send({ roles: ['checker'] })
+    const res = await admin
+      .patch('/api/firm/members/00000000-0000-4000-8000-000000000000')
+      .send({ roles: ['checker'] })
     expect(res.status).toBe(404)
   })
 
   it('refuses non-admins with 403 naming the admin role', async () => {
     const checker = await ctx.signIn('checker@ordinate.test')
-    const res = await checker.patch(`/api/firm/members/${membershipIdOf('checker@ordinate.test')}`).send({ roles: ['admin'] })
+    const res = await checker
+      .patch(`/api/firm/members/${membershipIdOf('checker@ordinate.test')}`)
+      .send({ roles: ['admin'] })
     expect(res.status).toBe(403)
     expect(res.body.error.message).toMatch(/admin role/)
   })
@@ -121,15 +131,22 @@ describe('PATCH /api/firm/members/:id', () => {
 
     it('allows it once another member is an admin too', async () => {
       const admin = await ctx.signIn('admin@ordinate.test')
-      await admin.patch(`/api/firm/members/${membershipIdOf('checker@ordinate.test')}`).send({ roles: ['checker', 'admin'] }).expect(200)
-      const res = await admin.patch(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`).send({ roles: ['engineer'] })
+      await admin
+        .patch(`/api/firm/members/${membershipIdOf('checker@ordinate.test')}`)
+        .send({ roles: ['checker', 'admin'] })
+        .expect(200)
+      const res = await admin
+        .patch(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`)
+        .send({ roles: ['engineer'] })
       expect(res.status).toBe(200)
       expect((await admin.get('/api/firm/members')).status).toBe(403)
     })
 
     it('may add roles while keeping admin', async () => {
       const admin = await ctx.signIn('admin@ordinate.test')
-      const res = await admin.patch(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`).send({ roles: ['admin', 'engineer'] })
+      const res = await admin
+        .patch(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`)
+        .send({ roles: ['admin', 'engineer'] })
       expect(res.status).toBe(200)
       expect(res.body.roles).toEqual(['engineer', 'admin'])
     })
@@ -143,7 +160,10 @@ describe('DELETE /api/firm/members/:id', () => {
     const id = membershipIdOf('checker@ordinate.test')
     expect((await admin.delete(`/api/firm/members/${id}`)).status).toBe(204)
     expect((await checker.get('/api/me')).status).toBe(401)
-    const signIn = await ctx.anonymous().post('/api/auth/sign-in').send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })
+    const signIn = await ctx
+      .anonymous()
+      .post('/api/auth/sign-in')
+      .send({ email: 'checker@ordinate.test', password: 'ordinate-demo' })
     expect(signIn.status).toBe(401)
     const { items } = memberListSchema.parse((await admin.get('/api/firm/members')).body)
     expect(items.map((m) => m.email)).not.toContain('checker@ordinate.test')
@@ -168,8 +188,13 @@ describe('DELETE /api/firm/members/:id', () => {
 
   it('lets an admin leave when another admin remains', async () => {
     const admin = await ctx.signIn('admin@ordinate.test')
-    await admin.patch(`/api/firm/members/${membershipIdOf('engineer@ordinate.test')}`).send({ roles: ['engineer', 'admin'] }).expect(200)
-    expect((await admin.delete(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`)).status).toBe(204)
+    await admin
+      .patch(`/api/firm/members/${membershipIdOf('engineer@ordinate.test')}`)
+      .send({ roles: ['engineer', 'admin'] })
+      .expect(200)
+    expect((await admin.delete(`/api/firm/members/${membershipIdOf('admin@ordinate.test')}`)).status).toBe(
+      204,
+    )
     expect((await admin.get('/api/me')).status).toBe(401)
   })
 

@@ -19,11 +19,15 @@ async function requestReset(email = ENGINEER): Promise<string> {
   return tokenFromLink(latestMailTo(ctx.db, email)!.textBody, '/reset-password/')
 }
 
-const signIn = (email: string, password: string) => ctx.anonymous().post('/api/auth/sign-in').send({ email, password })
+const signIn = (email: string, password: string) =>
+  ctx.anonymous().post('/api/auth/sign-in').send({ email, password })
 
 describe('POST /api/auth/password-reset', () => {
   it('answers 202 and queues a reset link for a member', async () => {
-    const res = await ctx.anonymous().post('/api/auth/password-reset').send({ email: ' Engineer@Ordinate.test' })
+    const res = await ctx
+      .anonymous()
+      .post('/api/auth/password-reset')
+      .send({ email: ' Engineer@Ordinate.test' })
     expect(res.status).toBe(202)
     const mail = latestMailTo(ctx.db, ENGINEER)!
     expect(mail.subject).toBe('Reset your Ordinate password')
@@ -38,10 +42,19 @@ describe('POST /api/auth/password-reset', () => {
 
   it('answers exactly the same for an unknown address, and queues nothing', async () => {
     const known = await ctx.anonymous().post('/api/auth/password-reset').send({ email: ENGINEER })
-    const unknown = await ctx.anonymous().post('/api/auth/password-reset').send({ email: 'nobody@ordinate.test' })
+    const unknown = await ctx
+      .anonymous()
+      .post('/api/auth/password-reset')
+      .send({ email: 'nobody@ordinate.test' })
     expect(unknown.status).toBe(202)
     expect(unknown.body).toEqual(known.body)
-    expect(ctx.db.select().from(mailOutbox).all().map((m) => m.toAddress)).toEqual([ENGINEER])
+    expect(
+      ctx.db
+        .select()
+        .from(mailOutbox)
+        .all()
+        .map((m) => m.toAddress),
+    ).toEqual([ENGINEER])
   })
 
   it.each([
@@ -58,7 +71,10 @@ describe('POST /api/auth/password-reset/:token', () => {
   it('sets the new password, answers 204 and signs the member out everywhere', async () => {
     const session = await ctx.signIn(ENGINEER)
     const token = await requestReset()
-    const res = await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD })
+    const res = await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: NEW_PASSWORD })
     expect(res.status).toBe(204)
     expect((await session.get('/api/me')).status).toBe(401)
     expect((await signIn(ENGINEER, 'ordinate-demo')).status).toBe(401)
@@ -70,8 +86,15 @@ describe('POST /api/auth/password-reset/:token', () => {
 
   it('works only once: a second use answers 410 reset_used', async () => {
     const token = await requestReset()
-    await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD }).expect(204)
-    const again = await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: 'another-password-99' })
+    await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: NEW_PASSWORD })
+      .expect(204)
+    const again = await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: 'another-password-99' })
     expect(again.status).toBe(410)
     expect(again.body.error.code).toBe('reset_used')
     expect((await signIn(ENGINEER, NEW_PASSWORD)).status).toBe(200)
@@ -80,37 +103,68 @@ describe('POST /api/auth/password-reset/:token', () => {
   it('spends the other outstanding links of the same member too', async () => {
     const older = await requestReset()
     const newer = await requestReset()
-    await ctx.anonymous().post(`/api/auth/password-reset/${newer}`).send({ password: NEW_PASSWORD }).expect(204)
-    expect((await ctx.anonymous().post(`/api/auth/password-reset/${older}`).send({ password: 'another-password-99' })).status).toBe(410)
+    await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${newer}`)
+      .send({ password: NEW_PASSWORD })
+      .expect(204)
+    expect(
+      (
+        await ctx
+          .anonymous()
+          .post(`/api/auth/password-reset/${older}`)
+          .send({ password: 'another-password-99' })
+      ).status,
+    ).toBe(410)
   })
 
   it('answers 410 reset_expired after an hour and keeps the old password', async () => {
     const token = await requestReset()
-    ctx.db.update(passwordResets).set({ expiresAt: Date.now() - 1 }).run()
-    const res = await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD })
+    ctx.db
+      .update(passwordResets)
+      .set({ expiresAt: Date.now() - 1 })
+      .run()
+    const res = await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: NEW_PASSWORD })
     expect(res.status).toBe(410)
     expect(res.body.error.code).toBe('reset_expired')
     expect((await signIn(ENGINEER, 'ordinate-demo')).status).toBe(200)
   })
 
   it('answers 404 for a token nobody issued', async () => {
-    const res = await ctx.anonymous().post(`/api/auth/password-reset/${'C'.repeat(43)}`).send({ password: NEW_PASSWORD })
+    const res = await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${'C'.repeat(43)}`)
+      .send({ password: NEW_PASSWORD })
     expect(res.status).toBe(404)
   })
 
   it('answers 400 for a password under 10 characters and leaves the link usable', async () => {
     const token = await requestReset()
-    const res = await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: '123456789' })
+    const res = await ctx
+      .anonymous()
+      .post(`/api/auth/password-reset/${token}`)
+      .send({ password: '123456789' })
     expect(res.status).toBe(400)
     expect(res.body.error.message).toMatch(/^password: Use at least 10 characters/)
-    expect((await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD })).status).toBe(204)
+    expect(
+      (await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD }))
+        .status,
+    ).toBe(204)
   })
 
   it('is spent when the member leaves the firm', async () => {
     const token = await requestReset('checker@ordinate.test')
     const admin = await ctx.signIn('admin@ordinate.test')
     const members = (await admin.get('/api/firm/members')).body.items as { id: string; email: string }[]
-    await admin.delete(`/api/firm/members/${members.find((m) => m.email === 'checker@ordinate.test')!.id}`).expect(204)
-    expect((await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD })).status).toBe(410)
+    await admin
+      .delete(`/api/firm/members/${members.find((m) => m.email === 'checker@ordinate.test')!.id}`)
+      .expect(204)
+    expect(
+      (await ctx.anonymous().post(`/api/auth/password-reset/${token}`).send({ password: NEW_PASSWORD }))
+        .status,
+    ).toBe(410)
   })
 })

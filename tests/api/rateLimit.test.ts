@@ -64,7 +64,8 @@ describe('sign-in rate limit', () => {
 })
 
 describe('password-reset rate limit', () => {
-  const ask = (address: string, email: string) => from(address).post('/api/auth/password-reset').send({ email })
+  const ask = (address: string, email: string) =>
+    from(address).post('/api/auth/password-reset').send({ email })
 
   it('limits an address with an account and one without in exactly the same way', async () => {
     ctx = await createTestContext(() => {}, ENV)
@@ -79,13 +80,15 @@ describe('password-reset rate limit', () => {
 
   it('limits one e-mail asked for from many client addresses', async () => {
     ctx = await createTestContext(() => {}, ENV)
-    for (let i = 1; i <= 3; i++) expect((await ask(`192.0.2.${10 + i}`, 'checker@ordinate.test')).status).toBe(202)
+    for (let i = 1; i <= 3; i++)
+      expect((await ask(`192.0.2.${10 + i}`, 'checker@ordinate.test')).status).toBe(202)
     expect429(await ask('192.0.2.99', 'checker@ordinate.test'))
   })
 
   it('limits one client address asking for many e-mails', async () => {
     ctx = await createTestContext(() => {}, ENV)
-    for (let i = 1; i <= 3; i++) expect((await ask('192.0.2.50', `person${i}@ordinate.test`)).status).toBe(202)
+    for (let i = 1; i <= 3; i++)
+      expect((await ask('192.0.2.50', `person${i}@ordinate.test`)).status).toBe(202)
     expect429(await ask('192.0.2.50', 'person4@ordinate.test'))
   })
 })

@@ -236,16 +236,14 @@ describe('who may do what', () => {
   })
 
   it('an engineer or an admin cannot decide (403 naming the checker role)', async () => {
-    const submitted = await engineer
-      .post('/api/reviews')
-      .send({
-        subjectType: 'comparison',
-        subjectId: (
-          await engineer
-            .post('/api/comparisons')
-            .send({ name: 'Solo', runIds: [engineerRun], dampingRatio: 0.05 })
-        ).body.comparison.id,
-      })
+    const submitted = await engineer.post('/api/reviews').send({
+      subjectType: 'comparison',
+      subjectId: (
+        await engineer
+          .post('/api/comparisons')
+          .send({ name: 'Solo', runIds: [engineerRun], dampingRatio: 0.05 })
+      ).body.comparison.id,
+    })
     for (const agent of [engineer, admin]) {
       const res = await agent.post(`/api/reviews/${submitted.body.id}/decision`).send({ decision: 'checked' })
       expect(res.status).toBe(403)

@@ -55,16 +55,14 @@ describe('POST /api/targets/preview', () => {
     it('answers Se with η from the damping ratio and null beyond 4 s', async () => {
       // Type 1, ground C: S = 1.15, TC = 0.6. ag = 0.3 g, ξ = 10% → η = √(10/15) = 0.816497.
       // T = 0.4 (plateau): 2.5·0.3·1.15·0.816497 = 0.704229 g; T = 5 s: undefined.
-      const res = await engineer
-        .post('/api/targets/preview')
-        .send({
-          kind: 'en1998-1',
-          spectrumType: 1,
-          groundType: 'C',
-          agG: 0.3,
-          dampingRatio: 0.1,
-          periodsS: [0.4, 5],
-        })
+      const res = await engineer.post('/api/targets/preview').send({
+        kind: 'en1998-1',
+        spectrumType: 1,
+        groundType: 'C',
+        agG: 0.3,
+        dampingRatio: 0.1,
+        periodsS: [0.4, 5],
+      })
       expect(res.status).toBe(200)
       expect(res.body.saG[0]).toBeCloseTo(0.704229, 5)
       expect(res.body.saG[1]).toBeNull()
@@ -144,12 +142,10 @@ describe('POST /api/targets/preview', () => {
 
 describe('POST /api/targets and GET /api/targets', () => {
   it('saves a target in the default project for an engineer', async () => {
-    const res = await engineer
-      .post('/api/targets')
-      .send({
-        name: 'Site design spectrum',
-        definition: { kind: 'asce7-two-period', sdsG: 1.1, sd1G: 0.55, tlS: 8 },
-      })
+    const res = await engineer.post('/api/targets').send({
+      name: 'Site design spectrum',
+      definition: { kind: 'asce7-two-period', sdsG: 1.1, sd1G: 0.55, tlS: 8 },
+    })
     expect(res.status).toBe(201)
     expect(res.body.projectId).toBe(ctx.seed.projectIds[0])
     expect(res.body.definition).toEqual({
@@ -164,12 +160,10 @@ describe('POST /api/targets and GET /api/targets', () => {
   })
 
   it('saves a CSV target as its points for a checker', async () => {
-    const res = await checker
-      .post('/api/targets')
-      .send({
-        name: 'Uploaded multi-period',
-        definition: { kind: 'user-csv', csv: '0.1,0.6\n1,0.3\n4,0.05\n', source: 'site.csv' },
-      })
+    const res = await checker.post('/api/targets').send({
+      name: 'Uploaded multi-period',
+      definition: { kind: 'user-csv', csv: '0.1,0.6\n1,0.3\n4,0.05\n', source: 'site.csv' },
+    })
     expect(res.status).toBe(201)
     expect(res.body.definition).toEqual({
       kind: 'user',
@@ -192,13 +186,11 @@ describe('POST /api/targets and GET /api/targets', () => {
 
   it('keeps firms apart: the outsider sees none, and another firm’s project answers 404', async () => {
     expect((await outsider.get('/api/targets')).body.items).toEqual([])
-    const res = await outsider
-      .post('/api/targets')
-      .send({
-        name: 'x',
-        projectId: ctx.seed.projectIds[0],
-        definition: { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.5, tlS: 8 },
-      })
+    const res = await outsider.post('/api/targets').send({
+      name: 'x',
+      projectId: ctx.seed.projectIds[0],
+      definition: { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.5, tlS: 8 },
+    })
     expect(res.status).toBe(404)
   })
 

@@ -4,7 +4,12 @@ import { auditLog, mailOutbox } from '../../server/db/schema.js'
 
 /** The newest queued or sent message to an address, straight from the outbox. */
 export function latestMailTo(db: Db, to: string) {
-  return db.select().from(mailOutbox).where(eq(mailOutbox.toAddress, to)).orderBy(desc(mailOutbox.createdAt)).all()[0]
+  return db
+    .select()
+    .from(mailOutbox)
+    .where(eq(mailOutbox.toAddress, to))
+    .orderBy(desc(mailOutbox.createdAt))
+    .all()[0]
 }
 
 /** The token of the first link in `text` whose path starts with `prefix` (e.g. '/invitations/'). */
@@ -19,6 +24,10 @@ export function auditRows(db: Db, action: string, subjectId?: string) {
   return db
     .select()
     .from(auditLog)
-    .where(subjectId ? and(eq(auditLog.action, action), eq(auditLog.subjectId, subjectId)) : eq(auditLog.action, action))
+    .where(
+      subjectId
+        ? and(eq(auditLog.action, action), eq(auditLog.subjectId, subjectId))
+        : eq(auditLog.action, action),
+    )
     .all()
 }

@@ -60,7 +60,8 @@ export async function createTestContext(
     async signIn(email, password = DEMO_PASSWORD) {
       const agent = withCsrf(request.agent(app))
       const res = await agent.post('/api/auth/sign-in').send({ email, password })
-      if (res.status !== 200) throw new Error(`sign-in as ${email} failed: ${res.status} ${JSON.stringify(res.body)}`)
+      if (res.status !== 200)
+        throw new Error(`sign-in as ${email} failed: ${res.status} ${JSON.stringify(res.body)}`)
       return agent
     },
     close() {
