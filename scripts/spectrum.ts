@@ -9,6 +9,7 @@
  * stderr with the reason and the line, and the exit status is non-zero:
  * 1 when the record or periods file cannot be used, 2 for a bad command line.
  */
+import { CAUTION } from '../shared/cautions.js'
 import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
 import { basename } from 'node:path'
@@ -26,9 +27,6 @@ import type { SpectrumResult } from '../shared/schemas/spectrum.js'
 const USAGE = `usage: npm run spectrum -- <file> [--units g|m/s2|cm/s2|in/s2] [--dt SECONDS]
     [--damping 0.02,0.05] [--periods MIN:MAX:COUNT | --periods-file FILE]
     [--method newmark-average|newmark-linear|piecewise-exact] [--format csv|json]`
-
-const CAUTION =
-  'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.'
 
 /** A problem the user can fix; `exitCode` 2 means the command line itself. */
 class CliError extends Error {

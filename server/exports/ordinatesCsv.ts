@@ -3,6 +3,7 @@
  * numbers, a header row, then one row per period (ascending). Numbers are written in full
  * (shortest round-trip form), so the file holds exactly what the API answers.
  */
+import { CAUTION } from '../../shared/cautions.js'
 import type { RunSpectrumLike } from '../../shared/charts/runSpectrumChartInput.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { Sheet } from '../../shared/schemas/sheets.js'
@@ -26,7 +27,7 @@ function provenance(sheet: Sheet, extra: string[]): string[] {
     `${sheet.reference} revision ${sheet.revision}; ${sheet.dateLabel} ${sheet.dateText}; ${sheet.review.stateLabel}`,
     `${sheet.firmName}; ${sheet.projectName}`,
     ...extra,
-    'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.',
+    CAUTION,
   ].map((line) => `# ${line.replace(/[\r\n]+/g, ' ')}`)
 }
 

@@ -3,6 +3,7 @@
  * the review block and the cautions. Pure functions of their inputs, so a sheet built twice
  * from the same data is the same sheet.
  */
+import { CAUTION } from '../../shared/cautions.js'
 import { readFileSync } from 'node:fs'
 import path from 'node:path'
 import { z } from 'zod'
@@ -23,7 +24,7 @@ export function ordinateVersion(): string {
 
 /** The cautions of DOMAIN.md, printed on every sheet. */
 export const SHEET_CAUTIONS: readonly string[] = [
-  'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.',
+  CAUTION,
   'Every value on this sheet follows from the record and the settings stated above; check that they are the ones intended, including units, baseline and the usable period band of a filtered record.',
   'Meeting a scaling rule or a target does not make a record suitable for the site.',
 ]

@@ -1,3 +1,4 @@
+import { CAUTION } from '../../shared/cautions.js'
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import { z } from 'zod'
 import type {
@@ -39,8 +40,8 @@ type PreviewInput = z.output<typeof previewComparisonBodySchema>
 type UpdateInput = z.output<typeof updateComparisonBodySchema>
 
 export const COMPARISON_CAUTION =
-  'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern. ' +
-  'The scaling rule shown is a stated calculation, not a claim of compliance with any code clause, and passing it does not make a record suitable for the site.'
+  CAUTION +
+  ' The scaling rule shown is a stated calculation, not a claim of compliance with any code clause, and passing it does not make a record suitable for the site.'
 
 const COMBINATION_NAMES: Record<Combination, string> = {
   geomean: 'geometric mean of the two components',

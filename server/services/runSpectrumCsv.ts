@@ -1,3 +1,4 @@
+import { CAUTION } from '../../shared/cautions.js'
 import { and, eq } from 'drizzle-orm'
 import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
@@ -6,8 +7,7 @@ import { records } from '../db/schema.js'
 import { ordinateVersion } from '../exports/sheetParts.js'
 import { getRunSpectrum } from './runs.js'
 
-export const CSV_CAUTION =
-  'Ordinate is a calculation aid; the licensed engineer of record is responsible for its use; the locally adopted code and edition govern.'
+export const CSV_CAUTION = CAUTION
 
 /** The ordinate columns, with their units in the names. */
 export const CSV_ORDINATE_COLUMNS = [
