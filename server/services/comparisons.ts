@@ -1,3 +1,4 @@
+import { parseStored } from '../db/parseStored.js'
 import { CAUTION } from '../../shared/cautions.js'
 import { and, desc, eq, inArray, sql } from 'drizzle-orm'
 import { z } from 'zod'
@@ -92,8 +93,8 @@ function toSummary(row: SummaryRow, reviewState: ComparisonSummary['reviewState'
   const { createdById, createdByName, target, scaling, ...rest } = row
   return {
     ...rest,
-    target: target ? storedTargetSchema.parse(target) : null,
-    scaling: scaling ? storedScalingSchema.parse(scaling) : null,
+    target: target ? parseStored(storedTargetSchema, target, 'comparison target') : null,
+    scaling: scaling ? parseStored(storedScalingSchema, scaling, 'comparison scaling') : null,
     reviewState,
     createdBy: { id: createdById, name: createdByName },
   }

@@ -3,6 +3,7 @@
  * CSV files made from it. Firm-scoped (another firm's id answers 404) and recorded in the
  * audit log, with a digest of the file handed out.
  */
+import { parseStored } from '../db/parseStored.js'
 import { createHash } from 'node:crypto'
 import { aliasedTable, and, eq } from 'drizzle-orm'
 import { z } from 'zod'
@@ -116,7 +117,7 @@ function loadRunSheet(
     throw conflict('Only a run that has succeeded has a spectrum to export.', 'run_not_finished')
   }
   const { subjectName, records: recordList } = runRecords(db, firmId, row)
-  const spectrum = spectrumResultSchema.parse(row.result)
+  const spectrum = parseStored(spectrumResultSchema, row.result, 'spectrum')
   const sheet = buildRunSheetFromFacts({
     productVersion: ordinateVersion(),
     firmName: row.firmName,
@@ -190,7 +191,10 @@ function loadComparisonSheet(db: Db, firmId: string, id: string): { sheet: Sheet
       .get()
     if (!run) throw notFound(`The run ${curve.runId}`)
     recordsByRun.set(curve.runId, runRecords(db, firmId, run).records)
-    warningsByRun.set(curve.runId, spectrumWarningsSchema.parse(run.result ?? {}).warnings ?? [])
+    warningsByRun.set(
+      curve.runId,
+      parseStored(spectrumWarningsSchema, run.result ?? {}, 'spectrum warnings').warnings ?? [],
+    )
   }
   const sheet = buildComparisonSheetFromFacts({
     productVersion: ordinateVersion(),

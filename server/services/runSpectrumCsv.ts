@@ -1,3 +1,4 @@
+import { parseStored } from '../db/parseStored.js'
 import { CAUTION } from '../../shared/cautions.js'
 import { and, eq } from 'drizzle-orm'
 import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
@@ -38,7 +39,7 @@ const percent = (ratio: number) => `${Number((ratio * 100).toPrecision(6))}%`
  */
 export function runSpectrumCsv(db: Db, firmId: string, runId: string): { fileName: string; text: string } {
   const { run, result } = getRunSpectrum(db, firmId, runId)
-  const spectrum = spectrumResultSchema.parse(result)
+  const spectrum = parseStored(spectrumResultSchema, result, 'spectrum')
   const record = run.recordId
     ? db
         .select({
