@@ -1,38 +1,19 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { describe, expect, it } from 'vitest'
 import { creditPacks } from '../../shared/credits/creditPacks.js'
-import {
-  type Browser,
-  type RunningServer,
-  artifactPath,
-  demoMembers,
-  launchBrowser,
-  signInThroughForm,
-  startServer,
-} from './harness.js'
+import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
 
-let server: RunningServer
-let browser: Browser
-
-beforeAll(async () => {
-  // No STRIPE_* settings: the server starts stripe-stateful-mock in-process, as on a fresh machine.
-  server = await startServer()
-  browser = await launchBrowser()
-})
-
-afterAll(async () => {
-  await browser?.close()
-  await server?.stop()
-})
+// No STRIPE_* settings: the server starts stripe-stateful-mock in-process, as on a fresh machine.
+const env = useBrowserTestEnvironment()
 
 const small = creditPacks[0]
 
 describe('the credits page', () => {
   it('lets the admin buy a pack with a test card, and the balance goes up by its credits', async () => {
-    expect(server.output()).toMatch(
+    expect(env.server.output()).toMatch(
       /Payments: test mode, through in-process Stripe mock at http:\/\/127\.0\.0\.1:\d+/,
     )
-    const page = await browser.newPage()
-    await signInThroughForm(page, server.url, demoMembers.admin.email)
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.admin.email)
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Credits' }).click()
     await page.waitForURL((u) => u.pathname === '/credits')
 
@@ -70,9 +51,9 @@ describe('the credits page', () => {
   })
 
   it('shows an engineer the balance and who can buy, with no card form', async () => {
-    const page = await browser.newPage()
-    await signInThroughForm(page, server.url, demoMembers.engineer.email)
-    await page.goto(`${server.url}/credits`)
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
+    await page.goto(`${env.server.url}/credits`)
     await page.locator('[data-test="credit-balance"]').waitFor()
     await page.locator('[data-test="ledger-table"]').waitFor()
     expect(await page.getByText('Only your firm’s admin can buy credits.').isVisible()).toBe(true)

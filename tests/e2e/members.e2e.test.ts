@@ -1,32 +1,13 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import {
-  type Browser,
-  type RunningServer,
-  artifactPath,
-  demoMembers,
-  launchBrowser,
-  signInThroughForm,
-  startServer,
-} from './harness.js'
+import { describe, expect, it } from 'vitest'
+import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
 
-let server: RunningServer
-let browser: Browser
-
-beforeAll(async () => {
-  // No SMTP_URL: the server starts its local SMTP sink and the development mailbox.
-  server = await startServer()
-  browser = await launchBrowser()
-})
-
-afterAll(async () => {
-  await browser?.close()
-  await server?.stop()
-})
+// No SMTP_URL: the server starts its local SMTP sink and the development mailbox.
+const env = useBrowserTestEnvironment()
 
 describe('inviting a member by e-mail', () => {
   it('admin invites, the mail arrives in the dev mailbox, the invitee accepts and lands signed in', async () => {
-    const page = await browser.newPage()
-    await signInThroughForm(page, server.url, demoMembers.admin.email)
+    const page = await env.browser.newPage()
+    await signInThroughForm(page, env.server.url, demoMembers.admin.email)
 
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Members' }).click()
     await page.getByRole('heading', { name: 'Members', level: 1 }).waitFor()
@@ -43,7 +24,7 @@ describe('inviting a member by e-mail', () => {
     await page.getByRole('button', { name: 'Sign out' }).click()
     await page.waitForURL(/\/sign-in/)
 
-    await page.goto(`${server.url}/dev/mailbox`)
+    await page.goto(`${env.server.url}/dev/mailbox`)
     await page.getByRole('heading', { name: 'Development mailbox' }).waitFor()
     const subject = page.getByText('Ruth Okonkwo-Baines invited you to Halvorsen Kade Structural on Ordinate')
     await subject.waitFor({ timeout: 15_000 })
