@@ -340,6 +340,11 @@ export function claimNextRun(db: Db): ClaimedRun | undefined {
   )
 }
 
+/** Whether any run is waiting in the queue (the queue splits a run only when none is). */
+export function hasQueuedRuns(db: Db): boolean {
+  return db.select({ id: runs.id }).from(runs).where(eq(runs.status, 'queued')).limit(1).get() !== undefined
+}
+
 const owns = (run: Pick<ClaimedRun, 'id' | 'attempt'>) =>
   and(eq(runs.id, run.id), eq(runs.status, 'running'), eq(runs.attempts, run.attempt))
 

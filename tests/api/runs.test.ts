@@ -5,17 +5,18 @@ import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { creditLedger, memberships, records, runs, spectra, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
+import { planRunParts } from '../../server/runs/splitRun.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
 import { encodeSamples } from '../../server/services/sampleBlob.js'
 import { createRecord } from '../../server/services/records.js'
 import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
-import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
+import { computeSpectrum, type SpectrumSettings } from '../../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../../shared/spectra/demo/demoRecords.js'
 import { parseRecord } from '../../shared/spectra/parseRecord.js'
 import { recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
-import { DEFAULT_PERIOD_GRID, logPeriodGrid } from '../../shared/spectra/periods.js'
+import { DEFAULT_PERIOD_GRID, defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import { insertRecord, setCredits, syntheticMotion, type InsertedRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -443,7 +444,8 @@ describe('GET /api/runs/:id/spectrum', () => {
     expect(parsed.methodStatement.method).toBe('newmark-average')
   })
 
-  it('equals, bit for bit, what the command-line path (parse, compute, toSpectrumJson) gives for the same file', async () => {
+  /** Uploads the demo far-field record through the records service; answers it parsed as well. */
+  function uploadDemoRecord() {
     const demo = demoRecord('synthetic-far-field')
     const uploaded = createRecord(
       ctx.db,
@@ -451,6 +453,20 @@ describe('GET /api/runs/:id/spectrum', () => {
       { firmId, userId: ctx.seed.userIds['engineer@ordinate.test']! },
       { bytes: Buffer.from(demo.text), fileName: demo.fileName, synthetic: true },
     )
+    return { uploaded, parsed: parseRecord(demo.text) }
+  }
+
+  /** What the command-line path (parse, compute in one call, toSpectrumJson) gives for a parsed file. */
+  function commandLineSpectrum(parsed: ReturnType<typeof parseRecord>, settings: SpectrumSettings) {
+    return toSpectrumJson(
+      { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits },
+      computeSpectrum({ accelMPerS2: parsed.accelMPerS2, dtS: parsed.dtS }, settings),
+      recordWarnings(parsed.accelMPerS2, parsed.dtS),
+    )
+  }
+
+  it('equals, bit for bit, what the command-line path (parse, compute, toSpectrumJson) gives for the same file', async () => {
+    const { uploaded, parsed } = uploadDemoRecord()
     const settings = {
       dampingRatios: [0.02, 0.05],
       periodsS: [0.01, 0.1, 0.25, 1, 3, 10],
@@ -459,18 +475,54 @@ describe('GET /api/runs/:id/spectrum', () => {
     const run = await runToEnd(engineer, { recordId: uploaded.id, ...settings })
     const api = (await engineer.get(`/api/runs/${run.id}/spectrum`)).body
 
-    const parsed = parseRecord(demo.text)
-    const local = toSpectrumJson(
-      { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits },
-      computeSpectrum({ accelMPerS2: parsed.accelMPerS2, dtS: parsed.dtS }, settings),
-      recordWarnings(parsed.accelMPerS2, parsed.dtS),
-    )
+    const local = commandLineSpectrum(parsed, settings)
     const { settings: _settings, ...fromApi } = api
     // JSON keeps every double exactly (shortest round-trip form), so equality is bit for bit.
     expect(fromApi.curves).toEqual(local.curves)
     expect(fromApi.periodsS).toEqual(local.periodsS)
     expect(fromApi.methodStatement).toEqual(local.methodStatement)
     expect(fromApi.record).toEqual(local.record)
+  })
+
+  it('splits a large run over both threads when nothing else waits, and the result equals, bit for bit, the whole record computed in one call', async () => {
+    const { uploaded, parsed } = uploadDemoRecord()
+    // The standard job of the benchmark: the default grid, four damping ratios, average acceleration.
+    const settings = {
+      dampingRatios: [0.02, 0.05, 0.1, 0.2],
+      periodsS: Array.from(defaultPeriodsS()),
+      method: 'newmark-average' as const,
+    }
+    expect(
+      planRunParts(
+        { kind: 'record', dtS: parsed.dtS, samples: parsed.accelMPerS2.slice().buffer },
+        settings,
+        2,
+      ),
+    ).toHaveLength(2)
+
+    const res = await engineer
+      .post('/api/runs')
+      .send({ recordId: uploaded.id, dampingRatios: settings.dampingRatios })
+    expect(res.status).toBe(202)
+    // Every thread seen computing a part of the run (the parts may not overlap in time on a busy machine).
+    const threadIds = new Set<number>()
+    const progress: number[] = []
+    queue.subscribe(res.body.id, (event) => {
+      if (event.type !== 'progress') return
+      progress.push(event.progress)
+      for (const worker of queue.workersFor(res.body.id)) threadIds.add(worker.threadId)
+    })
+    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(threadIds.size).toBe(2)
+    expect(progress).toEqual([...progress].sort((a, b) => a - b))
+    const run = (await engineer.get(`/api/runs/${res.body.id}`)).body
+    expect(run.settings.periodsS).toEqual(settings.periodsS)
+    const api = (await engineer.get(`/api/runs/${res.body.id}/spectrum`)).body
+
+    const local = commandLineSpectrum(parsed, settings)
+    const { settings: _settings, ...fromApi } = api
+    // JSON keeps every double exactly (shortest round-trip form), so equality is bit for bit.
+    expect(fromApi).toEqual(local)
   })
 
   it('answers 409 for a run that has not succeeded', async () => {
@@ -671,26 +723,36 @@ describe('the run queue', () => {
     )
   })
 
-  it("fails a run the engine refuses, with the engine's message, and returns its credit", async () => {
+  /** A record with one stored sample that is not a finite number: the engine's input check throws in the worker. */
+  function insertBrokenRecord(options: Parameters<typeof insertRecord>[2], nanAt: number): InsertedRecord {
     const broken = insertRecord(
       ctx.db,
       { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
-      { points: 300 },
+      options,
     )
-    // A stored sample that is not a finite number: the engine's input check throws inside the worker.
     const samples = Float64Array.from(broken.samples)
-    samples[10] = Number.NaN
+    samples[nanAt] = Number.NaN
     ctx.db
       .update(records)
       .set({ samples: encodeSamples(samples) })
       .where(eq(records.id, broken.id))
       .run()
-    const res = await engineer.post('/api/runs').send({ recordId: broken.id, ...SMALL })
+    return broken
+  }
+
+  /** Posts a run the engine refuses: it fails once, with the engine's message, and its credit comes back. */
+  async function expectEngineRefusal(body: Record<string, unknown>) {
+    const res = await engineer.post('/api/runs').send(body)
     expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({
       status: 'failed',
       error: 'The computation failed: the record holds a value that is not a finite number',
     })
     expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
+  }
+
+  it("fails a run the engine refuses, with the engine's message, and returns its credit", async () => {
+    const broken = insertBrokenRecord({ points: 300 }, 10)
+    await expectEngineRefusal({ recordId: broken.id, ...SMALL })
     // The thread that reported the error is still there for the next run.
     expect(
       await finished(
@@ -748,9 +810,10 @@ describe('the run queue', () => {
     })
   })
 
-  it('fails a run over the time limit, terminates its thread and returns the credit', async () => {
-    await withOwnQueue({ workerCount: 1, runTimeLimitS: 0.05 }, async (strict) => {
-      const res = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...LONG })
+  /** Runs a job on a queue with a 0.05 s limit: it fails, its credit comes back and its threads end. */
+  async function expectTimeLimit(workerCount: number, job: Record<string, unknown>) {
+    await withOwnQueue({ workerCount, runTimeLimitS: 0.05 }, async (strict) => {
+      const res = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...job })
       strict.start()
       expect(await finished(strict, ctx.db, res.body.id)).toMatchObject({
         status: 'failed',
@@ -758,6 +821,76 @@ describe('the run queue', () => {
       })
       expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
       await vi.waitFor(() => expect(strict.threads).toBe(0), { timeout: 5000 })
+    })
+  }
+
+  it('fails a run over the time limit, terminates its thread and returns the credit', async () => {
+    await expectTimeLimit(1, LONG)
+  })
+
+  describe('a run split over threads', () => {
+    /** Large enough to be split on two threads (planRunParts), with no oscillator at the sub-step cap. */
+    const SPLIT = { dampingRatios: [0.02, 0.05], periodGrid: { minS: 0.01, maxS: 20, count: 1000 } }
+
+    /** Every thread seen computing each run, collected at its progress events. */
+    function watchThreads(q: RunQueue, ids: string[]): Map<string, Set<number>> {
+      const seen = new Map(ids.map((id) => [id, new Set<number>()]))
+      for (const id of ids) {
+        q.subscribe(id, (event) => {
+          if (event.type === 'progress') for (const w of q.workersFor(id)) seen.get(id)!.add(w.threadId)
+        })
+      }
+      return seen
+    }
+
+    it("fails when one part's worker is killed, ends the other part's thread, returns the credit once, and goes on", async () => {
+      const before = creditBalance(ctx.db, firmId)
+      const victim = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...SPLIT })
+      await vi.waitFor(() => expect(queue.workersFor(victim.body.id)).toHaveLength(2), { timeout: 10_000 })
+      const [killed, sibling] = queue.workersFor(victim.body.id)
+      const siblingExit = new Promise((resolve) => sibling!.once('exit', resolve))
+      await killed!.terminate()
+      expect(await finished(queue, ctx.db, victim.body.id)).toMatchObject({
+        status: 'failed',
+        error: expect.stringMatching(/stopped unexpectedly/),
+      })
+      await siblingExit
+      expect(queue.workersFor(victim.body.id)).toEqual([])
+      expect(ledgerRows(ctx.db, victim.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
+      const other = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+      expect(await finished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
+      expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
+    })
+
+    it("fails once with the engine's message when its parts refuse the record", async () => {
+      const broken = insertBrokenRecord({ samples: longRecord.samples, dtS: 0.005 }, 4000)
+      await expectEngineRefusal({ recordId: broken.id, ...SPLIT })
+    })
+
+    it('fails over the time limit and ends the threads of all its parts', async () => {
+      await expectTimeLimit(2, SPLIT)
+    })
+
+    it('is not split while other runs wait (one thread per run), nor with one worker thread', async () => {
+      await withOwnQueue({ workerCount: 2 }, async (pool) => {
+        const ids: string[] = []
+        for (let i = 0; i < 3; i++)
+          ids.push((await engineer.post('/api/runs').send({ recordId: longRecord.id, ...SPLIT })).body.id)
+        const seen = watchThreads(pool, ids)
+        pool.start()
+        for (const id of ids) expect(await finished(pool, ctx.db, id)).toMatchObject({ status: 'succeeded' })
+        // The first two were claimed with another waiting; the last had both threads free but
+        // only one idle when it was claimed.
+        expect(ids.map((id) => seen.get(id)!.size)).toEqual([1, 1, 1])
+      })
+      await withOwnQueue({ workerCount: 1 }, async (single) => {
+        const res = await engineer.post('/api/runs').send({ recordId: longRecord.id, ...SPLIT })
+        const seen = watchThreads(single, [res.body.id])
+        single.start()
+        expect(await finished(single, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+        expect(seen.get(res.body.id)!.size).toBe(1)
+        expect(single.threads).toBe(1)
+      })
     })
   })
 
