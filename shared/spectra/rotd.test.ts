@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { computeSpectrum } from './computeSpectrum.js'
 import {
+  DirectionalPeaks,
   ROTATION_ANGLE_COUNT,
   computeRotDSpectrum,
   peakAbs,
@@ -119,6 +120,41 @@ describe('rotatedPeaks', () => {
           1e-14 * (slow[k] as number) + 1e-300,
         )
       }
+    }
+  })
+
+  it('gives the brute-force peaks whether fed in blocks of uneven length or one sample at a time', () => {
+    // Blocks longer than 64 samples are seeded with their extreme samples first; the peaks are a
+    // maximum over the same set of samples, so the order must not change them.
+    const n = 5000
+    const h1 = Float64Array.from(
+      { length: n },
+      (_, i) => (i / n) * Math.sin(i * 0.021) + 0.3 * Math.sin(i * 0.13),
+    )
+    const h2 = Float64Array.from(
+      { length: n },
+      (_, i) => 0.6 * (i / n) * Math.cos(i * 0.017) - 0.2 * Math.cos(i * 0.29),
+    )
+    const slow = brutePeaks(h1, h2)
+    const blocks = new DirectionalPeaks()
+    const single = new DirectionalPeaks()
+    const lengths = [1, 65, 64, 700, 3, 4096]
+    for (let start = 0, b = 0; start < n; b++) {
+      const count = Math.min(lengths[b % lengths.length] as number, n - start)
+      blocks.addMany(h1.subarray(start), h2.subarray(start), count)
+      start += count
+    }
+    for (let i = 0; i < n; i++) single.add(h1[i] as number, h2[i] as number)
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      const tolerance = 1e-14 * (slow[k] as number)
+      expect(
+        Math.abs((blocks.peaks[k] as number) - (slow[k] as number)),
+        `blocks, θ = ${k}°`,
+      ).toBeLessThanOrEqual(tolerance)
+      expect(
+        Math.abs((single.peaks[k] as number) - (slow[k] as number)),
+        `single, θ = ${k}°`,
+      ).toBeLessThanOrEqual(tolerance)
     }
   })
 

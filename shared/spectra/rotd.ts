@@ -37,7 +37,7 @@ const SECOND_COMPONENT = 90
 /** Directions around the full circle: j and j + 180 are opposite, with the same peak. */
 const FULL_TURN = 2 * ROTATION_ANGLE_COUNT
 /** The polygon is rebuilt after this many raised samples (a stale one is still exact, only looser). */
-const RAISES_PER_REBUILD = 8
+const RAISES_PER_REBUILD = 16
 
 /**
  * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
@@ -71,6 +71,11 @@ export class DirectionalPeaks {
   private edge = 0
   private floor2 = 0
   private raisesSinceBuild = 0
+  /** The block's largest projections on the seed axes (both ways) and the samples that reach them. */
+  private readonly seedValue = new Float64Array(2 * SEED_AXES)
+  private readonly seedIndex = new Int32Array(2 * SEED_AXES)
+  /** Whether the current sample raised a peak (set by visit). */
+  private raised = false
 
   reset(): void {
     this.peaks.fill(0)
@@ -84,7 +89,65 @@ export class DirectionalPeaks {
   }
 
   add(x: number, y: number): void {
-    if (x * x + y * y <= this.floor2) return
+    if (x * x + y * y > this.floor2) this.addOutsideFloor(x, y)
+  }
+
+  /**
+   * Adds samples (xs[i], ys[i]) for i < count. The peaks are a maximum over a set of samples, so
+   * the order does not change them: the block's extreme samples along 0°, 45°, 90° and 135° (both
+   * ways; among every fourth sample) go first and Q is rebuilt around them, so that most of the block then falls inside Q or
+   * the floor circle and is skipped (a tight loop, the rest out of line).
+   */
+  addMany(xs: Float64Array, ys: Float64Array, count: number): void {
+    if (count > SEEDED_BLOCK) {
+      const best = this.seedValue
+      const at = this.seedIndex
+      best.fill(-Infinity)
+      at.fill(0)
+      for (let i = 0; i < count; i += SEED_STRIDE) {
+        const x = xs[i] as number
+        const y = ys[i] as number
+        for (let axis = 0; axis < SEED_AXES; axis++) {
+          const projection = x * (SEED_X[axis] as number) + y * (SEED_Y[axis] as number)
+          if (projection > (best[axis] as number)) {
+            best[axis] = projection
+            at[axis] = i
+          }
+          if (-projection > (best[axis + SEED_AXES] as number)) {
+            best[axis + SEED_AXES] = -projection
+            at[axis + SEED_AXES] = i
+          }
+        }
+      }
+      for (let seed = 0; seed < 2 * SEED_AXES; seed++) {
+        const i = at[seed] as number
+        this.add(xs[i] as number, ys[i] as number)
+      }
+      if (this.raisesSinceBuild > 0) this.rebuild()
+    }
+    const vx = this.vertexX
+    const vy = this.vertexY
+    for (let i = 0; i < count; i++) {
+      const x = xs[i] as number
+      const y = ys[i] as number
+      if (x * x + y * y <= this.floor2) continue
+      // In line, the first test of facingEdge: inside Q through the edge that faced the last sample.
+      const n = this.vertices
+      if (n >= 3) {
+        const e = this.edge
+        const next = e + 1 === n ? 0 : e + 1
+        const x0 = vx[e] as number
+        const y0 = vy[e] as number
+        const x1 = vx[next] as number
+        const y1 = vy[next] as number
+        if (x0 * y - y0 * x >= 0 && x1 * y - y1 * x <= 0 && (x1 - x0) * (y - y0) - (y1 - y0) * (x - x0) >= 0)
+          continue
+      }
+      this.addOutsideFloor(x, y)
+    }
+  }
+
+  private addOutsideFloor(x: number, y: number): void {
     if (this.vertices < 3) {
       this.raiseEverywhere(x, y)
       return
@@ -130,7 +193,10 @@ export class DirectionalPeaks {
     const projection = x * (COS[k] as number) + y * (SIN[k] as number)
     const along = j < ROTATION_ANGLE_COUNT ? projection : -projection
     if (!(along > (this.builtPeaks[k] as number))) return false
-    if (along > (this.peaks[k] as number)) this.setPeak(k, x, y, projection)
+    if (along > (this.peaks[k] as number)) {
+      this.setPeak(k, x, y, projection)
+      this.raised = true
+    }
     return true
   }
 
@@ -145,21 +211,27 @@ export class DirectionalPeaks {
     const next = edge + 1 === this.vertices ? 0 : edge + 1
     const after = this.vertexFirstDirection[next] as number
     const before = after === 0 ? FULL_TURN - 1 : after - 1
+    this.raised = false
     let j = after
     for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j + 1 === FULL_TURN ? 0 : j + 1
     j = before
     for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j === 0 ? FULL_TURN - 1 : j - 1
-    this.afterRaise()
+    if (this.raised) this.afterRaise()
   }
 
   private raiseEverywhere(x: number, y: number): void {
+    let raised = false
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
       const projection = x * (COS[k] as number) + y * (SIN[k] as number)
-      if (Math.abs(projection) > (this.peaks[k] as number)) this.setPeak(k, x, y, projection)
+      if (Math.abs(projection) > (this.peaks[k] as number)) {
+        this.setPeak(k, x, y, projection)
+        raised = true
+      }
     }
-    this.afterRaise()
+    if (raised) this.afterRaise()
   }
 
+  /** Counts a sample that raised a peak; Q is rebuilt only then (unchanged setters give the same Q). */
   private afterRaise(): void {
     this.raisesSinceBuild++
     if (this.vertices < 3 || this.raisesSinceBuild >= RAISES_PER_REBUILD) this.rebuild()
@@ -167,30 +239,39 @@ export class DirectionalPeaks {
 
   /** Q from the current setters: θ = 0°…179°, then their mirror images for 180°…359°. */
   private rebuild(): void {
+    const vx = this.vertexX
+    const vy = this.vertexY
+    const first = this.vertexFirstDirection
     let n = 0
     let floor = Infinity
-    for (let half = 0; half < 2; half++) {
-      const sign = half === 0 ? 1 : -1
-      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-        const x = sign * (this.setterX[k] as number)
-        const y = sign * (this.setterY[k] as number)
-        if (x === 0 && y === 0) continue
-        if (n > 0 && x === this.vertexX[n - 1] && y === this.vertexY[n - 1]) continue
-        this.vertexX[n] = x
-        this.vertexY[n] = y
-        this.vertexFirstDirection[n] = half * ROTATION_ANGLE_COUNT + k
-        n++
-      }
+    let top = 0
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      const peak = this.peaks[k] as number
+      if (peak < floor) floor = peak
+      if (peak > top) top = peak
+      const x = this.setterX[k] as number
+      const y = this.setterY[k] as number
+      if (x === 0 && y === 0) continue
+      if (n > 0 && x === vx[n - 1] && y === vy[n - 1]) continue
+      vx[n] = x
+      vy[n] = y
+      first[n] = k
+      n++
+    }
+    // The mirror images, in the same order: the same runs, shifted by 180°.
+    const half = n
+    const from =
+      half > 0 && -(vx[0] as number) === vx[half - 1] && -(vy[0] as number) === vy[half - 1] ? 1 : 0
+    for (let i = from; i < half; i++) {
+      vx[n] = -(vx[i] as number)
+      vy[n] = -(vy[i] as number)
+      first[n] = (first[i] as number) + ROTATION_ANGLE_COUNT
+      n++
     }
     if (n > 1 && this.vertexX[0] === this.vertexX[n - 1] && this.vertexY[0] === this.vertexY[n - 1]) {
       // The last run wraps around to the first: it starts where the last vertex's run started.
       this.vertexFirstDirection[0] = this.vertexFirstDirection[n - 1] as number
       n--
-    }
-    let top = 0
-    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-      floor = Math.min(floor, this.peaks[k] as number)
-      top = Math.max(top, this.peaks[k] as number)
     }
     this.builtPeaks.set(this.peaks)
     // A polygon thinner than this (a nearly polarised motion) is too flat for the wedge tests to
@@ -202,6 +283,14 @@ export class DirectionalPeaks {
   }
 }
 
+/** Blocks longer than this are seeded with their extreme samples first (see addMany). */
+const SEEDED_BLOCK = 64
+/** The seeds are looked for among every SEED_STRIDE-th sample: any samples serve, the extremes only tighten Q. */
+const SEED_STRIDE = 4
+/** The seed axes 0°, 45°, 90° and 135°, unnormalised (only the order of projections matters). */
+const SEED_AXES = 4
+const SEED_X = Float64Array.of(1, 1, 0, -1)
+const SEED_Y = Float64Array.of(0, 1, 1, 1)
 /** Smallest width of Q, relative to its largest, for the polygon tests to be used. */
 const THIN_POLYGON = 1e-6
 const INSIDE = -1
@@ -219,7 +308,9 @@ export function rotatedPeaks(
   if (h1.length !== h2.length) throw new RangeError('the two component histories must have the same length')
   if (out.length !== ROTATION_ANGLE_COUNT) throw new RangeError(`out must hold ${ROTATION_ANGLE_COUNT} peaks`)
   const tracker = new DirectionalPeaks()
-  for (let i = 0; i < h1.length; i++) tracker.add(h1[i] as number, h2[i] as number)
+  const xs = h1 instanceof Float64Array ? h1 : Float64Array.from(h1)
+  const ys = h2 instanceof Float64Array ? h2 : Float64Array.from(h2)
+  tracker.addMany(xs, ys, xs.length)
   out.set(tracker.peaks)
   return out
 }
@@ -311,20 +402,39 @@ interface OscillatorDirections {
   a: DirectionalPeaks
 }
 
+/** Sub-steps of response history held at a time (at least MAX_SUB_STEPS, so one interval always fits). */
+const HISTORY_BLOCK = 4096
+
+/** Reused buffers for a block of both components' response histories: u, v and absolute acceleration. */
+export interface HistoryBlock {
+  u1: Float64Array
+  u2: Float64Array
+  v1: Float64Array
+  v2: Float64Array
+  a1: Float64Array
+  a2: Float64Array
+}
+
+export function historyBlock(): HistoryBlock {
+  const make = () => new Float64Array(Math.max(HISTORY_BLOCK, MAX_SUB_STEPS))
+  return { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
+}
+
 /**
- * Solves one oscillator under both components at once (the same recurrence and sub-steps as the
- * single-record sweep: sweepKernel.ts, with the ground acceleration interpolated linearly between
- * samples), folding each step into the directional peaks, then adds the closed-form peaks of the
- * free vibration after the record in every direction (freeVibration.ts).
+ * The response histories of one oscillator under both components (the same recurrence and
+ * sub-steps as the single-record sweep: sweepKernel.ts, with the ground acceleration interpolated
+ * linearly between samples), written a block of sub-steps at a time into `block`; `fold(count)` is
+ * called after each block with the number of sub-steps in it. Returns the state at the last sample.
  */
-function solvePairOscillator(
+export function pairHistories(
   record: PairRecord,
   method: SpectrumMethod,
   periodS: number,
   zeta: number,
   subSteps: number,
-  out: OscillatorDirections,
-): void {
+  block: HistoryBlock,
+  fold: (count: number) => void,
+): { u1: number; v1: number; u2: number; v2: number } {
   const omega = (2 * Math.PI) / periodS
   const { a11, a12, b1, c1, a21, a22, b2, c2 } = recurrenceCoefficients(
     method,
@@ -337,42 +447,76 @@ function solvePairOscillator(
   const g1 = record.accel1MPerS2
   const g2 = record.accel2MPerS2
   const m = subSteps
-  out.u.reset()
-  out.v.reset()
-  out.a.reset()
+  const { u1: hu1, u2: hu2, v1: hv1, v2: hv2, a1: ha1, a2: ha2 } = block
+  const capacity = hu1.length
   let u1 = 0
   let v1 = 0
   let u2 = 0
   let v2 = 0
   let start1 = g1[0] as number
   let start2 = g2[0] as number
-  for (let i = 1; i < g1.length; i++) {
-    const end1 = g1[i] as number
-    const end2 = g2[i] as number
-    const slope1 = (end1 - start1) / m
-    const slope2 = (end2 - start2) / m
-    let f1 = start1
-    let f2 = start2
-    for (let j = 1; j <= m; j++) {
-      const next1 = j === m ? end1 : start1 + slope1 * j
-      const next2 = j === m ? end2 : start2 + slope2 * j
-      const nu1 = a11 * u1 + a12 * v1 + b1 * f1 + c1 * next1
-      const nv1 = a21 * u1 + a22 * v1 + b2 * f1 + c2 * next1
-      const nu2 = a11 * u2 + a12 * v2 + b1 * f2 + c1 * next2
-      const nv2 = a21 * u2 + a22 * v2 + b2 * f2 + c2 * next2
-      u1 = nu1
-      v1 = nv1
-      u2 = nu2
-      v2 = nv2
-      out.u.add(u1, u2)
-      out.v.add(v1, v2)
-      out.a.add(cc * v1 + kk * u1, cc * v2 + kk * u2)
-      f1 = next1
-      f2 = next2
+  let i = 1
+  while (i < g1.length) {
+    let n = 0
+    for (; i < g1.length && n + m <= capacity; i++) {
+      const end1 = g1[i] as number
+      const end2 = g2[i] as number
+      const slope1 = (end1 - start1) / m
+      const slope2 = (end2 - start2) / m
+      let f1 = start1
+      let f2 = start2
+      for (let j = 1; j <= m; j++) {
+        const next1 = j === m ? end1 : start1 + slope1 * j
+        const next2 = j === m ? end2 : start2 + slope2 * j
+        const nu1 = a11 * u1 + a12 * v1 + b1 * f1 + c1 * next1
+        const nv1 = a21 * u1 + a22 * v1 + b2 * f1 + c2 * next1
+        const nu2 = a11 * u2 + a12 * v2 + b1 * f2 + c1 * next2
+        const nv2 = a21 * u2 + a22 * v2 + b2 * f2 + c2 * next2
+        u1 = nu1
+        v1 = nv1
+        u2 = nu2
+        v2 = nv2
+        hu1[n] = u1
+        hu2[n] = u2
+        hv1[n] = v1
+        hv2[n] = v2
+        ha1[n] = cc * v1 + kk * u1
+        ha2[n] = cc * v2 + kk * u2
+        n++
+        f1 = next1
+        f2 = next2
+      }
+      start1 = end1
+      start2 = end2
     }
-    start1 = end1
-    start2 = end2
+    fold(n)
   }
+  return { u1, v1, u2, v2 }
+}
+
+/**
+ * Solves one oscillator under both components ({@link pairHistories}), folding each block of the
+ * histories into the directional peaks, then adds the closed-form peaks of the free vibration after
+ * the record in every direction (freeVibration.ts).
+ */
+function solvePairOscillator(
+  record: PairRecord,
+  method: SpectrumMethod,
+  periodS: number,
+  zeta: number,
+  subSteps: number,
+  out: OscillatorDirections,
+  block: HistoryBlock,
+): void {
+  out.u.reset()
+  out.v.reset()
+  out.a.reset()
+  const { u1, v1, u2, v2 } = pairHistories(record, method, periodS, zeta, subSteps, block, (count) => {
+    out.u.addMany(block.u1, block.u2, count)
+    out.v.addMany(block.v1, block.v2, count)
+    out.a.addMany(block.a1, block.a2, count)
+  })
+  const omega = (2 * Math.PI) / periodS
   for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
     const c = COS[k] as number
     const s = SIN[k] as number
@@ -461,6 +605,7 @@ export function computeRotDSpectrum(
     v: new DirectionalPeaks(),
     a: new DirectionalPeaks(),
   }
+  const block = historyBlock()
   const peaks = Array.from({ length: count }, () => ({
     u: new Float64Array(ROTATION_ANGLE_COUNT),
     v: new Float64Array(ROTATION_ANGLE_COUNT),
@@ -468,7 +613,7 @@ export function computeRotDSpectrum(
   }))
   const solve = (index: number) => {
     const { periodS, dampingRatio } = oscillator(index)
-    solvePairOscillator(record, method, periodS, dampingRatio, subSteps[index] as number, work)
+    solvePairOscillator(record, method, periodS, dampingRatio, subSteps[index] as number, work, block)
     const p = peaks[index] as DirectionalArrays
     p.u.set(work.u.peaks)
     p.v.set(work.v.peaks)
