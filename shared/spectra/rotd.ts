@@ -41,7 +41,8 @@ const RAISES_PER_REBUILD = 16
 
 /**
  * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
- * sample at a time. Exact, and fast because most samples cannot raise any peak:
+ * sample at a time (add) or a block at a time (addMany, which feeds the block's extreme samples
+ * first). Exact, and fast because most samples cannot raise any peak:
  * - |x cosθ + y sinθ| ≤ √(x² + y²), so a sample inside the circle of the smallest peak is skipped;
  * - the samples that set the peaks, with their mirror images, span a convex polygon Q inside the
  *   convex hull of every sample so far; a sample inside Q is a convex combination of earlier
@@ -52,8 +53,8 @@ const RAISES_PER_REBUILD = 16
  *   sampled directions in the arc are contiguous and include one of the two directions beside that
  *   normal (the last one set by the edge's first vertex, the first one set by the next), so the
  *   search walks outward from those two while p·d > h_Q and raises any peak p beats on the way.
- * Q is rebuilt from the current setters every few raises; between rebuilds it is older and smaller,
- * which keeps every test exact and only makes it looser.
+ * Q is rebuilt from the current setters every few samples that raised a peak; between rebuilds it
+ * is older and smaller, which keeps every test exact and only makes it looser.
  */
 export class DirectionalPeaks {
   /** The peak in each direction θ = k°, k = 0…179. */
