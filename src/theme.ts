@@ -57,3 +57,15 @@ export const themeOverrides: GlobalThemeOverrides = {
     thFontWeight: '600',
   },
 }
+
+/**
+ * The palette as CSS custom properties (`palette.textMuted` → `--ordinate-text-muted`), set on
+ * the document root by App.vue, so component styles use `var(--ordinate-…)` instead of
+ * repeating the colours.
+ */
+export const paletteCssVariables: Record<string, string> = Object.fromEntries(
+  Object.entries(palette).map(([name, colour]) => [
+    `--ordinate-${name.replace(/[A-Z]/g, (c) => `-${c.toLowerCase()}`)}`,
+    colour,
+  ]),
+)

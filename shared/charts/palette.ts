@@ -12,6 +12,11 @@ export const palette = {
   inkHover: '#2f5677',
   inkPressed: '#182f43',
   inkSoft: '#e3e9ef',
+  inkTint: '#eef2f5',
+  /** The navigation rail: text, rules and the current-page mark on the ink background. */
+  railText: '#b9c6d3',
+  railRule: '#3a5874',
+  railMark: '#d9914f',
   /** Warm ochre: design targets and warnings. */
   ochre: '#b5602a',
   ochreHover: '#c8733b',
@@ -21,10 +26,14 @@ export const palette = {
   brick: '#9d3431',
   brickHover: '#b04541',
   brickPressed: '#7f2826',
+  brickSoft: '#fbefee',
+  /** Error text and borders on forms. */
+  brickBright: '#a33a2b',
   /** Success and "checked" reviews. */
   moss: '#466b47',
   mossHover: '#567f57',
   mossPressed: '#375538',
+  mossSoft: '#eef3ee',
   /** Paper and rules. */
   paper: '#f6f5f1',
   surface: '#ffffff',
