@@ -39,7 +39,7 @@ function checkPeriods(periodsS: ArrayLike<number>) {
  * - TS < T ≤ TL: Sa = SD1/T;
  * - T > TL: Sa = SD1·TL/T².
  * The MCE_R spectrum is 1.5 × the design spectrum (ASCE 7-16 §11.4.7; the section number is from
- * memory, the rule is quoted on app.calctree.com's public ASCE 7 design-spectrum page).
+ * memory; the factor is also given in DOMAIN.md, from memory).
  * Branches cross-checked against US Army TI 809-07 App. C (FEMA 302 Eq. 4.1.2.6-1 to -3, the same
  * three lower branches); the T > TL branch is from memory.
  */
@@ -68,9 +68,8 @@ export type En1998GroundType = 'A' | 'B' | 'C' | 'D' | 'E'
 
 /**
  * S, TB, TC, TD (s) of EN 1998-1 Tables 3.2 (Type 1) and 3.3 (Type 2), recommended values.
- * Type 1 cross-checked against TCVN 9386:2012 (the national adoption, quoted on svaha.vn);
- * Type 2 from memory, matching the open-source `streng` EC8 module
- * (codes/eurocodes/ec8/raw/ch3/seismic_action/spectra.py).
+ * Type 1 cross-checked against TCVN 9386:2012 (a national adoption of EN 1998-1);
+ * Type 2 from memory (also as listed, from memory, in DOMAIN.md): check against the standard.
  */
 export const EN1998_GROUND_PARAMETERS: Readonly<
   Record<
