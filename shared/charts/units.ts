@@ -8,7 +8,10 @@ export const STANDARD_GRAVITY_MPERS2 = 9.80665
 
 export type SpectrumQuantity = 'PSA' | 'SA' | 'PSV' | 'SV' | 'SD'
 export type MotionKind = 'acceleration' | 'velocity' | 'displacement'
-export type DisplayUnit = 'g' | 'm/s²' | 'm/s' | 'cm/s' | 'm' | 'cm' | 'mm'
+export type DisplayUnit = 'g' | 'm/s²' | 'm/s' | 'cm/s' | 'in/s' | 'm' | 'cm' | 'mm' | 'in'
+
+/** The international inch, exactly 0.0254 m (international yard and pound agreement, 1959). */
+export const METRES_PER_INCH = 0.0254
 
 /** How many SI units make one display unit, and what the unit measures. */
 export const displayUnits: Record<DisplayUnit, { siPerUnit: number; kind: MotionKind }> = {
@@ -16,9 +19,11 @@ export const displayUnits: Record<DisplayUnit, { siPerUnit: number; kind: Motion
   'm/s²': { siPerUnit: 1, kind: 'acceleration' },
   'm/s': { siPerUnit: 1, kind: 'velocity' },
   'cm/s': { siPerUnit: 0.01, kind: 'velocity' },
+  'in/s': { siPerUnit: METRES_PER_INCH, kind: 'velocity' },
   m: { siPerUnit: 1, kind: 'displacement' },
   cm: { siPerUnit: 0.01, kind: 'displacement' },
   mm: { siPerUnit: 0.001, kind: 'displacement' },
+  in: { siPerUnit: METRES_PER_INCH, kind: 'displacement' },
 }
 
 export const spectrumQuantities: Record<
