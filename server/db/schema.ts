@@ -34,6 +34,10 @@ export const memberships = sqliteTable(
       .notNull()
       .references(() => users.id),
     roles: text('roles', { mode: 'json' }).$type<string[]>().notNull(),
+    /** The member's units for pages and files: 'si', or 'us' (US customary). JSON stays SI. */
+    units: text('units', { enum: ['si', 'us'] })
+      .notNull()
+      .default('si'),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex('memberships_user_unique').on(t.userId)],
@@ -115,6 +119,8 @@ export const projects = sqliteTable(
     name: text('name').notNull(),
     description: text('description').notNull().default(''),
     isDefault: integer('is_default', { mode: 'boolean' }).notNull().default(false),
+    /** When the project was archived; null while it is active. */
+    archivedAt: integer('archived_at', { mode: 'number' }),
     createdBy: text('created_by').references(() => users.id),
     createdAt: createdAt(),
   },
@@ -349,3 +355,71 @@ export const reviewComments = sqliteTable('review_comments', {
   body: text('body').notNull(),
   createdAt: createdAt(),
 })
+
+/** A batch of runs started by one request, with one set of settings (POST /api/run-batches). */
+export const runBatches = sqliteTable(
+  'run_batches',
+  {
+    id: text('id').primaryKey(),
+    firmId: text('firm_id')
+      .notNull()
+      .references(() => firms.id),
+    /** The project of its subjects, or null when they span several. */
+    projectId: text('project_id').references(() => projects.id),
+    settings: text('settings', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
+    createdBy: text('created_by')
+      .notNull()
+      .references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index('run_batches_firm_idx').on(t.firmId, t.createdAt)],
+)
+
+/** The runs of a batch, in the batch's order (records first, then pairs, as given). */
+export const runBatchRuns = sqliteTable(
+  'run_batch_runs',
+  {
+    batchId: text('batch_id')
+      .notNull()
+      .references(() => runBatches.id),
+    runId: text('run_id')
+      .notNull()
+      .references(() => runs.id),
+    position: integer('position').notNull(),
+  },
+  (t) => [
+    uniqueIndex('run_batch_runs_position_unique').on(t.batchId, t.position),
+    uniqueIndex('run_batch_runs_run_unique').on(t.runId),
+  ],
+)
+
+/**
+ * Personal API tokens for scripts (Authorization: Bearer). Only the SHA-256 of the secret is
+ * kept. A token belongs to one membership: once the member leaves the firm it stops working.
+ */
+export const apiTokens = sqliteTable(
+  'api_tokens',
+  {
+    id: text('id').primaryKey(),
+    firmId: text('firm_id')
+      .notNull()
+      .references(() => firms.id),
+    userId: text('user_id')
+      .notNull()
+      .references(() => users.id),
+    /** The membership it was made under (no foreign key: removing a member deletes the row, and the token dies with it). */
+    membershipId: text('membership_id').notNull(),
+    name: text('name').notNull(),
+    /** At most the member's roles when made; in use, also cut to the member's current roles. */
+    roles: text('roles', { mode: 'json' }).$type<string[]>().notNull(),
+    tokenHash: text('token_hash').notNull().unique(),
+    /** The first characters of the secret, to tell tokens apart in lists. */
+    hint: text('hint').notNull(),
+    expiresAt: integer('expires_at', { mode: 'number' }),
+    lastUsedAt: integer('last_used_at', { mode: 'number' }),
+    revokedAt: integer('revoked_at', { mode: 'number' }),
+    revokedBy: text('revoked_by').references(() => users.id),
+    createdAt: createdAt(),
+  },
+  (t) => [index('api_tokens_firm_idx').on(t.firmId, t.userId)],
+)

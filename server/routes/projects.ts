@@ -1,8 +1,9 @@
 import { Router } from 'express'
-import { createProjectBodySchema } from '../../shared/schemas/projects.js'
+import { idParamsSchema } from '../../shared/schemas/common.js'
+import { createProjectBodySchema, updateProjectBodySchema } from '../../shared/schemas/projects.js'
 import type { AppDeps } from '../deps.js'
 import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
-import { createProject, listProjects } from '../services/projects.js'
+import { createProject, listProjects, updateProject } from '../services/projects.js'
 
 export function projectsRouter(deps: AppDeps) {
   const router = Router()
@@ -15,6 +16,13 @@ export function projectsRouter(deps: AppDeps) {
   router.post('/projects', requireRole('engineer', 'checker'), (req, res) => {
     const body = createProjectBodySchema.parse(req.body)
     res.status(201).json(createProject(deps.db, memberOf(req), body))
+  })
+
+  // Renaming and archiving are project housekeeping, open to those who create projects.
+  router.patch('/projects/:id', requireRole('engineer', 'checker'), (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    const body = updateProjectBodySchema.parse(req.body)
+    res.json(updateProject(deps.db, memberOf(req), id, body))
   })
 
   return router

@@ -1,8 +1,8 @@
-import { and, asc, desc, eq } from 'drizzle-orm'
-import type { CreateProjectBody, Project } from '../../shared/schemas/projects.js'
+import { and, asc, desc, eq, sql } from 'drizzle-orm'
+import type { CreateProjectBody, Project, UpdateProjectBody } from '../../shared/schemas/projects.js'
 import type { Db } from '../db/client.js'
 import { projects } from '../db/schema.js'
-import { notFound } from '../httpError.js'
+import { conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
@@ -12,17 +12,18 @@ const projectColumns = {
   name: projects.name,
   description: projects.description,
   isDefault: projects.isDefault,
+  archived: sql<boolean>`${projects.archivedAt} is not null`.mapWith(Boolean),
   createdBy: projects.createdBy,
   createdAt: projects.createdAt,
 }
 
-/** The firm's projects, the default one first, then newest first. */
+/** The firm's projects, the default one first, then active before archived, then newest first. */
 export function listProjects(db: Db, firmId: string): Project[] {
   return db
     .select(projectColumns)
     .from(projects)
     .where(eq(projects.firmId, firmId))
-    .orderBy(desc(projects.isDefault), desc(projects.createdAt), asc(projects.name))
+    .orderBy(desc(projects.isDefault), asc(projects.archivedAt), desc(projects.createdAt), asc(projects.name))
     .all()
 }
 
@@ -32,12 +33,14 @@ export function createProject(db: Db, member: Member, input: CreateProjectBody):
     name: input.name,
     description: input.description,
     isDefault: false,
+    archived: false,
     createdBy: member.userId,
     createdAt: Date.now(),
   }
   db.transaction((tx) => {
+    const { archived: _archived, ...row } = project
     tx.insert(projects)
-      .values({ ...project, firmId: member.firmId })
+      .values({ ...row, firmId: member.firmId })
       .run()
     recordAudit(tx, {
       firmId: member.firmId,
@@ -62,4 +65,43 @@ export function resolveProject(db: Pick<Db, 'select'>, firmId: string, projectId
   const row = db.select(projectColumns).from(projects).where(where).get()
   if (!row) throw notFound(projectId ? 'The project' : 'The firm’s default project')
   return row
+}
+
+/**
+ * PATCH /api/projects/:id: renames, archives or unarchives one of the firm's projects (another
+ * firm's id answers 404). The default project, where uploads go when none is named, cannot be
+ * archived. Archiving keeps everything in the project.
+ */
+export function updateProject(db: Db, member: Member, projectId: string, input: UpdateProjectBody): Project {
+  return db.transaction(
+    (tx) => {
+      const current = resolveProject(tx, member.firmId, projectId)
+      if (input.archived && current.isDefault) {
+        throw conflict(
+          'The default project cannot be archived: uploads go there when no project is chosen.',
+          'default_project',
+        )
+      }
+      const changes: { name?: string; archivedAt?: number | null } = {}
+      if (input.name !== undefined && input.name !== current.name) changes.name = input.name
+      if (input.archived !== undefined && input.archived !== current.archived) {
+        changes.archivedAt = input.archived ? Date.now() : null
+      }
+      if (Object.keys(changes).length === 0) return current
+      tx.update(projects).set(changes).where(eq(projects.id, projectId)).run()
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: 'project.updated',
+        subjectType: 'project',
+        subjectId: projectId,
+        detail: {
+          ...(changes.name !== undefined ? { from: current.name, to: changes.name } : {}),
+          ...(changes.archivedAt !== undefined ? { archived: changes.archivedAt !== null } : {}),
+        },
+      })
+      return resolveProject(tx, member.firmId, projectId)
+    },
+    { behavior: 'immediate' },
+  )
 }

@@ -7,12 +7,23 @@ export const createProjectBodySchema = z.strictObject({
 })
 export type CreateProjectBody = z.infer<typeof createProjectBodySchema>
 
+/** PATCH /api/projects/:id: rename, archive or unarchive (the default project cannot be archived). */
+export const updateProjectBodySchema = z
+  .strictObject({
+    name: createProjectBodySchema.shape.name.optional(),
+    archived: z.boolean({ error: 'archived must be true or false.' }).optional(),
+  })
+  .refine((b) => b.name !== undefined || b.archived !== undefined, 'Give a new name, archived, or both.')
+export type UpdateProjectBody = z.infer<typeof updateProjectBodySchema>
+
 /** A project as the API answers it. */
 export const projectSchema = z.object({
   id: z.string(),
   name: z.string(),
   description: z.string(),
   isDefault: z.boolean(),
+  /** Archived projects are kept, with everything in them, but leave the pickers. */
+  archived: z.boolean(),
   createdBy: z.string().nullable(),
   createdAt: z.number(),
 })

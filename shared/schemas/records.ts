@@ -63,6 +63,12 @@ export const recordDetailSchema = recordSchema.extend({
 })
 export type RecordDetail = z.infer<typeof recordDetailSchema>
 
+/** PATCH /api/records/:id: rename a record (its samples and file never change). */
+export const updateRecordBodySchema = z.strictObject({
+  name: z.string().trim().min(1, 'The name cannot be blank.').max(200, 'Use at most 200 characters.'),
+})
+export type UpdateRecordBody = z.infer<typeof updateRecordBodySchema>
+
 export const recordListQuerySchema = z.strictObject({ projectId: idSchema.optional() })
 
 /** GET /api/records */
