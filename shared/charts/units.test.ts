@@ -15,7 +15,13 @@ describe('fromSI', () => {
 describe('unitsFor', () => {
   it('offers only units of the same kind of motion', () => {
     expect(unitsFor('acceleration')).toEqual(['g', 'm/s²'])
-    expect(unitsFor('displacement')).toEqual(['m', 'cm', 'mm'])
+    expect(unitsFor('displacement')).toEqual(['m', 'cm', 'mm', 'in'])
+    expect(unitsFor('velocity')).toEqual(['m/s', 'cm/s', 'in/s'])
+  })
+
+  it('converts to inches with the international inch, 0.0254 m exactly (1959 agreement)', () => {
+    expect(fromSI(0.0254, 'in')).toBe(1)
+    expect(fromSI(0.254, 'in/s')).toBeCloseTo(10, 12)
   })
 })
 
