@@ -9,7 +9,7 @@ import {
 import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
 import type { SpectrumJob } from '../../shared/schemas/spectrumWorker.js'
 import { defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { recordPairs, records, runs, spectra, users } from '../db/schema.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -17,7 +17,7 @@ import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { reviewStateOf, reviewStates } from './reviews.js'
 import { decodeSamples } from './sampleBlob.js'
-import { type DbOrTx, reserveRunCredit, returnRunCredit } from './credits.js'
+import { reserveRunCredit, returnRunCredit } from './credits.js'
 
 /** Turns the request's settings into the settings the run is computed with (periods resolved). */
 export function resolveRunSettings(input: Omit<CreateRunBody, 'recordId'>): RunSettings {
@@ -59,7 +59,7 @@ const runColumns = {
   revisionOf: runs.revisionOf,
 }
 
-function selectRuns(db: Pick<Db, 'select'>, where: SQL | undefined) {
+function selectRuns(db: Tx, where: SQL | undefined) {
   return db
     .select(runColumns)
     .from(runs)
@@ -98,7 +98,7 @@ export function listRuns(db: Db, firmId: string, query: RunListQuery, limit = 50
 }
 
 /** One of the firm's runs; another firm's id answers 404. */
-export function getRun(db: Pick<Db, 'select'>, firmId: string, runId: string): Run {
+export function getRun(db: Tx, firmId: string, runId: string): Run {
   const row = selectRuns(db, and(eq(runs.firmId, firmId), eq(runs.id, runId))).get()
   if (!row) throw notFound('The run')
   return toRun(row, reviewStateOf(db, firmId, 'run', runId))
@@ -114,7 +114,7 @@ interface RunSubject {
   auditDetail: Record<string, unknown>
 }
 
-function runSubject(tx: DbOrTx, firmId: string, body: CreateRunBody | CreatePairRunBody): RunSubject {
+function runSubject(tx: Tx, firmId: string, body: CreateRunBody | CreatePairRunBody): RunSubject {
   if ('recordId' in body) {
     const record = tx
       .select({ projectId: records.projectId, sha256: records.sha256, name: records.name })
@@ -166,7 +166,7 @@ function runSubject(tx: DbOrTx, firmId: string, body: CreateRunBody | CreatePair
 
 /** The revision of a re-run: one more than the run it revises, which must be of the same record or pair. */
 function runRevision(
-  tx: DbOrTx,
+  tx: Tx,
   firmId: string,
   revisionOf: string | undefined,
   subject: RunSubject,
@@ -188,6 +188,57 @@ function runRevision(
 }
 
 /**
+ * Writes one queued run of a record or pair: the run row, its reserved credit and its audit
+ * row. Call inside an IMMEDIATE transaction (createRun, and run batches for many at once), so a
+ * refusal (404, 402) part-way leaves nothing behind. Returns the new run's id.
+ */
+export function queueRunInTx(
+  tx: Tx,
+  member: Member,
+  body: CreateRunBody | CreatePairRunBody,
+  settings: RunSettings,
+  audit: Record<string, unknown> = {},
+): string {
+  const runId = newId()
+  const subject = runSubject(tx, member.firmId, body)
+  const revision = runRevision(tx, member.firmId, body.revisionOf, subject)
+  tx.insert(runs)
+    .values({
+      id: runId,
+      firmId: member.firmId,
+      projectId: subject.projectId,
+      recordId: subject.recordId,
+      pairId: subject.pairId,
+      status: 'queued',
+      progress: 0,
+      settings,
+      recordSha256: subject.sha256,
+      revision,
+      revisionOf: body.revisionOf ?? null,
+      createdBy: member.userId,
+      createdAt: Date.now(),
+    })
+    .run()
+  reserveRunCredit(tx, member.firmId, runId, member.userId)
+  recordAudit(tx, {
+    firmId: member.firmId,
+    userId: member.userId,
+    action: 'run.created',
+    subjectType: 'run',
+    subjectId: runId,
+    detail: {
+      ...subject.auditDetail,
+      method: settings.method,
+      dampingRatios: settings.dampingRatios,
+      periods: settings.periodsS.length,
+      ...(body.revisionOf ? { revisionOf: body.revisionOf, revision } : {}),
+      ...audit,
+    },
+  })
+  return runId
+}
+
+/**
  * Queues a run of one record, or of a record pair with its combinations (one credit either way).
  * The run row, the reserved credit and the audit row are written in one IMMEDIATE transaction,
  * so concurrent requests can never spend the same last credit and a refused request (404, 402)
@@ -196,46 +247,7 @@ function runRevision(
 export function createRun(db: Db, member: Member, body: CreateRunBody | CreatePairRunBody): Run {
   const settings = resolveRunSettings(body)
   if ('combinations' in body) settings.combinations = [...body.combinations]
-  const runId = newId()
-  db.transaction(
-    (tx) => {
-      const subject = runSubject(tx, member.firmId, body)
-      const revision = runRevision(tx, member.firmId, body.revisionOf, subject)
-      tx.insert(runs)
-        .values({
-          id: runId,
-          firmId: member.firmId,
-          projectId: subject.projectId,
-          recordId: subject.recordId,
-          pairId: subject.pairId,
-          status: 'queued',
-          progress: 0,
-          settings,
-          recordSha256: subject.sha256,
-          revision,
-          revisionOf: body.revisionOf ?? null,
-          createdBy: member.userId,
-          createdAt: Date.now(),
-        })
-        .run()
-      reserveRunCredit(tx, member.firmId, runId, member.userId)
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'run.created',
-        subjectType: 'run',
-        subjectId: runId,
-        detail: {
-          ...subject.auditDetail,
-          method: settings.method,
-          dampingRatios: settings.dampingRatios,
-          periods: settings.periodsS.length,
-          ...(body.revisionOf ? { revisionOf: body.revisionOf, revision } : {}),
-        },
-      })
-    },
-    { behavior: 'immediate' },
-  )
+  const runId = db.transaction((tx) => queueRunInTx(tx, member, body, settings), { behavior: 'immediate' })
   return getRun(db, member.firmId, runId)
 }
 
@@ -440,7 +452,7 @@ export function completeRun(db: Db, run: ClaimedRun, outcome: RunOutcome): boole
 }
 
 function failInTx(
-  tx: Pick<Db, 'select' | 'insert' | 'update' | 'delete'>,
+  tx: Tx,
   runId: string,
   firmId: string,
   message: string,
