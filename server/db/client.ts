@@ -1,12 +1,13 @@
 import { mkdirSync } from 'node:fs'
 import path from 'node:path'
 import Database from 'better-sqlite3'
-import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3'
+import { drizzle } from 'drizzle-orm/better-sqlite3'
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator'
 import { projectRoot } from '../projectRoot.js'
 import * as schema from './schema.js'
+import type { Db } from './types.js'
 
-export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database }
+export type { Db, Tx } from './types.js'
 
 /**
  * Opens the SQLite file with the settings every connection needs: foreign keys on (SQLite

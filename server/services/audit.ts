@@ -1,4 +1,4 @@
-import type { Db } from '../db/client.js'
+import type { Tx } from '../db/client.js'
 import { auditLog } from '../db/schema.js'
 
 export interface AuditEntry {
@@ -11,7 +11,7 @@ export interface AuditEntry {
 }
 
 /** Appends to the audit log. Callers inside a transaction pass the transaction as `db`. */
-export function recordAudit(db: Pick<Db, 'insert'>, entry: AuditEntry): void {
+export function recordAudit(db: Tx, entry: AuditEntry): void {
   db.insert(auditLog)
     .values({
       firmId: entry.firmId ?? null,

@@ -25,13 +25,12 @@ import {
 } from '../../shared/spectra/suite.js'
 import { evaluateTarget } from '../../shared/spectra/targets.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { comparisons, recordPairs, records, runs, spectra, users } from '../db/schema.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
-import type { DbOrTx } from './credits.js'
 import { resolveProject } from './projects.js'
 import { assertEditable, reviewStateOf, reviewStates } from './reviews.js'
 import { nullIfNaN, resolveComparisonTarget } from './targets.js'
@@ -83,7 +82,7 @@ const summaryColumns = {
   updatedAt: comparisons.updatedAt,
 }
 
-function selectSummaries(db: Pick<Db, 'select'>) {
+function selectSummaries(db: Tx) {
   return db.select(summaryColumns).from(comparisons).innerJoin(users, eq(users.id, comparisons.createdBy))
 }
 
@@ -117,7 +116,7 @@ export function listComparisons(db: Db, firmId: string, projectId?: string): Com
 }
 
 /** One comparison of the firm; another firm's id answers 404. */
-export function getComparison(db: Pick<Db, 'select'>, firmId: string, id: string): ComparisonSummary {
+export function getComparison(db: Tx, firmId: string, id: string): ComparisonSummary {
   const row = selectSummaries(db)
     .where(and(eq(comparisons.firmId, firmId), eq(comparisons.id, id)))
     .get()
@@ -135,7 +134,7 @@ interface LoadedRun {
 }
 
 /** The runs of a comparison, in the order given; each must be the firm's and have succeeded. */
-function loadRuns(db: Pick<Db, 'select'>, firmId: string, runIds: string[]): LoadedRun[] {
+function loadRuns(db: Tx, firmId: string, runIds: string[]): LoadedRun[] {
   const rows = db
     .select({
       id: runs.id,
@@ -263,7 +262,7 @@ interface ComparisonInputs {
  * 4. the target on the grid, and 90% of it;
  * 5. the scale factors and the suite check of the scaling rule.
  */
-function computeView(db: Pick<Db, 'select'>, firmId: string, inputs: ComparisonInputs) {
+function computeView(db: Tx, firmId: string, inputs: ComparisonInputs) {
   const loaded = loadRuns(db, firmId, inputs.runIds)
   const curves = loaded.map((run) => {
     const curve = pickCurve(run, inputs.dampingRatio, inputs.combination)
@@ -360,7 +359,7 @@ function buildDrawing(
 }
 
 /** Everything the comparison chart and scale-factor table need; the exports use it too. */
-export function getComparisonView(db: Pick<Db, 'select'>, firmId: string, id: string): ComparisonView {
+export function getComparisonView(db: Tx, firmId: string, id: string): ComparisonView {
   const summary = getComparison(db, firmId, id)
   return { comparison: summary, ...buildDrawing(summary, computeView(db, firmId, summary)) }
 }
@@ -379,7 +378,7 @@ export function previewComparison(db: Db, firmId: string, body: PreviewInput): C
   return buildDrawing(inputs, computeView(db, firmId, inputs))
 }
 
-function revisionFor(tx: DbOrTx, firmId: string, revisionOf: string | undefined): number {
+function revisionFor(tx: Tx, firmId: string, revisionOf: string | undefined): number {
   if (!revisionOf) return 1
   const previous = tx
     .select({ revision: comparisons.revision })

@@ -1,14 +1,11 @@
 import { desc, eq, sql } from 'drizzle-orm'
 import type { CreditsSummary, LedgerKind } from '../../shared/schemas/credits.js'
-import type { Db } from '../db/client.js'
+import type { Tx } from '../db/client.js'
 import { creditLedger } from '../db/schema.js'
 import { paymentRequired } from '../httpError.js'
 
-/** A Drizzle database or transaction handle. */
-export type DbOrTx = Pick<Db, 'select' | 'insert' | 'update' | 'delete'>
-
 /** The firm's balance: the sum of its append-only ledger. */
-export function creditBalance(db: DbOrTx, firmId: string): number {
+export function creditBalance(db: Tx, firmId: string): number {
   const row = db
     .select({ total: sql<number>`coalesce(sum(${creditLedger.delta}), 0)` })
     .from(creditLedger)
@@ -17,7 +14,7 @@ export function creditBalance(db: DbOrTx, firmId: string): number {
   return row?.total ?? 0
 }
 
-export function creditsSummary(db: DbOrTx, firmId: string, limit = 500): CreditsSummary {
+export function creditsSummary(db: Tx, firmId: string, limit = 500): CreditsSummary {
   const entries = db
     .select({
       id: creditLedger.id,
@@ -48,7 +45,7 @@ export interface LedgerWrite {
 }
 
 /** Appends one ledger row. Call inside the transaction that makes the change it pays for. */
-export function appendLedger(db: DbOrTx, entry: LedgerWrite): void {
+export function appendLedger(db: Tx, entry: LedgerWrite): void {
   db.insert(creditLedger)
     .values({ ...entry, createdAt: Date.now() })
     .run()
@@ -58,7 +55,7 @@ export function appendLedger(db: DbOrTx, entry: LedgerWrite): void {
  * Reserves one credit for a run. Must be called inside an IMMEDIATE transaction together with
  * the insert of the run, so two concurrent requests can never both spend the last credit.
  */
-export function reserveRunCredit(db: DbOrTx, firmId: string, runId: string, userId: string): void {
+export function reserveRunCredit(db: Tx, firmId: string, runId: string, userId: string): void {
   if (creditBalance(db, firmId) < 1) {
     throw paymentRequired(
       'Your firm has no run credits left. An admin can buy more on the Credits page.',
@@ -69,7 +66,7 @@ export function reserveRunCredit(db: DbOrTx, firmId: string, runId: string, user
 }
 
 /** Returns the credit of a run that failed. Idempotent: a run is refunded at most once. */
-export function returnRunCredit(db: DbOrTx, firmId: string, runId: string, note: string): void {
+export function returnRunCredit(db: Tx, firmId: string, runId: string, note: string): void {
   const already = db
     .select({ id: creditLedger.id })
     .from(creditLedger)

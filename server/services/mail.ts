@@ -1,6 +1,6 @@
 import { and, asc, eq, lte } from 'drizzle-orm'
 import nodemailer, { type Transporter } from 'nodemailer'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { mailOutbox } from '../db/schema.js'
 import { newId } from '../ids.js'
 
@@ -17,7 +17,7 @@ export interface OutgoingMail {
  * sends mail never fails because the mail server is down; the MailDispatcher delivers it. Pass
  * the transaction as `db` to queue the mail only if the rest of the action commits.
  */
-export function enqueueMail(db: Pick<Db, 'insert'>, mail: OutgoingMail): string {
+export function enqueueMail(db: Tx, mail: OutgoingMail): string {
   const id = newId()
   db.insert(mailOutbox)
     .values({

@@ -1,6 +1,6 @@
 import { and, asc, desc, eq, sql } from 'drizzle-orm'
 import type { CreateProjectBody, Project, UpdateProjectBody } from '../../shared/schemas/projects.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { projects } from '../db/schema.js'
 import { conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -58,7 +58,7 @@ export function createProject(db: Db, member: Member, input: CreateProjectBody):
  * The project a new record or pair goes into: the given one when it belongs to the firm
  * (another firm's id answers 404), otherwise the firm's default project.
  */
-export function resolveProject(db: Pick<Db, 'select'>, firmId: string, projectId?: string): Project {
+export function resolveProject(db: Tx, firmId: string, projectId?: string): Project {
   const where = projectId
     ? and(eq(projects.firmId, firmId), eq(projects.id, projectId))
     : and(eq(projects.firmId, firmId), eq(projects.isDefault, true))

@@ -1,7 +1,7 @@
 import { and, desc, eq, isNull, lte, sql } from 'drizzle-orm'
 import { findCreditPack, type CreditPack } from '../../shared/credits/creditPacks.js'
 import type { Purchase, PurchaseBody, PurchaseResult } from '../../shared/schemas/credits.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { creditLedger, firms, purchases, users } from '../db/schema.js'
 import { badGateway, conflict, HttpError } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -237,7 +237,7 @@ function answerFor(db: Db, row: PurchaseRow): PurchaseResult {
  * The balance just after this purchase was credited: the ledger summed up to and including its
  * entry, so a repeated request answers exactly what the first one did.
  */
-function balanceThrough(db: Pick<Db, 'select'>, firmId: string, purchaseRowId: string): number {
+function balanceThrough(db: Tx, firmId: string, purchaseRowId: string): number {
   const entry = db
     .select({ id: creditLedger.id })
     .from(creditLedger)
@@ -252,7 +252,7 @@ function balanceThrough(db: Pick<Db, 'select'>, firmId: string, purchaseRowId: s
   return row?.total ?? 0
 }
 
-function purchaseRow(db: Pick<Db, 'select'>, firmId: string, clientPurchaseId: string): PurchaseRow {
+function purchaseRow(db: Tx, firmId: string, clientPurchaseId: string): PurchaseRow {
   const row = db
     .select()
     .from(purchases)

@@ -10,13 +10,12 @@ import type {
   ReviewSubjectType,
   SubmitReviewBody,
 } from '../../shared/schemas/reviews.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { comparisons, recordPairs, records, reviewComments, reviews, runs, users } from '../db/schema.js'
 import { conflict, forbidden, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
-import type { DbOrTx } from './credits.js'
 
 /** The work a review is about, as the review rules need it. */
 interface Subject {
@@ -30,7 +29,7 @@ interface Subject {
   ready: boolean
 }
 
-function loadSubject(db: Pick<Db, 'select'>, firmId: string, type: ReviewSubjectType, id: string): Subject {
+function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string): Subject {
   if (type === 'run') {
     const run = db
       .select({
@@ -73,7 +72,7 @@ function loadSubject(db: Pick<Db, 'select'>, firmId: string, type: ReviewSubject
 
 /** Review states of several subjects of one type; subjects never submitted are 'draft'. */
 export function reviewStates(
-  db: Pick<Db, 'select'>,
+  db: Tx,
   firmId: string,
   subjectType: ReviewSubjectType,
   subjectIds: string[],
@@ -96,7 +95,7 @@ export function reviewStates(
 }
 
 export function reviewStateOf(
-  db: Pick<Db, 'select'>,
+  db: Tx,
   firmId: string,
   subjectType: ReviewSubjectType,
   subjectId: string,
@@ -109,7 +108,7 @@ export function reviewStateOf(
  * checked work is locked, and a change makes a new revision instead.
  */
 export function assertEditable(
-  db: Pick<Db, 'select'>,
+  db: Tx,
   firmId: string,
   subjectType: ReviewSubjectType,
   subjectId: string,
@@ -127,7 +126,7 @@ export function assertEditable(
   }
 }
 
-function people(db: Pick<Db, 'select'>, ids: (string | null)[]): Map<string, { id: string; name: string }> {
+function people(db: Tx, ids: (string | null)[]): Map<string, { id: string; name: string }> {
   const wanted = [...new Set(ids.filter((id): id is string => !!id))]
   if (wanted.length === 0) return new Map()
   const rows = db
@@ -154,12 +153,12 @@ const reviewColumns = {
 
 type ReviewRow = Awaited<ReturnType<ReturnType<typeof selectReviews>['all']>>[number]
 
-function selectReviews(db: Pick<Db, 'select'>, where: SQL | undefined) {
+function selectReviews(db: Tx, where: SQL | undefined) {
   return db.select(reviewColumns).from(reviews).where(where)
 }
 
 /** Adds names of people and subjects to review rows, with a handful of queries for the whole list. */
-function toReviews(db: Pick<Db, 'select'>, firmId: string, rows: ReviewRow[]): Review[] {
+function toReviews(db: Tx, firmId: string, rows: ReviewRow[]): Review[] {
   const runIds = rows.filter((r) => r.subjectType === 'run').map((r) => r.subjectId)
   const comparisonIds = rows.filter((r) => r.subjectType === 'comparison').map((r) => r.subjectId)
   const subjects = new Map<string, { name: string; createdBy: string }>()
@@ -217,7 +216,7 @@ export function listReviews(db: Db, member: Member, query: ReviewListQuery, limi
 }
 
 /** One review with its comment thread, oldest first; another firm's id answers 404. */
-export function getReview(db: Pick<Db, 'select'>, firmId: string, reviewId: string): ReviewDetail {
+export function getReview(db: Tx, firmId: string, reviewId: string): ReviewDetail {
   const row = selectReviews(db, and(eq(reviews.firmId, firmId), eq(reviews.id, reviewId))).get()
   if (!row) throw notFound('The review')
   const [review] = toReviews(db, firmId, [row])
@@ -243,7 +242,7 @@ export function getReview(db: Pick<Db, 'select'>, firmId: string, reviewId: stri
   return { ...(review as Review), comments }
 }
 
-function insertComment(tx: DbOrTx, reviewId: string, authorId: string, body: string, at: number): string {
+function insertComment(tx: Tx, reviewId: string, authorId: string, body: string, at: number): string {
   const id = newId()
   tx.insert(reviewComments).values({ id, reviewId, authorId, body, createdAt: at }).run()
   return id

@@ -13,7 +13,7 @@ import {
 import { defaultPeriodsS } from '../../shared/spectra/periods.js'
 import { TargetCsvError, parseTargetCsv } from '../../shared/spectra/targetCsv.js'
 import { evaluateTarget } from '../../shared/spectra/targets.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { targets, users } from '../db/schema.js'
 import { badRequest, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -106,7 +106,7 @@ export function listTargets(db: Db, firmId: string, projectId?: string): Target[
 }
 
 /** One saved target of the firm; another firm's id answers 404. */
-export function getTarget(db: Pick<Db, 'select'>, firmId: string, targetId: string): Target {
+export function getTarget(db: Tx, firmId: string, targetId: string): Target {
   const row = db
     .select(targetColumns)
     .from(targets)
@@ -148,7 +148,7 @@ export function createTarget(db: Db, member: Member, body: CreateTargetInput): T
 
 /** What a comparison stores for a target given by id or inline. */
 export function resolveComparisonTarget(
-  db: Pick<Db, 'select'>,
+  db: Tx,
   firmId: string,
   input: { targetId: string } | TargetInputValue,
 ): StoredTarget {
