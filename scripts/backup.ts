@@ -20,7 +20,11 @@ async function main(args: string[]) {
     console.log(`Restored ${file} into ${config.databasePath} (originals into ${config.dataDir}/originals).`)
     return
   }
-  const result = await backupDatabase({ databasePath: config.databasePath, dataDir: config.dataDir, target: file })
+  const result = await backupDatabase({
+    databasePath: config.databasePath,
+    dataDir: config.dataDir,
+    target: file,
+  })
   console.log(
     `Backed up ${config.databasePath} to ${result.databaseCopy}; ${result.originalsCopied} original file(s) copied to ${result.originalsCopy}.`,
   )

@@ -73,6 +73,7 @@ export function restoreBackup(options: { backup: string; databasePath: string; d
   const from = originalsCopyDir(backup)
   if (!existsSync(from)) return
   for (const name of readdirSync(from)) {
-    if (!existsSync(path.join(originals, name))) copyFileSync(path.join(from, name), path.join(originals, name))
+    if (!existsSync(path.join(originals, name)))
+      copyFileSync(path.join(from, name), path.join(originals, name))
   }
 }

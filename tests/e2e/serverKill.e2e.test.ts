@@ -3,6 +3,7 @@ import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { afterAll, describe, expect, it, vi } from 'vitest'
 import { openDb } from '../../server/db/client.js'
+import { signInHttp } from '../support/httpApi.js'
 import { type RunningServer, startServer } from './harness.js'
 
 /**
@@ -29,27 +30,6 @@ interface ApiBody {
   items: { id: string; status: string }[]
 }
 
-/** A signed-in HTTP client for one server: keeps the session cookie and sends the CSRF header. */
-async function signIn(baseUrl: string, email: string) {
-  const res = await fetch(`${baseUrl}/api/auth/sign-in`, {
-    method: 'POST',
-    headers: { 'content-type': 'application/json', 'x-ordinate-client': '1' },
-    body: JSON.stringify({ email, password: 'ordinate-demo' }),
-  })
-  expect(res.status).toBe(200)
-  const cookie = res.headers.get('set-cookie')!.split(';')[0]!
-  return async (method: string, route: string, body?: unknown) => {
-    const init: RequestInit = { method, headers: { cookie, 'x-ordinate-client': '1' } }
-    if (body instanceof FormData) init.body = body
-    else if (body !== undefined) {
-      init.body = JSON.stringify(body)
-      ;(init.headers as Record<string, string>)['content-type'] = 'application/json'
-    }
-    const answer = await fetch(`${baseUrl}/api${route}`, init)
-    return { status: answer.status, body: (await answer.json()) as ApiBody }
-  }
-}
-
 function processGone(pid: number): boolean {
   try {
     process.kill(pid, 0)
@@ -69,7 +49,7 @@ describe('the server killed with runs queued and running, then restarted', () =>
     }
     const first = await startServer(env)
     servers.push(first)
-    const api = await signIn(first.url, 'engineer@ordinate.test')
+    const api = await signInHttp<ApiBody>(first.url, 'engineer@ordinate.test')
 
     // A synthetic 30 s record at 200 Hz, and a sweep long enough to be caught mid-run.
     const samples = Array.from({ length: 6000 }, (_, i) =>
@@ -108,7 +88,7 @@ describe('the server killed with runs queued and running, then restarted', () =>
     const second = await startServer(env)
     servers.push(second)
     expect(second.output()).toMatch(/interrupted run\(s\) queued again/)
-    const again = await signIn(second.url, 'engineer@ordinate.test')
+    const again = await signInHttp<ApiBody>(second.url, 'engineer@ordinate.test')
     await vi.waitFor(
       async () => {
         const list = await again('GET', '/runs')
