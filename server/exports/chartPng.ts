@@ -6,7 +6,7 @@
  */
 import { crc32 } from 'node:zlib'
 import { Resvg } from '@resvg/resvg-js'
-import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
+import { chartSvg } from '../../shared/charts/chartSvg.js'
 import type { SpectrumChartInput } from '../../shared/schemas/sheets.js'
 import { EXPORT_FONT_FAMILY, exportFontFiles, printableDeep } from './exportFonts.js'
 
@@ -54,7 +54,7 @@ function withDensity(png: Buffer, dpi: number): Buffer {
 export function renderChartPng(chart: SpectrumChartInput, widthMm: number): Buffer {
   const fonts = exportFontFiles()
   const printable = printableDeep(chart)
-  const svg = spectrumChartSvg(printable.data, { ...printable.options, ...printLayout(widthMm) })
+  const svg = chartSvg({ data: printable.data, options: { ...printable.options, ...printLayout(widthMm) } })
   const resvg = new Resvg(svg, {
     font: {
       loadSystemFonts: false,

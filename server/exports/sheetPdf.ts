@@ -9,7 +9,7 @@
 import PDFDocument from 'pdfkit'
 import SVGtoPDF from 'svg-to-pdfkit'
 import { palette } from '../../shared/charts/palette.js'
-import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
+import { chartSvg } from '../../shared/charts/chartSvg.js'
 import type { Sheet, SheetField, SheetTable } from '../../shared/schemas/sheets.js'
 import { exportFontFiles, printableDeep } from './exportFonts.js'
 
@@ -377,7 +377,7 @@ export async function renderSheetPdf(sheetModel: Sheet): Promise<Buffer> {
   const chartWidthPx = sheet.chart.options.widthPx ?? 720
   const chartHeightPx = sheet.chart.options.heightPx ?? 440
   writer.heading(++section, 'Spectrum', (WIDTH * chartHeightPx) / chartWidthPx)
-  writer.chart(spectrumChartSvg(sheet.chart.data, sheet.chart.options), chartWidthPx, chartHeightPx)
+  writer.chart(chartSvg(sheet.chart), chartWidthPx, chartHeightPx)
   if (sheet.comparison) {
     writer.heading(++section, 'Target and scaling')
     writer.fields(sheet.comparison.target)

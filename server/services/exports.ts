@@ -12,14 +12,25 @@ import {
   comparisonChartInput,
 } from '../../shared/charts/comparisonChartInput.js'
 import { DEFAULT_SPECTRUM_VIEW, runSpectrumChartInput } from '../../shared/charts/runSpectrumChartInput.js'
-import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
-import { STANDARD_GRAVITY_MPERS2 } from '../../shared/charts/units.js'
+import { asTripartite, chartSvg } from '../../shared/charts/chartSvg.js'
+import { TRIPARTITE_UNITS } from '../../shared/charts/tripartiteChart.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import { type SpectrumResult, spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import type { PlotExportQuery, Sheet, SpectrumChartInput } from '../../shared/schemas/sheets.js'
 import type { Db } from '../db/client.js'
-import { firms, projects, recordPairs, records, reviews, runs, spectra, users } from '../db/schema.js'
+import {
+  firms,
+  memberships,
+  projects,
+  recordPairs,
+  records,
+  reviews,
+  runs,
+  spectra,
+  users,
+} from '../db/schema.js'
 import { renderChartPng } from '../exports/chartPng.js'
 import { buildComparisonSheetFromFacts } from '../exports/comparisonSheet.js'
 import { comparisonOrdinatesCsv, runOrdinatesCsv } from '../exports/ordinatesCsv.js'
@@ -224,6 +235,44 @@ export function exportFileName(sheet: Sheet, format: ExportFormat): string {
   return `${sheet.reference}-rev${sheet.revision}${slug ? `-${slug}` : ''}.${format}`
 }
 
+/** The member's units preference, which labels the four-way plot's scales. */
+function memberUnitSystem(db: Db, member: Member): 'si' | 'us' {
+  const row = db
+    .select({ units: memberships.units })
+    .from(memberships)
+    .where(and(eq(memberships.firmId, member.firmId), eq(memberships.userId, member.userId)))
+    .get()
+  return row?.units ?? 'si'
+}
+
+/**
+ * `?chart=tripartite`: the sheet and the plot files draw the four-way log plot of the same
+ * curves (PSV for a run, the comparison's PSA for a comparison), its scales labelled in the
+ * member's units.
+ */
+function loadTripartiteExport(
+  db: Db,
+  member: Member,
+  subject: ExportSubject,
+  id: string,
+  query: PlotExportQuery,
+): { sheet: Sheet; csv: () => string; chart: () => SpectrumChartInput } {
+  if (query.quantity || query.unit || query.xScale || query.yScale) {
+    throw badRequest(
+      'The four-way log plot shows PSV, SD and PSA on fixed log axes; leave out quantity, unit and the scales.',
+      'invalid_input',
+    )
+  }
+  const units = TRIPARTITE_UNITS[memberUnitSystem(db, member)]
+  const base = loadExport(db, member.firmId, subject, id, {
+    ...query,
+    chart: undefined,
+    ...(subject === 'run' ? { quantity: 'PSV' as const } : {}),
+  })
+  const chart = asTripartite(base.chart(), units)
+  return { ...base, sheet: { ...base.sheet, chart }, chart: () => chart }
+}
+
 /**
  * The sheet of a subject, its CSV of every ordinate, and its chart in the view asked for
  * (the sheet's own chart when the query names no view).
@@ -240,7 +289,7 @@ function loadExport(
     const { sheet, spectrum, subjectName } = loadRunSheet(db, firmId, id)
     return {
       sheet,
-      csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_MPERS2),
+      csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_M_PER_S2),
       chart: () =>
         runSpectrumChartInput(spectrum, subjectName, {
           quantity: query.quantity ?? DEFAULT_SPECTRUM_VIEW.quantity,
@@ -268,8 +317,6 @@ function loadExport(
   }
 }
 
-const chartSvg = (input: SpectrumChartInput) => spectrumChartSvg(input.data, input.options)
-
 /** Makes one export file and records it in the audit log. */
 export async function exportSheet(
   db: Db,
@@ -279,7 +326,10 @@ export async function exportSheet(
   format: ExportFormat,
   query: PlotExportQuery,
 ): Promise<ExportFile> {
-  const { sheet, csv, chart } = loadExport(db, member.firmId, subject, id, query)
+  const { sheet, csv, chart } =
+    query.chart === 'tripartite'
+      ? loadTripartiteExport(db, member, subject, id, query)
+      : loadExport(db, member.firmId, subject, id, query)
   let file: Omit<ExportFile, 'fileName'>
   switch (format) {
     case 'pdf':
@@ -318,6 +368,7 @@ export async function exportSheet(
               xScale: query.xScale,
               yScale: query.yScale,
               scaled: query.scaled,
+              chart: query.chart,
             },
           }
         : {}),

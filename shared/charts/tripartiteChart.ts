@@ -21,6 +21,7 @@ import {
   type SpectrumSeries,
   buildSpectrumChart,
 } from './spectrumChart.js'
+import type { UnitSystem } from '../schemas/me.js'
 import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
 import { type DisplayUnit, type SpectrumQuantity, checkUnit, displayUnits } from './units.js'
 
@@ -30,8 +31,6 @@ export interface TripartiteUnits {
   displacement: DisplayUnit
   acceleration: DisplayUnit
 }
-
-export type UnitSystem = 'si' | 'us'
 
 /**
  * SI plots read PSV in cm/s and SD in cm; US customary in in/s and in. PSA is in g in both,

@@ -52,6 +52,10 @@ export const spectrumChartInputSchema = z.object({
     xDomainS: z.tuple([z.number(), z.number()]).optional(),
     yDomain: z.tuple([z.number(), z.number()]).optional(),
     id: z.string().optional(),
+    /** Draw the four-way log plot (shared/charts/tripartiteChart.ts) with these scale units. */
+    tripartite: z
+      .object({ velocity: unitSchema, displacement: unitSchema, acceleration: unitSchema })
+      .optional(),
   }),
 })
 export type SpectrumChartInput = z.infer<typeof spectrumChartInputSchema>
@@ -138,6 +142,8 @@ export const plotExportQuerySchema = z
     unit: unitSchema.optional(),
     xScale: scaleSchema.optional(),
     yScale: scaleSchema.optional(),
+    /** The four-way log plot (PSV with SD and PSA diagonals) instead of the spectrum chart. */
+    chart: z.enum(['spectrum', 'tripartite'], { error: 'chart is spectrum or tripartite.' }).optional(),
     /** Comparisons: draw the records as scaled (the default) or as recorded. */
     scaled: z
       .enum(['true', 'false'], { error: 'scaled is true or false.' })
