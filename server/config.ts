@@ -21,7 +21,13 @@ export const envSchema = z.object({
   STRIPE_API_PORT: z.coerce.number().int().positive().optional(),
   STRIPE_API_PROTOCOL: z.enum(['http', 'https']).optional(),
   STRIPE_PUBLISHABLE_KEY: z.string().optional(),
-  WORKER_THREADS: z.coerce.number().int().min(1).max(64).optional(),
+  WORKER_THREADS: z.coerce.number().int().min(0).max(64).optional(),
+  REDIS_URL: z
+    .string()
+    .regex(/^rediss?:\/\//, 'expected a redis:// or rediss:// URL')
+    .optional(),
+  QUEUE_LOCK_MS: z.coerce.number().int().min(1000).default(30_000),
+  QUEUE_STALLED_MS: z.coerce.number().int().min(1000).default(30_000),
   RUN_TIME_LIMIT_S: z.coerce.number().positive().default(300),
   TRUST_PROXY: flag.default(false),
   RATE_LIMIT_WINDOW_S: z.coerce.number().int().positive().default(900),
@@ -51,7 +57,13 @@ export interface Config {
     /** For Stripe.js in the browser, when the SDK talks to Stripe itself. */
     publishableKey?: string
   }
+  /** Computation threads in this process; 0 (only with `redisUrl`) computes nothing here. */
   workerThreads?: number
+  /** With it set, runs go through a BullMQ queue on this Redis (server/queue/). */
+  redisUrl?: string
+  /** BullMQ's lock on a job being computed, and how often stalled jobs are looked for. */
+  queueLockMs: number
+  queueStalledMs: number
   runTimeLimitS: number
   trustProxy: boolean
   /** Sign-in counts failures only; password-reset requests all count, whatever the address. */
@@ -70,6 +82,10 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     throw new Error(`Invalid environment:\n${lines.join('\n')}`)
   }
   const e = parsed.data
+  if (e.WORKER_THREADS === 0 && !e.REDIS_URL)
+    throw new Error(
+      'Invalid environment:\n  WORKER_THREADS: 0 computes nothing here, so it needs REDIS_URL (compute nodes take the runs)',
+    )
   const root = projectRoot()
   const databasePath = path.resolve(root, e.DATABASE_PATH ?? path.join('data', 'ordinate.sqlite'))
   const dataDir = path.resolve(root, e.DATA_DIR ?? path.dirname(databasePath))
@@ -92,6 +108,9 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       publishableKey: e.STRIPE_PUBLISHABLE_KEY,
     },
     workerThreads: e.WORKER_THREADS,
+    redisUrl: e.REDIS_URL,
+    queueLockMs: e.QUEUE_LOCK_MS,
+    queueStalledMs: e.QUEUE_STALLED_MS,
     runTimeLimitS: e.RUN_TIME_LIMIT_S,
     trustProxy: e.TRUST_PROXY,
     rateLimits: {
