@@ -1,6 +1,5 @@
 import { defineStore } from 'pinia'
 import { ref } from 'vue'
-import { ApiError } from '@/api/client'
 import * as comparisonsApi from '@/api/comparisons'
 import type {
   ComparisonSummary,
@@ -8,7 +7,7 @@ import type {
   CreateComparisonBody,
   UpdateComparisonBody,
 } from '@/api/comparisons'
-import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useRequestState } from '@/composables/useRequestState'
 
 /**
  * The firm's comparisons: the list (with review states) and the one open in the workspace.
@@ -19,49 +18,36 @@ export const useComparisonsStore = defineStore('comparisons', () => {
   const current = ref<ComparisonView | null>(null)
   const loading = ref(false)
   const loadingCurrent = ref(false)
+  /** The open comparison does not exist, or is another firm's. */
+  const currentMissing = ref(false)
   const saving = ref(false)
-  const error = ref<string | null>(null)
-  const { report } = useErrorReporter()
+  const { error, read, submit } = useRequestState()
 
   async function load(): Promise<void> {
-    loading.value = true
-    error.value = null
-    try {
+    await read(loading, 'Could not load the comparisons', async () => {
       items.value = await comparisonsApi.listComparisons()
-    } catch (err) {
-      error.value = report(err, 'Could not load the comparisons')
-    } finally {
-      loading.value = false
-    }
+    })
   }
 
   async function open(id: string): Promise<void> {
-    loadingCurrent.value = true
-    error.value = null
     current.value = null
-    try {
-      current.value = await comparisonsApi.getComparison(id)
-    } catch (err) {
-      error.value = report(err, 'Could not open the comparison')
-    } finally {
-      loadingCurrent.value = false
-    }
+    await read(
+      loadingCurrent,
+      'Could not open the comparison',
+      async () => {
+        current.value = await comparisonsApi.getComparison(id)
+      },
+      { missing: currentMissing },
+    )
   }
 
-  async function save(run: () => Promise<ComparisonView>): Promise<ComparisonView> {
-    saving.value = true
-    error.value = null
-    try {
+  function save(run: () => Promise<ComparisonView>): Promise<ComparisonView> {
+    return submit(saving, async () => {
       const view = await run()
       current.value = view
       items.value = [view.comparison, ...items.value.filter((c) => c.id !== view.comparison.id)]
       return view
-    } catch (err) {
-      error.value = err instanceof ApiError ? err.message : report(err)
-      throw err
-    } finally {
-      saving.value = false
-    }
+    })
   }
 
   const create = (body: CreateComparisonBody) => save(() => comparisonsApi.createComparison(body))
@@ -81,6 +67,7 @@ export const useComparisonsStore = defineStore('comparisons', () => {
     current,
     loading,
     loadingCurrent,
+    currentMissing,
     saving,
     error,
     load,

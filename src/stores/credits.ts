@@ -1,14 +1,15 @@
 import { defineStore } from 'pinia'
-import { computed, ref } from 'vue'
+import { ref } from 'vue'
 import * as creditsApi from '@/api/credits'
 import type { CreditPackInfo, CreditsSummary, PaymentsConfig, Purchase, PurchaseResult } from '@/api/credits'
 import { ApiError } from '@/api/client'
-import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useRequestState } from '@/composables/useRequestState'
 import { purchaseBodySchema } from '../../shared/schemas/credits'
 
 /**
  * The firm's run credits: balance and ledger for every member; packs, payment settings and the
- * purchase history for admins, who also buy here.
+ * purchase history for admins, who also buy here. The balance is kept here only; starting a run
+ * (runs store) notes its charge here.
  */
 export const useCreditsStore = defineStore('credits', () => {
   const summary = ref<CreditsSummary | null>(null)
@@ -17,31 +18,45 @@ export const useCreditsStore = defineStore('credits', () => {
   const paymentsConfig = ref<PaymentsConfig | null>(null)
   const loading = ref(false)
   const buying = ref(false)
-  const error = ref<string | null>(null)
-  const { report } = useErrorReporter()
+  const { error, report, read } = useRequestState()
 
-  const balance = computed(() => summary.value?.balance ?? null)
+  /** The balance as last heard from the server, less the runs charged since. */
+  const balance = ref<number | null>(null)
+
+  function adopt(s: CreditsSummary) {
+    summary.value = s
+    balance.value = s.balance
+  }
 
   /** Loads the balance and ledger, the packs and payment settings, and for admins the purchase history. */
   async function load(options: { admin: boolean }): Promise<void> {
-    loading.value = true
-    error.value = null
-    try {
+    await read(loading, 'Could not load the credits', async () => {
       const [s, p, c, h] = await Promise.all([
         creditsApi.getCredits(),
         creditsApi.listPacks(),
         creditsApi.getPaymentsConfig(),
         options.admin ? creditsApi.listPurchases() : Promise.resolve([]),
       ])
-      summary.value = s
+      adopt(s)
       packs.value = p
       paymentsConfig.value = c
       purchases.value = h
-    } catch (err) {
-      error.value = report(err, 'Could not load the credits')
-    } finally {
-      loading.value = false
-    }
+    })
+  }
+
+  /** The balance and ledger alone, for a page that shows the balance beside a cost. */
+  async function loadBalance(): Promise<void> {
+    await read(null, 'Could not read the credit balance', async () => adopt(await creditsApi.getCredits()))
+  }
+
+  /** A run was charged: the balance follows without asking the server again. */
+  function noteCharged(credits: number) {
+    if (balance.value !== null) balance.value = Math.max(0, balance.value - credits)
+  }
+
+  /** The server refused a run for want of credits. */
+  function noteEmpty() {
+    balance.value = 0
   }
 
   async function refresh(admin: boolean): Promise<void> {
@@ -49,7 +64,7 @@ export const useCreditsStore = defineStore('credits', () => {
       creditsApi.getCredits(),
       admin ? creditsApi.listPurchases() : Promise.resolve(purchases.value),
     ])
-    summary.value = s
+    adopt(s)
     purchases.value = h
   }
 
@@ -67,7 +82,7 @@ export const useCreditsStore = defineStore('credits', () => {
     error.value = null
     try {
       const result = await creditsApi.createPurchase(purchaseBodySchema.parse(input))
-      if (summary.value) summary.value = { ...summary.value, balance: result.balance }
+      balance.value = result.balance
       await refresh(true).catch((err: unknown) => report(err, 'Could not refresh the ledger'))
       return result
     } catch (err) {
@@ -81,5 +96,19 @@ export const useCreditsStore = defineStore('credits', () => {
     }
   }
 
-  return { summary, packs, purchases, paymentsConfig, loading, buying, error, balance, load, buy }
+  return {
+    summary,
+    packs,
+    purchases,
+    paymentsConfig,
+    loading,
+    buying,
+    error,
+    balance,
+    load,
+    loadBalance,
+    noteCharged,
+    noteEmpty,
+    buy,
+  }
 })

@@ -5,7 +5,7 @@ import * as invitationsApi from '@/api/invitations'
 import type { Invitation } from '@/api/invitations'
 import * as membersApi from '@/api/members'
 import type { FirmMember } from '@/api/members'
-import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useRequestState } from '@/composables/useRequestState'
 import type { Role } from '../../shared/schemas/accounts'
 import type { CreateInvitationBody } from '../../shared/schemas/invitations'
 
@@ -19,21 +19,14 @@ export const useMembersStore = defineStore('members', () => {
   const invitations = ref<Invitation[]>([])
   const loading = ref(false)
   const saving = ref(false)
-  const error = ref<string | null>(null)
-  const { report } = useErrorReporter()
+  const { error, report, read } = useRequestState()
 
   async function load(): Promise<void> {
-    loading.value = true
-    error.value = null
-    try {
+    await read(loading, 'Could not load the members', async () => {
       const [m, i] = await Promise.all([membersApi.listMembers(), invitationsApi.listInvitations()])
       members.value = m
       invitations.value = i
-    } catch (err) {
-      error.value = report(err, 'Could not load the members')
-    } finally {
-      loading.value = false
-    }
+    })
   }
 
   /** Runs a change; a form-level failure keeps its message in `error` and is thrown on for the form. */

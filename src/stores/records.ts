@@ -1,11 +1,10 @@
 import { defineStore } from 'pinia'
 import { ref } from 'vue'
-import { ApiError } from '@/api/client'
 import * as pairsApi from '@/api/recordPairs'
 import type { CreateRecordPairBody, RecordPair, RecordPairDetail } from '@/api/recordPairs'
 import * as recordsApi from '@/api/records'
 import type { RecordDetail, RecordInfo, RecordSamples, UploadHandle, UploadRecordInput } from '@/api/records'
-import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useRequestState } from '@/composables/useRequestState'
 
 /** Points asked for when plotting one record: most records fit whole; longer ones are thinned with peaks kept. */
 export const PLOT_POINTS = 20_000
@@ -22,64 +21,54 @@ export const useRecordsStore = defineStore('records', () => {
   const currentSamples = ref<RecordSamples | null>(null)
   const loading = ref(false)
   const loadingCurrent = ref(false)
+  /** The open record does not exist, or is another firm's. */
+  const currentMissing = ref(false)
   const uploading = ref(false)
   /** Fraction of the file sent, 0–1, while uploading. */
   const uploadProgress = ref(0)
-  const error = ref<string | null>(null)
-  const { report } = useErrorReporter()
+  const { error, report, read, submit } = useRequestState()
   let upload: UploadHandle | null = null
 
   async function load(): Promise<void> {
-    loading.value = true
-    error.value = null
-    try {
+    await read(loading, 'Could not load the records', async () => {
       const [r, p] = await Promise.all([recordsApi.listRecords(), pairsApi.listRecordPairs()])
       items.value = r
       pairs.value = p
-    } catch (err) {
-      error.value = report(err, 'Could not load the records')
-    } finally {
-      loading.value = false
-    }
+    })
   }
 
   /** Opens one record with its samples for the plot. */
   async function open(id: string): Promise<void> {
-    loadingCurrent.value = true
-    error.value = null
     current.value = null
     currentSamples.value = null
-    try {
-      const [record, samples] = await Promise.all([
-        recordsApi.getRecord(id),
-        recordsApi.getRecordSamples(id, PLOT_POINTS),
-      ])
-      current.value = record
-      currentSamples.value = samples
-    } catch (err) {
-      error.value = report(err, 'Could not open the record')
-    } finally {
-      loadingCurrent.value = false
-    }
+    await read(
+      loadingCurrent,
+      'Could not open the record',
+      async () => {
+        const [record, samples] = await Promise.all([
+          recordsApi.getRecord(id),
+          recordsApi.getRecordSamples(id, PLOT_POINTS),
+        ])
+        current.value = record
+        currentSamples.value = samples
+      },
+      { missing: currentMissing },
+    )
   }
 
   /** Uploads a record; the list is refreshed after, so it shows the project and uploader names. */
-  async function uploadRecord(input: UploadRecordInput): Promise<RecordInfo> {
-    uploading.value = true
+  function uploadRecord(input: UploadRecordInput): Promise<RecordInfo> {
     uploadProgress.value = 0
-    error.value = null
-    try {
-      upload = recordsApi.uploadRecord(input, (f) => (uploadProgress.value = f))
-      const record = await upload.done
-      await load()
-      return record
-    } catch (err) {
-      error.value = err instanceof ApiError ? err.message : report(err)
-      throw err
-    } finally {
-      upload = null
-      uploading.value = false
-    }
+    return submit(uploading, async () => {
+      try {
+        upload = recordsApi.uploadRecord(input, (f) => (uploadProgress.value = f))
+        const record = await upload.done
+        await load()
+        return record
+      } finally {
+        upload = null
+      }
+    })
   }
 
   function cancelUpload(): void {
@@ -99,16 +88,12 @@ export const useRecordsStore = defineStore('records', () => {
     }
   }
 
-  async function createPair(body: CreateRecordPairBody): Promise<RecordPair> {
-    error.value = null
-    try {
+  function createPair(body: CreateRecordPairBody): Promise<RecordPair> {
+    return submit(null, async () => {
       const pair = await pairsApi.createRecordPair(body)
       pairs.value = await pairsApi.listRecordPairs()
       return pair
-    } catch (err) {
-      error.value = err instanceof ApiError ? err.message : report(err)
-      throw err
-    }
+    })
   }
 
   return {
@@ -118,6 +103,7 @@ export const useRecordsStore = defineStore('records', () => {
     currentSamples,
     loading,
     loadingCurrent,
+    currentMissing,
     uploading,
     uploadProgress,
     error,
