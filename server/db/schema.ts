@@ -1,5 +1,14 @@
 import { sql } from 'drizzle-orm'
-import { blob, index, integer, real, sqliteTable, text, uniqueIndex } from 'drizzle-orm/sqlite-core'
+import {
+  type AnySQLiteColumn,
+  blob,
+  index,
+  integer,
+  real,
+  sqliteTable,
+  text,
+  uniqueIndex,
+} from 'drizzle-orm/sqlite-core'
 
 // Times are stored as integer milliseconds since the epoch (UTC).
 const createdAt = () =>
@@ -156,12 +165,16 @@ export const records = sqliteTable(
     /** Parsed samples in m/s², little-endian Float64. */
     samples: blob('samples', { mode: 'buffer' }).notNull(),
     synthetic: integer('synthetic', { mode: 'boolean' }).notNull().default(false),
+    /** The record this one was processed from; null for a record as received. */
+    parentId: text('parent_id').references((): AnySQLiteColumn => records.id),
+    /** A processed record's processing as applied, with its chain (shared/schemas/processing.ts). */
+    processing: text('processing', { mode: 'json' }).$type<Record<string, unknown>>(),
     uploadedBy: text('uploaded_by')
       .notNull()
       .references(() => users.id),
     createdAt: createdAt(),
   },
-  (t) => [index('records_firm_idx').on(t.firmId, t.projectId)],
+  (t) => [index('records_firm_idx').on(t.firmId, t.projectId), index('records_parent_idx').on(t.parentId)],
 )
 
 export const recordPairs = sqliteTable('record_pairs', {
