@@ -19,6 +19,7 @@ import { demoRecord } from '../shared/spectra/demo/demoRecords.js'
 import { parseRecord } from '../shared/spectra/parseRecord.js'
 import { defaultPeriodsS } from '../shared/spectra/periods.js'
 import { DirectionalPeaks, computeRotDSpectrum, historyBlock, pairHistories } from '../shared/spectra/rotd.js'
+import { COMBINATIONS } from '../shared/vocabulary/combinations.js'
 
 const runsArg = process.argv.indexOf('--runs')
 const runs = runsArg > 0 ? Math.max(1, Number(process.argv[runsArg + 1])) : 2
@@ -31,7 +32,7 @@ const settings = {
   dampingRatios: [0.02, 0.05, 0.1, 0.2],
   periodsS: defaultPeriodsS(),
   method: 'newmark-average' as const,
-  combinations: ['geomean' as const, 'rotd50' as const, 'rotd100' as const],
+  combinations: [...COMBINATIONS],
 }
 const record = { accel1MPerS2: accel1, accel2MPerS2: accel2, dtS }
 

@@ -9,6 +9,9 @@ import {
   text,
   uniqueIndex,
 } from 'drizzle-orm/sqlite-core'
+import { COMBINATIONS } from '../../shared/vocabulary/combinations.js'
+import { STORED_REVIEW_STATES } from '../../shared/vocabulary/reviewStates.js'
+import { RUN_STATUSES } from '../../shared/vocabulary/runStatuses.js'
 
 // Times are stored as integer milliseconds since the epoch (UTC).
 const createdAt = () =>
@@ -210,7 +213,7 @@ export const runs = sqliteTable(
       .references(() => projects.id),
     recordId: text('record_id').references(() => records.id),
     pairId: text('pair_id').references(() => recordPairs.id),
-    status: text('status', { enum: ['queued', 'running', 'succeeded', 'failed'] }).notNull(),
+    status: text('status', { enum: RUN_STATUSES }).notNull(),
     progress: real('progress').notNull().default(0),
     error: text('error'),
     settings: text('settings', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
@@ -325,7 +328,7 @@ export const comparisons = sqliteTable('comparisons', {
     .notNull()
     .default('arithmetic'),
   /** For runs of record pairs: which combination of the two components is compared. */
-  combination: text('combination', { enum: ['geomean', 'rotd50', 'rotd100'] }),
+  combination: text('combination', { enum: COMBINATIONS }),
   /** The comparison this one revises after its predecessor was checked and locked. */
   revisionOf: text('revision_of'),
   revision: integer('revision').notNull().default(1),
@@ -345,7 +348,7 @@ export const reviews = sqliteTable(
       .references(() => firms.id),
     subjectType: text('subject_type', { enum: ['run', 'comparison'] }).notNull(),
     subjectId: text('subject_id').notNull(),
-    state: text('state', { enum: ['submitted', 'checked', 'returned'] }).notNull(),
+    state: text('state', { enum: STORED_REVIEW_STATES }).notNull(),
     submittedBy: text('submitted_by')
       .notNull()
       .references(() => users.id),

@@ -1,10 +1,10 @@
 import { describe, expect, it } from 'vitest'
-import { STANDARD_GRAVITY_MPERS2 } from '../../shared/charts/units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import { periodGridStatement, runOrdinateTable } from './runSheet.js'
 import { reviewAndDate, sheetReference } from './sheetParts.js'
 
-const g = STANDARD_GRAVITY_MPERS2
+const g = STANDARD_GRAVITY_M_PER_S2
 /** A spectrum that is a power law in T, PSA = 0.5 g·T^-1 (exact under log-log interpolation). */
 function powerLawSpectrum(periodsS: number[]) {
   const psa = periodsS.map((t) => 0.5 * g * t ** -1)

@@ -4,17 +4,18 @@
  * sheet reproducible.
  */
 import {
-  COMBINATION_LABELS,
   type RunSpectrumLike,
   type SpectrumView,
   DEFAULT_SPECTRUM_VIEW,
   runSpectrumChartInput,
 } from '../../shared/charts/runSpectrumChartInput.js'
+import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 import { dampingLabel } from '../../shared/charts/spectrumChart.js'
-import { STANDARD_GRAVITY_MPERS2, formatSignificant } from '../../shared/charts/units.js'
+import { formatSignificant } from '../../shared/charts/units.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import type { MethodStatement } from '../../shared/spectra/computeSpectrum.js'
 import type { RecordParameters } from '../../shared/spectra/recordParameters.js'
+import { SOURCE_UNIT_LABELS, STANDARD_GRAVITY_M_PER_S2, isSourceUnits } from '../../shared/spectra/units.js'
 import type { Sheet, SheetField, SheetRecord, SheetTable } from '../../shared/schemas/sheets.js'
 import { STANDARD_PERIODS_S, ordinateAtPeriod, peakOrdinate } from '../../shared/sheets/ordinateAtPeriod.js'
 import {
@@ -68,14 +69,7 @@ export interface RunSheetFacts {
   view?: SpectrumView
 }
 
-const SOURCE_UNIT_LABELS: Record<string, string> = {
-  g: 'g',
-  'm/s2': 'm/s²',
-  'cm/s2': 'cm/s²',
-  'in/s2': 'in/s²',
-}
-
-const g = (valueMPerS2: number) => valueMPerS2 / STANDARD_GRAVITY_MPERS2
+const g = (valueMPerS2: number) => valueMPerS2 / STANDARD_GRAVITY_M_PER_S2
 const sig = (value: number, digits = 4) => formatSignificant(value, digits)
 
 /** "301 log-spaced periods from 0.01 s to 10 s (100 per decade), the default grid". */
@@ -95,7 +89,7 @@ export function periodGridStatement(settings: RunSettings): string {
 function processingStatement(units: string): string {
   return units === 'm/s²'
     ? 'None: read in m/s²; no baseline correction or filtering by Ordinate.'
-    : `Converted from ${units} to m/s² (g = 9.80665 m/s²); no baseline correction or filtering by Ordinate.`
+    : `Converted from ${units} to m/s² (g = ${STANDARD_GRAVITY_M_PER_S2} m/s²); no baseline correction or filtering by Ordinate.`
 }
 
 /**
@@ -103,7 +97,9 @@ function processingStatement(units: string): string {
  * sheets that list a whole suite.
  */
 export function recordSection(record: SheetRecordFacts, compact = false): SheetRecord {
-  const units = SOURCE_UNIT_LABELS[record.sourceUnits] ?? record.sourceUnits
+  const units = isSourceUnits(record.sourceUnits)
+    ? SOURCE_UNIT_LABELS[record.sourceUnits]
+    : record.sourceUnits
   const pga = `${num(g(record.pgaMPerS2))} g (${num(record.pgaMPerS2)} m/s²)`
   const origin = record.synthetic
     ? [{ label: 'Origin', value: 'Synthetic record (demonstration data, not recorded motion)' }]
@@ -149,9 +145,7 @@ export function recordSection(record: SheetRecordFacts, compact = false): SheetR
 }
 
 function curveLabel(curve: RunSpectrumLike['curves'][number]): string {
-  const combination = curve.combination
-    ? `, ${COMBINATION_LABELS[curve.combination] ?? curve.combination}`
-    : ''
+  const combination = curve.combination ? `, ${COMBINATION_LABELS[curve.combination]}` : ''
   return `${dampingLabel(curve.dampingRatio)}${combination}`
 }
 
@@ -185,7 +179,7 @@ export function runOrdinateTable(spectrum: RunSpectrumLike, pgaMPerS2: number | 
     emphasis: true,
   })
   const notes = [
-    'PSA in g (g = 9.80665 m/s²). T = 0 is the record’s PGA; the peak is the largest PSA over the run’s period grid.',
+    `PSA in g (g = ${STANDARD_GRAVITY_M_PER_S2} m/s²). T = 0 is the record’s PGA; the peak is the largest PSA over the run’s period grid.`,
   ]
   if (interpolated) {
     notes.push(

@@ -7,7 +7,8 @@ import { CAUTION } from '../../shared/cautions.js'
 import { readFileSync } from 'node:fs'
 import path from 'node:path'
 import { z } from 'zod'
-import type { Sheet, SheetReview } from '../../shared/schemas/sheets.js'
+import type { Sheet } from '../../shared/schemas/sheets.js'
+import { REVIEW_STATE_LABELS } from '../../shared/vocabulary/reviewStates.js'
 import { projectRoot } from '../projectRoot.js'
 
 export const PRODUCT_NAME = 'Ordinate'
@@ -60,13 +61,6 @@ export interface WorkFacts {
   doneVerb: 'computed' | 'saved'
 }
 
-const STATE_LABELS: Record<SheetReview['state'], string> = {
-  draft: 'Draft, not submitted',
-  submitted: 'Submitted, awaiting check',
-  returned: 'Returned with comments',
-  checked: 'Checked',
-}
-
 /**
  * The review block and the sheet's date. Checked work carries the date of the check, so
  * the sheet exported again next year still reads the same; other work carries the date it
@@ -89,7 +83,7 @@ export function reviewAndDate(
     dateShortLabel: checked ? 'Date of check' : 'Date, not checked',
     review: {
       state,
-      stateLabel: STATE_LABELS[state],
+      stateLabel: REVIEW_STATE_LABELS[state].sheetLabel,
       preparedBy: work.preparedByName,
       preparedOn: sheetDate(work.doneAt),
       submittedOn: review ? sheetDate(review.submittedAt) : null,

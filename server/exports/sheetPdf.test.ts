@@ -3,7 +3,8 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { STANDARD_GRAVITY_MPERS2, formatSignificant } from '../../shared/charts/units.js'
+import { formatSignificant } from '../../shared/charts/units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { demoRunFacts, demoRunSheet } from '../../tests/support/sheetFixtures.js'
 import { renderSheetPdf } from './sheetPdf.js'
 
@@ -41,7 +42,7 @@ describe('renderSheetPdf, from an engine computation on the synthetic demo recor
     )
     const at1s = Array.from(facts.spectrum.periodsS).indexOf(1)
     const expected = facts.spectrum.curves.map((c) =>
-      formatSignificant((c.psaMPerS2[at1s] as number) / STANDARD_GRAVITY_MPERS2),
+      formatSignificant((c.psaMPerS2[at1s] as number) / STANDARD_GRAVITY_M_PER_S2),
     )
     const row = /^\s*1\s+(\S+)\s+(\S+)\s*$/m.exec(text.slice(text.indexOf('at standard periods')))
     expect(row?.slice(1)).toEqual(expected)

@@ -25,6 +25,11 @@ import {
 } from '../../shared/spectra/suite.js'
 import { evaluateTarget } from '../../shared/spectra/targets.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
+import {
+  COMBINATION_LABELS,
+  MAXIMUM_DIRECTION,
+  combinationSchema,
+} from '../../shared/vocabulary/combinations.js'
 import type { Db, Tx } from '../db/client.js'
 import { comparisons, recordPairs, records, runs, spectra, users } from '../db/schema.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
@@ -43,19 +48,13 @@ export const COMPARISON_CAUTION =
   CAUTION +
   ' The scaling rule shown is a stated calculation, not a claim of compliance with any code clause, and passing it does not make a record suitable for the site.'
 
-const COMBINATION_NAMES: Record<Combination, string> = {
-  geomean: 'geometric mean of the two components',
-  rotd50: 'RotD50',
-  rotd100: 'RotD100',
-}
-
 /** The part of a stored spectrum a comparison reads (shared/schemas/spectrum.ts holds the full shape). */
 const storedSpectrumSchema = z.object({
   periodsS: z.array(z.number()),
   curves: z.array(
     z.object({
       dampingRatio: z.number(),
-      combination: z.enum(['geomean', 'rotd50', 'rotd100']).optional(),
+      combination: combinationSchema.optional(),
       psaMPerS2: z.array(z.number()),
     }),
   ),
@@ -175,7 +174,7 @@ function loadRuns(db: Tx, firmId: string, runIds: string[]): LoadedRun[] {
   })
 }
 
-/** Which combination a pair run is compared with: the one asked for, else RotD100 when present. */
+/** Which combination a pair run is compared with: the one asked for, else the maximum direction when present. */
 function pickCurve(run: LoadedRun, dampingRatio: number, combination: Combination | null) {
   const atDamping = run.spectrum.curves.filter((c) => sameDamping(c.dampingRatio, dampingRatio))
   const damping = `${Number((dampingRatio * 100).toPrecision(6))}%`
@@ -196,7 +195,9 @@ function pickCurve(run: LoadedRun, dampingRatio: number, combination: Combinatio
   }
   const wanted =
     combination ??
-    (atDamping.some((c) => c.combination === 'rotd100') ? 'rotd100' : atDamping[0]?.combination)
+    (atDamping.some((c) => c.combination === MAXIMUM_DIRECTION)
+      ? MAXIMUM_DIRECTION
+      : atDamping[0]?.combination)
   const curve = atDamping.find((c) => c.combination === wanted)
   if (!curve) {
     throw badRequest(
@@ -294,7 +295,7 @@ function buildDrawing(
   const labels = disambiguate(
     curves.map((c) => {
       const base = c.run.revision > 1 ? `${c.run.name} (rev ${c.run.revision})` : c.run.name
-      return c.combination ? `${base}, ${COMBINATION_NAMES[c.combination]}` : base
+      return c.combination ? `${base}, ${COMBINATION_LABELS[c.combination]}` : base
     }),
     curves.map((c) => c.run.id),
   )
@@ -350,7 +351,7 @@ function buildDrawing(
       damping: `ζ = ${Number((summary.dampingRatio * 100).toPrecision(6))}%`,
       mean: `${summary.meanKind === 'geometric' ? 'Geometric' : 'Arithmetic'} mean of ${curves.length} run${curves.length === 1 ? '' : 's'}`,
       combination: pairCombinations.length
-        ? `Pairs combined as ${pairCombinations.map((c) => COMBINATION_NAMES[c]).join(', ')}`
+        ? `Pairs combined as ${pairCombinations.map((c) => COMBINATION_LABELS[c]).join(', ')}`
         : null,
       grid: `${grid.length} periods from ${first} s to ${last} s`,
     },

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import type { ComparisonView } from '../schemas/comparisons.js'
 import { comparisonChartInput } from './comparisonChartInput.js'
-import { STANDARD_GRAVITY_MPERS2 as g } from './units.js'
+import { STANDARD_GRAVITY_M_PER_S2 as g } from '../spectra/units.js'
 
 const view = {
   comparison: {},

@@ -6,7 +6,7 @@
 import type { ComparisonDrawing } from '../schemas/comparisons.js'
 import type { SpectrumChartInput } from '../schemas/sheets.js'
 import type { AxisScale } from './axes.js'
-import { STANDARD_GRAVITY_MPERS2 } from './units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 export interface ComparisonChartView {
   xScale: AxisScale
@@ -24,7 +24,7 @@ export const DEFAULT_COMPARISON_CHART_VIEW: ComparisonChartView = {
 
 /** PSA in g (null where undefined) to m/s² for the chart, which skips non-finite points. */
 const toSI = (valuesG: Array<number | null>, factor = 1) =>
-  valuesG.map((v) => (v === null ? Number.NaN : v * factor * STANDARD_GRAVITY_MPERS2))
+  valuesG.map((v) => (v === null ? Number.NaN : v * factor * STANDARD_GRAVITY_M_PER_S2))
 
 export function comparisonChartInput(
   view: ComparisonDrawing,

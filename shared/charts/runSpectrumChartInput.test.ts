@@ -14,7 +14,7 @@ const spectrum = {
     },
     {
       dampingRatio: 0.05,
-      combination: 'rotd50',
+      combination: 'rotd50' as const,
       sdM: [0, 0, 0],
       svMPerS: [0, 0, 0],
       saMPerS2: [0, 0, 0],

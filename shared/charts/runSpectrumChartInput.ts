@@ -5,13 +5,14 @@
 import type { RunMethod } from '../schemas/runs.js'
 import type { SpectrumChartInput } from '../schemas/sheets.js'
 import type { AxisScale } from './axes.js'
+import { COMBINATION_LABELS, type Combination } from '../vocabulary/combinations.js'
 import type { DisplayUnit, SpectrumQuantity } from './units.js'
 
 /** The ordinates of one damping ratio, in SI, in the order of the spectrum's periods. */
 export interface RunSpectrumCurve {
   dampingRatio: number
-  /** Two-component runs tag each curve: 'geomean', 'rotd50' or 'rotd100'. */
-  combination?: string
+  /** Two-component runs tag each curve with how it combines the components. */
+  combination?: Combination
   sdM: ArrayLike<number>
   svMPerS: ArrayLike<number>
   saMPerS2: ArrayLike<number>
@@ -58,13 +59,6 @@ const QUANTITY_KEYS = {
   SD: 'sdM',
 } as const satisfies Record<SpectrumQuantity, keyof RunSpectrumCurve>
 
-/** How two components were combined, as labels say it. */
-export const COMBINATION_LABELS: Record<string, string> = {
-  geomean: 'geometric mean',
-  rotd50: 'RotD50',
-  rotd100: 'RotD100',
-}
-
 /**
  * One curve per damping ratio (and combination), with the periods in ascending order so a
  * list of periods given in any order still draws as a line; titled with the quantity and
@@ -81,9 +75,7 @@ export function runSpectrumChartInput(
   const key = QUANTITY_KEYS[view.quantity]
   const series = spectrum.curves.map((curve) => {
     const values = curve[key]
-    const combination = curve.combination
-      ? (COMBINATION_LABELS[curve.combination] ?? curve.combination)
-      : null
+    const combination = curve.combination ? COMBINATION_LABELS[curve.combination] : null
     return {
       label: combination ? `${recordLabel} (${combination})` : recordLabel,
       periodsS,

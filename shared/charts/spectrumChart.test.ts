@@ -1,11 +1,11 @@
 import { Resvg } from '@resvg/resvg-js'
 import { describe, expect, it } from 'vitest'
 import { buildSpectrumChart, spectrumChartSvg, type SpectrumChartData } from './spectrumChart.js'
-import { STANDARD_GRAVITY_MPERS2 } from './units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 const periodsS = Array.from({ length: 31 }, (_, i) => 0.01 * 10 ** (i / 10))
 const recordPsa = periodsS.map(
-  (t) => STANDARD_GRAVITY_MPERS2 * (0.3 + 0.4 / (1 + (Math.log10(t / 0.3) * 2) ** 2)),
+  (t) => STANDARD_GRAVITY_M_PER_S2 * (0.3 + 0.4 / (1 + (Math.log10(t / 0.3) * 2) ** 2)),
 )
 
 function demoData(label = 'Synthetic record A'): SpectrumChartData {
@@ -78,7 +78,7 @@ describe('spectrumChartSvg', () => {
         {
           label: 'flat',
           periodsS: [0.1, 1],
-          values: [STANDARD_GRAVITY_MPERS2, STANDARD_GRAVITY_MPERS2],
+          values: [STANDARD_GRAVITY_M_PER_S2, STANDARD_GRAVITY_M_PER_S2],
           role: 'record',
         },
       ],

@@ -1,13 +1,13 @@
 import { Resvg } from '@resvg/resvg-js'
 import { describe, expect, it } from 'vitest'
 import { buildTimeHistoryChart, thinForDrawing, timeHistoryChartSvg } from './timeHistoryChart.js'
-import { STANDARD_GRAVITY_MPERS2 } from './units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 const dtS = 0.01
 const n = 2001
 const acceleration = Array.from(
   { length: n },
-  (_, i) => 0.5 * STANDARD_GRAVITY_MPERS2 * Math.sin(2 * Math.PI * i * dtS) * Math.exp(-i / 800),
+  (_, i) => 0.5 * STANDARD_GRAVITY_M_PER_S2 * Math.sin(2 * Math.PI * i * dtS) * Math.exp(-i / 800),
 )
 const velocity = acceleration.map((v) => v * 0.01)
 const displacement = acceleration.map((v) => v * 0.001)

@@ -1,14 +1,14 @@
 import { Resvg } from '@resvg/resvg-js'
 import { describe, expect, it } from 'vitest'
 import { type TripartiteDiagonal, TRIPARTITE_UNITS, buildTripartiteChart } from './tripartiteChart.js'
-import { METRES_PER_INCH, STANDARD_GRAVITY_MPERS2 } from './units.js'
+import { METRES_PER_INCH, STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 /**
  * Points chosen to sit on a labelled SD diagonal and a labelled PSA diagonal at once:
  * PSA = (2π/T)²·SD, so T = 2π·√(SD/PSA) (pseudo-spectral relations, Chopra, Dynamics of
  * Structures, §6.6).
  */
-const g = STANDARD_GRAVITY_MPERS2
+const g = STANDARD_GRAVITY_M_PER_S2
 const POINTS = [
   { sdCm: 1, psaG: 1 },
   { sdCm: 10, psaG: 0.1 },

@@ -1,9 +1,10 @@
 import { describe, expect, it } from 'vitest'
-import { STANDARD_GRAVITY_MPERS2, formatSignificant, fromSI, unitsFor } from './units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
+import { formatSignificant, fromSI, unitsFor } from './units.js'
 
 describe('fromSI', () => {
   it('converts accelerations to g with standard gravity, 9.80665 m/s² (3rd CGPM, 1901)', () => {
-    expect(fromSI(STANDARD_GRAVITY_MPERS2, 'g')).toBe(1)
+    expect(fromSI(STANDARD_GRAVITY_M_PER_S2, 'g')).toBe(1)
     expect(fromSI(4.903325, 'g')).toBeCloseTo(0.5, 12)
   })
   it('converts displacements to mm and velocities to cm/s', () => {

@@ -3,19 +3,15 @@
  * (m/s², m/s, m) and are converted only when drawn or tabulated.
  */
 
-/** Standard gravity, 9.80665 m/s² (3rd CGPM, 1901). */
-export const STANDARD_GRAVITY_MPERS2 = 9.80665
+import { METRES_PER_INCH, STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 export type SpectrumQuantity = 'PSA' | 'SA' | 'PSV' | 'SV' | 'SD'
 export type MotionKind = 'acceleration' | 'velocity' | 'displacement'
 export type DisplayUnit = 'g' | 'm/s²' | 'm/s' | 'cm/s' | 'in/s' | 'm' | 'cm' | 'mm' | 'in'
 
-/** The international inch, exactly 0.0254 m (international yard and pound agreement, 1959). */
-export const METRES_PER_INCH = 0.0254
-
 /** How many SI units make one display unit, and what the unit measures. */
 export const displayUnits: Record<DisplayUnit, { siPerUnit: number; kind: MotionKind }> = {
-  g: { siPerUnit: STANDARD_GRAVITY_MPERS2, kind: 'acceleration' },
+  g: { siPerUnit: STANDARD_GRAVITY_M_PER_S2, kind: 'acceleration' },
   'm/s²': { siPerUnit: 1, kind: 'acceleration' },
   'm/s': { siPerUnit: 1, kind: 'velocity' },
   'cm/s': { siPerUnit: 0.01, kind: 'velocity' },

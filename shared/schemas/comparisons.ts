@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { combinationSchema } from '../vocabulary/combinations.js'
 import { idSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 import { targetDefinitionSchema, targetInputSchema } from './targets.js'
@@ -6,10 +7,7 @@ import { targetDefinitionSchema, targetInputSchema } from './targets.js'
 /** At most this many runs in one comparison. */
 export const MAX_COMPARISON_RUNS = 60
 
-export const combinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'], {
-  error: 'Choose geomean, rotd50 or rotd100.',
-})
-export type Combination = z.infer<typeof combinationSchema>
+export { combinationSchema, type Combination } from '../vocabulary/combinations.js'
 
 export const meanKindSchema = z.enum(['arithmetic', 'geometric'], {
   error: 'Choose arithmetic or geometric.',

@@ -1,13 +1,13 @@
 import { z } from 'zod'
 import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
-import { SOURCE_UNITS, type SourceUnits } from '../spectra/units.js'
+import { SOURCE_UNITS } from '../spectra/units.js'
 import { idSchema } from './common.js'
 
 /** The upload limits of POST /api/records. */
 export const MAX_UPLOAD_BYTES = 50 * 1024 * 1024
 export { MAX_RECORD_POINTS }
 
-export const sourceUnitsSchema = z.enum(SOURCE_UNITS as [SourceUnits, ...SourceUnits[]], {
+export const sourceUnitsSchema = z.enum(SOURCE_UNITS, {
   error: `Choose one of ${SOURCE_UNITS.join(', ')}.`,
 })
 

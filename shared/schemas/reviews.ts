@@ -1,9 +1,8 @@
 import { z } from 'zod'
+import { STORED_REVIEW_STATES } from '../vocabulary/reviewStates.js'
 import { idSchema } from './common.js'
 
-/** draft = never submitted (no review row yet). */
-export const reviewStateSchema = z.enum(['draft', 'submitted', 'checked', 'returned'])
-export type ReviewState = z.infer<typeof reviewStateSchema>
+export { reviewStateSchema, type ReviewState } from '../vocabulary/reviewStates.js'
 
 export const reviewSubjectTypeSchema = z.enum(['run', 'comparison'], {
   error: 'subjectType must be run or comparison.',
@@ -42,7 +41,7 @@ export type ReviewCommentBody = z.infer<typeof reviewCommentBodySchema>
 /** GET /api/reviews */
 export const reviewListQuerySchema = z.strictObject({
   state: z
-    .enum(['submitted', 'checked', 'returned'], { error: 'state must be submitted, checked or returned.' })
+    .enum(STORED_REVIEW_STATES, { error: `state must be one of ${STORED_REVIEW_STATES.join(', ')}.` })
     .optional(),
   /** Only reviews the signed-in member submitted ("my submissions"). */
   mine: z.enum(['true', 'false']).optional(),
@@ -70,7 +69,7 @@ export const reviewSchema = z.object({
   subjectName: z.string(),
   /** Who made the work (ran the run or created the comparison). */
   subjectAuthor: person,
-  state: reviewStateSchema.exclude(['draft']),
+  state: z.enum(STORED_REVIEW_STATES),
   submittedBy: person,
   submittedAt: z.number(),
   decidedBy: person.nullable(),

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { type DisplayUnit, type SpectrumQuantity, displayUnits, spectrumQuantities } from '../charts/units.js'
+import { reviewStateSchema } from '../vocabulary/reviewStates.js'
 
 /**
  * The calc-package sheet of a run or a comparison, as the server builds it
@@ -80,8 +81,6 @@ export const sheetRecordSchema = z.object({
   fields: z.array(sheetFieldSchema),
 })
 export type SheetRecord = z.infer<typeof sheetRecordSchema>
-
-export const reviewStateSchema = z.enum(['draft', 'submitted', 'returned', 'checked'])
 
 export const sheetReviewSchema = z.object({
   state: reviewStateSchema,

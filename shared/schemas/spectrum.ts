@@ -1,4 +1,6 @@
 import { z } from 'zod'
+import { SOURCE_UNITS } from '../spectra/units.js'
+import { combinationSchema } from '../vocabulary/combinations.js'
 import { runMethodSchema, runSettingsSchema } from './runs.js'
 import { methodStatementSchema } from './spectrumWorker.js'
 
@@ -7,7 +9,7 @@ import { methodStatementSchema } from './spectrumWorker.js'
  * what the API answers for a run (with the run's `settings` added).
  */
 
-export const sourceUnitsSchema = z.enum(['g', 'm/s2', 'cm/s2', 'in/s2'])
+export const sourceUnitsSchema = z.enum(SOURCE_UNITS)
 
 const nonNegative = z.number().nonnegative()
 const series = z.array(nonNegative)
@@ -27,14 +29,11 @@ export const spectrumRecordSchema = z.object({
 })
 export type SpectrumRecordSummary = z.infer<typeof spectrumRecordSchema>
 
-/** How two horizontal components were combined (absent for a single record). */
-export const spectrumCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'])
-export type SpectrumCombination = z.infer<typeof spectrumCombinationSchema>
-
 /** One damping ratio's ordinates, in the order of `periodsS`. Peak times are given for single records. */
 export const spectrumCurveSchema = z.object({
   dampingRatio: z.number().min(0).lt(0.5),
-  combination: spectrumCombinationSchema.optional(),
+  /** How two horizontal components were combined (absent for a single record). */
+  combination: combinationSchema.optional(),
   sdM: series,
   svMPerS: series,
   saMPerS2: series,

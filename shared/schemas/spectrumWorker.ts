@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { combinationSchema } from '../vocabulary/combinations.js'
 import { runMethodSchema } from './runs.js'
 
 /**
@@ -6,9 +7,6 @@ import { runMethodSchema } from './runs.js'
  * Both sides parse what they receive. Samples and result series travel as transferred
  * buffers, never copied.
  */
-
-/** How a pair run combines its two components (spelled as in shared/schemas/spectrum.ts). */
-const pairCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'])
 
 const float64ArraySchema = z.custom<Float64Array>((v) => v instanceof Float64Array, 'expected a Float64Array')
 
@@ -34,7 +32,7 @@ export const workerSettingsSchema = z.object({
   dampingRatios: z.array(z.number().min(0).lt(0.5)).min(1),
   periodsS: z.array(z.number().positive()).min(1),
   /** Pair runs only: which combinations of the two components to compute. */
-  combinations: z.array(pairCombinationSchema).min(1).optional(),
+  combinations: z.array(combinationSchema).min(1).optional(),
 })
 
 export const workerRequestSchema = z.discriminatedUnion('type', [
@@ -90,7 +88,7 @@ export const workerComputationSchema = z.object({
 /** One damping ratio and combination of a pair run (shared/spectra/rotd.ts), series as buffers. */
 export const workerPairCurveSchema = z.object({
   dampingRatio: z.number(),
-  combination: pairCombinationSchema,
+  combination: combinationSchema,
   sdM: float64ArraySchema,
   svMPerS: float64ArraySchema,
   saMPerS2: float64ArraySchema,

@@ -9,7 +9,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { comparisonChartInput } from '../../shared/charts/comparisonChartInput.js'
 import { runSpectrumChartInput } from '../../shared/charts/runSpectrumChartInput.js'
 import { spectrumChartSvg } from '../../shared/charts/spectrumChart.js'
-import { STANDARD_GRAVITY_MPERS2, formatSignificant } from '../../shared/charts/units.js'
+import { formatSignificant } from '../../shared/charts/units.js'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { sheetSchema } from '../../shared/schemas/sheets.js'
 import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
@@ -152,7 +153,7 @@ describe('GET /api/runs/:id/export.pdf', () => {
     const at1s = (spectrum.periodsS as number[]).indexOf(1)
     expect(at1s).toBeGreaterThan(0)
     const expected = (spectrum.curves as Array<{ psaMPerS2: number[] }>).map((c) =>
-      formatSignificant((c.psaMPerS2[at1s] as number) / STANDARD_GRAVITY_MPERS2),
+      formatSignificant((c.psaMPerS2[at1s] as number) / STANDARD_GRAVITY_M_PER_S2),
     )
     const table = text.slice(text.indexOf('at standard periods'))
     const row = /^\s*1\s+(\S+)\s+(\S+)\s*$/m.exec(table)
