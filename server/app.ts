@@ -24,6 +24,7 @@ import { projectsRouter } from './routes/projects.js'
 import { recordPairsRouter } from './routes/recordPairs.js'
 import { recordsRouter } from './routes/records.js'
 import { reviewsRouter } from './routes/reviews.js'
+import { runBatchesRouter } from './routes/runBatches.js'
 import { runsRouter } from './routes/runs.js'
 import { targetsRouter } from './routes/targets.js'
 
@@ -83,6 +84,7 @@ export function createApp(deps: AppDeps) {
   api.use(recordsRouter(deps))
   api.use(recordPairsRouter(deps))
   api.use(runsRouter(deps))
+  api.use(runBatchesRouter(deps))
   api.use(creditsRouter(deps))
   api.use(targetsRouter(deps))
   api.use(comparisonsRouter(deps))

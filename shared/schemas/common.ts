@@ -11,6 +11,9 @@ export const apiErrorSchema = z.object({
     message: z.string(),
     line: z.number().int().optional(),
     issues: z.array(z.unknown()).optional(),
+    /** 402 no_credits: the credits the request needs and the firm's balance. */
+    needed: z.number().int().optional(),
+    balance: z.number().int().optional(),
   }),
 })
 export type ApiErrorBody = z.infer<typeof apiErrorSchema>

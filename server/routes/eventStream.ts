@@ -1,0 +1,43 @@
+import type { Request, Response } from 'express'
+import type { RunEvent } from '../runs/runEvents.js'
+
+/** How often an open event stream gets a comment line, so proxies keep it open. */
+const HEARTBEAT_MS = 15_000
+
+export interface EventStream {
+  /** Writes one event: `event:` is its type, `data:` the rest as JSON. */
+  send(event: RunEvent): void
+  /** Runs `cleanup` when the stream closes, from either side. */
+  onClose(cleanup: () => void): void
+  /** Ends the stream (once; later calls do nothing). */
+  close(): void
+}
+
+/** Starts a server-sent event stream (HTML Living Standard, "Server-sent events") with a heartbeat. */
+export function openEventStream(req: Request, res: Response): EventStream {
+  res.writeHead(200, {
+    'content-type': 'text/event-stream; charset=utf-8',
+    'cache-control': 'no-cache, no-transform',
+    connection: 'keep-alive',
+    'x-accel-buffering': 'no',
+  })
+  const cleanups: (() => void)[] = []
+  const heartbeat = setInterval(() => res.write(': keep-alive\n\n'), HEARTBEAT_MS)
+  let closed = false
+  const close = () => {
+    if (closed) return
+    closed = true
+    clearInterval(heartbeat)
+    for (const cleanup of cleanups) cleanup()
+    res.end()
+  }
+  req.on('close', close)
+  return {
+    send(event) {
+      const { type, ...data } = event
+      if (!closed) res.write(`event: ${type}\ndata: ${JSON.stringify(data)}\n\n`)
+    },
+    onClose: (cleanup) => cleanups.push(cleanup),
+    close,
+  }
+}

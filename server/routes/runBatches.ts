@@ -1,0 +1,65 @@
+import { Router } from 'express'
+import { idParamsSchema } from '../../shared/schemas/common.js'
+import { createRunBatchBodySchema, runBatchListQuerySchema } from '../../shared/schemas/runBatches.js'
+import { isFinished } from '../../shared/schemas/runs.js'
+import type { AppDeps } from '../deps.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
+import { openEventStream } from './eventStream.js'
+import { createRunBatch, getRunBatch, listRunBatches } from '../services/runBatches.js'
+
+export function runBatchesRouter(deps: AppDeps) {
+  const router = Router()
+
+  router.get('/run-batches', requireMember, (req, res) => {
+    const query = runBatchListQuerySchema.parse(req.query)
+    res.json({ items: listRunBatches(deps.db, memberOf(req).firmId, query) })
+  })
+
+  router.post('/run-batches', requireAction('runs.start'), (req, res) => {
+    const body = createRunBatchBodySchema.parse(req.body)
+    const batch = createRunBatch(deps.db, memberOf(req), body)
+    deps.runQueue?.kick()
+    res.status(202).json(batch)
+  })
+
+  router.get('/run-batches/:id', requireMember, (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    res.json(getRunBatch(deps.db, memberOf(req).firmId, id))
+  })
+
+  /**
+   * Server-sent events: each run's current `status` first, then the runs' `progress` and
+   * `status` events as /api/runs/:id/events sends them (each names its runId). The stream
+   * closes once every run has finished.
+   */
+  router.get('/run-batches/:id/events', requireMember, (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    const batch = getRunBatch(deps.db, memberOf(req).firmId, id)
+    const stream = openEventStream(req, res)
+    const open = new Set<string>()
+    for (const run of batch.runs) {
+      stream.send({
+        type: 'status',
+        runId: run.id,
+        status: run.status,
+        progress: run.progress,
+        error: run.error,
+      })
+      if (!isFinished(run.status)) open.add(run.id)
+    }
+    if (open.size === 0) return stream.close()
+    for (const runId of open) {
+      const unsubscribe =
+        deps.runQueue?.subscribe(runId, (event) => {
+          stream.send(event)
+          if (event.type !== 'status' || !isFinished(event.status)) return
+          open.delete(runId)
+          unsubscribe()
+          if (open.size === 0) stream.close()
+        }) ?? (() => {})
+      stream.onClose(unsubscribe)
+    }
+  })
+
+  return router
+}
