@@ -50,21 +50,30 @@ function withDensity(png: Buffer, dpi: number): Buffer {
   return Buffer.concat([png.subarray(0, signatureAndIhdr), chunk, png.subarray(signatureAndIhdr)])
 }
 
-/** The plot at `widthMm` printed width, 300 dpi. */
-export function renderChartPng(chart: SpectrumChartInput, widthMm: number): Buffer {
-  const fonts = exportFontFiles()
+/** The SVG the PNG is drawn from: the chart laid out at `widthMm` printed width. */
+export function printChartSvg(chart: SpectrumChartInput, widthMm: number): string {
   const printable = printableDeep(chart)
-  const svg = chartSvg({ data: printable.data, options: { ...printable.options, ...printLayout(widthMm) } })
-  const resvg = new Resvg(svg, {
+  return chartSvg({ data: printable.data, options: { ...printable.options, ...printLayout(widthMm) } })
+}
+
+/** resvg with the export fonts and nothing from the system, so every machine draws alike. */
+export function exportResvg(svg: string, fitTo: { mode: 'width'; value: number } | undefined): Resvg {
+  const fonts = exportFontFiles()
+  return new Resvg(svg, {
     font: {
       loadSystemFonts: false,
       fontFiles: [fonts.regular, fonts.semibold],
       defaultFontFamily: EXPORT_FONT_FAMILY,
       sansSerifFamily: EXPORT_FONT_FAMILY,
     },
-    fitTo: { mode: 'width', value: pngWidthPx(widthMm) },
+    ...(fitTo ? { fitTo } : {}),
     background: '#ffffff',
     logLevel: 'off',
   })
+}
+
+/** The plot at `widthMm` printed width, 300 dpi. */
+export function renderChartPng(chart: SpectrumChartInput, widthMm: number): Buffer {
+  const resvg = exportResvg(printChartSvg(chart, widthMm), { mode: 'width', value: pngWidthPx(widthMm) })
   return withDensity(resvg.render().asPng(), PNG_DPI)
 }

@@ -17,8 +17,9 @@ import {
   yAxisMarkup,
   yGridMarkup,
 } from './axes.js'
+import { layoutLegend, wrapText } from './legendLayout.js'
 import { palette, seriesColours } from './palette.js'
-import { FONT_FAMILY, escapeXml, px, safeId, truncateToWidth } from './svgMarkup.js'
+import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
 import { type DisplayUnit, type SpectrumQuantity, checkUnit, fromSI, spectrumQuantities } from './units.js'
 
 /**
@@ -109,6 +110,9 @@ const ROLE_STYLES: Record<Exclude<SeriesRole, 'record'>, RoleStyle> = {
 
 const LEGEND_ROW_PX = 18
 const FONT_SIZE_PX = 12
+const NOTE_FONT_SIZE_PX = 11
+/** Room before each legend text for its swatch. */
+const LEGEND_INDENT_PX = 30
 
 /** Damping as the legend shows it: 0.05 → "ζ = 5%". */
 export function dampingLabel(dampingRatio: number): string {
@@ -192,17 +196,31 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
 
   const legendEntries = [
     ...(data.band ? [{ kind: 'band' as const, label: data.band.label }] : []),
-    ...data.series.map((s, i) => ({ kind: 'series' as const, index: i, label: s.label })),
+    ...data.series.map((s, i) => ({
+      kind: 'series' as const,
+      index: i,
+      label: s.dampingRatio === undefined ? s.label : `${s.label}, ${dampingLabel(s.dampingRatio)}`,
+    })),
   ]
-  const legendColumns = legendEntries.length > 1 && widthPx >= 560 ? 2 : 1
-  const legendRows = Math.ceil(legendEntries.length / legendColumns)
   const plot: PlotRect = {
     left: 72,
     top: options.title ? 36 : 14,
     width: 0,
     height: 0,
   }
-  const bottomPx = 44 + legendRows * LEGEND_ROW_PX + (options.note ? LEGEND_ROW_PX : 0) + 8
+  // Legend and note wrap onto more lines rather than lose their ends (values such as "ζ = 5%").
+  const legendWidthPx = widthPx - plot.left - 20
+  const legend = layoutLegend(
+    legendEntries.map((e) => e.label),
+    {
+      widthPx: legendWidthPx,
+      fontSizePx: FONT_SIZE_PX,
+      indentPx: LEGEND_INDENT_PX,
+      minTwoColumnWidthPx: 560,
+    },
+  )
+  const noteLines = options.note ? wrapText(options.note, legendWidthPx, NOTE_FONT_SIZE_PX) : []
+  const bottomPx = 44 + (legend.lineCount + noteLines.length) * LEGEND_ROW_PX + 8
   plot.width = Math.max(40, widthPx - plot.left - 20)
   plot.height = Math.max(40, heightPx - plot.top - bottomPx)
 
@@ -316,34 +334,25 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   }
 
   const legendTop = plot.top + plot.height + 52
-  const columnWidth = (widthPx - plot.left - 20) / legendColumns
+  const columnWidth = legendWidthPx / legend.columns
   legendEntries.forEach((entry, i) => {
-    const col = i % legendColumns
-    const row = Math.floor(i / legendColumns)
-    const lx = plot.left + col * columnWidth
-    const ly = legendTop + row * LEGEND_ROW_PX
+    const placed = legend.entries[i]
+    if (!placed) return
+    const lx = plot.left + placed.column * columnWidth
+    const ly = legendTop + placed.line * LEGEND_ROW_PX
     let swatch: string
-    let text = entry.label
     if (entry.kind === 'band') {
       swatch = `<rect x="${px(lx)}" y="${px(ly - 9)}" width="24" height="10" fill="${palette.ink}" fill-opacity="0.12"/>`
     } else {
-      const s = data.series[entry.index]
       const style = styles[entry.index] ?? ROLE_STYLES.mean
       const dash = style.dash ? ` stroke-dasharray="${escapeXml(style.dash)}"` : ''
       swatch = `<line x1="${px(lx)}" y1="${px(ly - 4)}" x2="${px(lx + 24)}" y2="${px(ly - 4)}" stroke="${style.colour}" stroke-width="${style.widthPx}"${dash}/>`
-      if (s?.dampingRatio !== undefined) text = `${text}, ${dampingLabel(s.dampingRatio)}`
     }
-    const shown = truncateToWidth(text, columnWidth - 40, FONT_SIZE_PX)
-    const fullTitle = shown === text ? '' : `<title>${escapeXml(text)}</title>`
-    parts.push(
-      `<g>${swatch}<text x="${px(lx + 30)}" y="${px(ly)}" fill="${palette.text}">${fullTitle}${escapeXml(shown)}</text></g>`,
-    )
+    parts.push(`<g>${swatch}${textLines(placed.lines, lx + LEGEND_INDENT_PX, ly, palette.text)}</g>`)
   })
-  if (options.note) {
-    const ny = legendTop + legendRows * LEGEND_ROW_PX
-    parts.push(
-      `<text x="${px(plot.left)}" y="${px(ny)}" fill="${palette.textMuted}" font-size="11">${escapeXml(options.note)}</text>`,
-    )
+  if (noteLines.length > 0) {
+    const ny = legendTop + legend.lineCount * LEGEND_ROW_PX
+    parts.push(textLines(noteLines, plot.left, ny, palette.textMuted, NOTE_FONT_SIZE_PX))
   }
   parts.push('</svg>')
 
@@ -351,6 +360,20 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
     svg: parts.join(''),
     frame: { widthPx, heightPx, plot, xScale: xKind, yScale: yKind, xDomainS, yDomain, unit },
   }
+}
+
+/**
+ * One SVG text element per line, LEGEND_ROW_PX apart. Separate elements rather than tspans,
+ * so that the PDF exporter (svg-to-pdfkit) and pdftotext read each line whole.
+ */
+function textLines(lines: string[], x: number, y: number, fill: string, fontSizePx?: number): string {
+  const size = fontSizePx === undefined ? '' : ` font-size="${fontSizePx}"`
+  return lines
+    .map(
+      (l, i) =>
+        `<text x="${px(x)}" y="${px(y + i * LEGEND_ROW_PX)}" fill="${fill}"${size}>${escapeXml(l)}</text>`,
+    )
+    .join('')
 }
 
 /** The chart as SVG text; see {@link buildSpectrumChart}. */

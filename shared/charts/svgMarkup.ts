@@ -29,13 +29,3 @@ export function safeId(id: string): string {
 }
 
 export const FONT_FAMILY = "'Source Sans 3', 'Source Sans Pro', Arial, sans-serif"
-
-/**
- * A rough width for a line of text, used only to decide where to shorten a
- * legend label; the charts never measure text, so the server and the browser
- * lay a chart out identically.
- */
-export function truncateToWidth(text: string, widthPx: number, fontSizePx: number): string {
-  const maxChars = Math.max(4, Math.floor(widthPx / (fontSizePx * 0.52)))
-  return text.length <= maxChars ? text : `${text.slice(0, maxChars - 1)}…`
-}
