@@ -7,10 +7,12 @@ import { SqliteSessionStore } from './auth/sqliteSessionStore.js'
 import type { AppDeps } from './deps.js'
 import { notFound } from './httpError.js'
 import { loadMember } from './middleware/auth.js'
+import { loadBearerMember, unlessBearer } from './middleware/bearerToken.js'
 import { csrfGuard } from './middleware/csrf.js'
 import { errorHandler } from './middleware/errorHandler.js'
 import { passwordResetLimiters, signInLimiters } from './middleware/rateLimits.js'
 import { projectRoot } from './projectRoot.js'
+import { apiTokensRouter } from './routes/apiTokens.js'
 import { authRouter } from './routes/auth.js'
 import { comparisonsRouter } from './routes/comparisons.js'
 import { creditsRouter } from './routes/credits.js'
@@ -18,6 +20,7 @@ import { devMailboxRouter } from './routes/devMailbox.js'
 import { exportsRouter } from './routes/exports.js'
 import { healthRouter } from './routes/health.js'
 import { invitationsRouter } from './routes/invitations.js'
+import { meRouter } from './routes/me.js'
 import { membersRouter } from './routes/members.js'
 import { passwordResetsRouter } from './routes/passwordResets.js'
 import { projectsRouter } from './routes/projects.js'
@@ -71,12 +74,17 @@ export function createApp(deps: AppDeps) {
       cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: 8 * 60 * 60 * 1000 },
     }),
   )
-  api.use(loadMember(deps.db))
-  api.use(csrfGuard(() => (deps.config.publicUrl ? [new URL(deps.config.publicUrl).origin] : [])))
+  api.use(loadBearerMember(deps.db))
+  api.use(unlessBearer(loadMember(deps.db)))
+  api.use(
+    unlessBearer(csrfGuard(() => (deps.config.publicUrl ? [new URL(deps.config.publicUrl).origin] : []))),
+  )
 
   api.use(healthRouter())
   api.use(authRouter(deps, signInLimiters(deps.config.rateLimits)))
   api.use(passwordResetsRouter(deps, passwordResetLimiters(deps.config.rateLimits)))
+  api.use(meRouter(deps))
+  api.use(apiTokensRouter(deps))
   api.use(membersRouter(deps))
   api.use(invitationsRouter(deps))
   if (deps.devMailbox && deps.config.env !== 'production') api.use(devMailboxRouter(deps.devMailbox))

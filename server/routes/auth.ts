@@ -1,7 +1,6 @@
 import { Router, type Request } from 'express'
 import { signInBodySchema } from '../../shared/schemas/accounts.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireMember } from '../middleware/auth.js'
 import { toSessionInfo, verifyCredentials } from '../services/auth.js'
 import { recordAudit } from '../services/audit.js'
 
@@ -35,10 +34,6 @@ export function authRouter(deps: AppDeps, signInLimiters: import('express').Requ
       res.clearCookie(deps.sessionCookieName)
       res.status(204).end()
     })
-  })
-
-  router.get('/me', requireMember, (req, res) => {
-    res.json(toSessionInfo(memberOf(req)))
   })
 
   return router
