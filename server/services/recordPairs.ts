@@ -1,8 +1,8 @@
 import { and, desc, eq, or } from 'drizzle-orm'
 import type { CreateRecordPairBody, RecordPair, RecordPairDetail } from '../../shared/schemas/recordPairs.js'
 import type { Db } from '../db/client.js'
-import { recordPairs } from '../db/schema.js'
-import { badRequest, conflict } from '../httpError.js'
+import { recordPairs, runs } from '../db/schema.js'
+import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
@@ -117,4 +117,38 @@ export function listRecordPairs(db: Db, firmId: string): RecordPairDetail[] {
       createdBy: p.createdBy,
       createdAt: p.createdAt,
     }))
+}
+
+/**
+ * Removes one of the firm's pairs (its two records stay). Refused with 409 while any run
+ * uses the pair, since that run's spectrum and sheet name it; another firm's pair answers 404.
+ */
+export function removeRecordPair(db: Db, member: Pick<Member, 'userId' | 'firmId'>, id: string): void {
+  db.transaction(
+    (tx) => {
+      const pair = tx
+        .select({ name: recordPairs.name })
+        .from(recordPairs)
+        .where(and(eq(recordPairs.firmId, member.firmId), eq(recordPairs.id, id)))
+        .get()
+      if (!pair) throw notFound('The pair')
+      const used = tx.select({ id: runs.id }).from(runs).where(eq(runs.pairId, id)).all()
+      if (used.length > 0) {
+        throw conflict(
+          `"${pair.name}" has ${used.length === 1 ? 'a run' : `${used.length} runs`}; a pair that a run uses cannot be deleted.`,
+          'pair_in_use',
+        )
+      }
+      tx.delete(recordPairs).where(eq(recordPairs.id, id)).run()
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: 'record_pair.removed',
+        subjectType: 'record_pair',
+        subjectId: id,
+        detail: { name: pair.name },
+      })
+    },
+    { behavior: 'immediate' },
+  )
 }

@@ -1,4 +1,5 @@
 import {
+  type CreatePairRunBody,
   type CreateRunBody,
   type Run,
   type RunProgressEvent,
@@ -29,6 +30,13 @@ export function getRun(id: string): Promise<Run> {
 
 /** `POST /api/runs`: 202 with the queued run; 402 `no_credits` when the firm has none left. */
 export function createRun(input: NewRunInput): Promise<Run> {
+  return apiRequest('/api/runs', runSchema, { method: 'POST', body: input })
+}
+
+/** `POST /api/runs` of a record pair, with the combinations to compute (RotD50, RotD100, geometric mean). */
+export function createPairRun(
+  input: Pick<CreatePairRunBody, 'pairId' | 'combinations'> & Partial<CreatePairRunBody>,
+): Promise<Run> {
   return apiRequest('/api/runs', runSchema, { method: 'POST', body: input })
 }
 

@@ -59,6 +59,38 @@ const router = createRouter({
       meta: { title: 'Record' },
     },
     {
+      path: '/pairs',
+      name: 'pairs',
+      component: () => import('@/views/PairsView.vue'),
+      meta: { title: 'Pairs' },
+    },
+    {
+      path: '/pairs/:id',
+      name: 'pair',
+      component: () => import('@/views/PairView.vue'),
+      props: true,
+      meta: { title: 'Pair' },
+    },
+    {
+      path: '/batches/:id',
+      name: 'batch',
+      component: () => import('@/views/BatchView.vue'),
+      props: true,
+      meta: { title: 'Batch' },
+    },
+    {
+      path: '/projects',
+      name: 'projects',
+      component: () => import('@/views/ProjectsView.vue'),
+      meta: { title: 'Projects' },
+    },
+    {
+      path: '/account',
+      name: 'account',
+      component: () => import('@/views/AccountView.vue'),
+      meta: { title: 'Account' },
+    },
+    {
       path: '/credits',
       name: 'credits',
       component: () => import('@/views/CreditsView.vue'),

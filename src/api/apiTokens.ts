@@ -1,0 +1,26 @@
+import { z } from 'zod'
+import {
+  type ApiToken,
+  type CreateApiTokenBody,
+  type CreatedApiToken,
+  apiTokenListSchema,
+  createdApiTokenSchema,
+} from '../../shared/schemas/apiTokens'
+import { apiRequest } from './client'
+
+export type { ApiToken, CreateApiTokenBody, CreatedApiToken } from '../../shared/schemas/apiTokens'
+
+/** `GET /api/me/tokens`: the member's own tokens, never their secrets. */
+export async function listApiTokens(): Promise<ApiToken[]> {
+  return (await apiRequest('/api/me/tokens', apiTokenListSchema)).items
+}
+
+/** `POST /api/me/tokens` (201): the only answer that holds the secret. */
+export function createApiToken(body: CreateApiTokenBody): Promise<CreatedApiToken> {
+  return apiRequest('/api/me/tokens', createdApiTokenSchema, { method: 'POST', body })
+}
+
+/** `DELETE /api/me/tokens/:id` (204): the token stops working at once. */
+export async function revokeApiToken(id: string): Promise<void> {
+  await apiRequest(`/api/me/tokens/${encodeURIComponent(id)}`, z.undefined(), { method: 'DELETE' })
+}
