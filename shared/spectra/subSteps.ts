@@ -1,43 +1,54 @@
 /**
  * The automatic sub-step rule. Each oscillator's step h = Δt/m, with the record
- * interpolated linearly between samples, is chosen from (T, ζ, Δt, duration
- * and method) alone, so an ordinate never depends on which other periods or
- * damping ratios share the sweep. Target: every ordinate within 0.5% of the
- * exact response to the linearly interpolated record.
+ * interpolated linearly between samples, is chosen from (T, ζ, Δt, duration,
+ * method and how peaks are read) alone, so an ordinate never depends on which
+ * other periods or damping ratios share the sweep. Target: every ordinate within
+ * 0.5% of the exact response to the linearly interpolated record.
  *
- * 1. Peak picking. Peaks are read at sub-step ends. Within a step, with the
- *    forcing linear, the response is a particular solution (u linear in t, v
- *    constant, absolute acceleration equal to a_g, also linear) plus a damped
- *    sinusoid of amplitude R, so a peak between step ends exceeds the larger
- *    end value by at most max|f''|·h²/8: ω²R·h²/8 for u, ω³R·h²/8 for v and
- *    ω⁴(1+2ζ)R·h²/8 for the absolute acceleration. For a pure sinusoid this is
- *    the familiar 1 − cos(π/n) ≈ (π/n)²/2 with n = T/h (DOMAIN notes: 4.9% at
- *    n = 10, 0.2% at n = 50). First pass: n ≥ 64 (0.12% for a sinusoid). Then,
- *    from the peaks found, R is bounded from the record's PGA and steepest
- *    slope J (sharp forcing can make v and A peak sharply), or from the kinks
- *    of the record ({@link freeAmplitudeBound}), whichever is smaller, and the
- *    oscillator is run again with more sub-steps while the bound exceeds 0.25%
- *    ({@link peakPickingBound}).
- * 2. Solver error (Newmark only; the piecewise-exact recurrence of Nigam &
- *    Jennings 1969 is exact at step ends for linear forcing). Both Newmark
- *    variants reproduce the particular solution for forcing linear over the
- *    step exactly, so their error is in how they propagate free vibration: the
- *    step's eigenvalue λ̃ against the exact λ = −ζω ± iω_D. Its relative error
- *    ε = |λ̃h − λh|/(ωh) (average acceleration: ε ≈ (ωh)²/12, the period
- *    elongation T̄/T = x/arctan x, x = πh/T, Newmark 1959; Chopra sec. 5.5)
- *    is computed from the actual step matrix. An error ε in λ grows in a
- *    response to about ε·ω·M, M being how long the oscillator remembers its
- *    input, M = min(D/2, 1/(ζω)) for a record of duration D (coherent forcing
- *    at resonance: u grows as t for ζ = 0, and settles within 1/(ζω) for ζ > 0).
- *    The rule requires ε·(2 + ω·M) ≤ 0.25%; the 2 covers the error in the
- *    ratio of velocity to displacement amplitude, of the same order as ε.
- *    With the 0.25% of peak picking, the two stay within the 0.5% target.
- * 3. Stability: linear-acceleration Newmark needs h/T ≤ √3/π ≈ 0.551; the peak
- *    rule (h/T ≤ 1/64) always meets it.
+ * Peaks are read in one of two ways:
+ * - 'between-steps' (single records): the kernel lists every step whose interior a
+ *   rigorous bound cannot rule out, and the extremes there are found from the exact
+ *   closed form (piecewise-exact) or from cubic Hermite interpolants (Newmark); see
+ *   betweenSteps.ts. Piecewise-exact then needs no sub-steps at any period: m = 1.
+ *   Newmark's Hermite reading is within (ωh)⁴/384·ω^j·R of the exact extremes through
+ *   the same end states (j = 0, 1, 2 for SD, SV, SA; R the free-vibration amplitude),
+ *   checked after the first pass against {@link HERMITE_READING_BUDGET} (0.05%).
+ * - 'step-ends' (pairs, whose directional peaks are read at step ends): peaks at
+ *   sub-step ends, rule 1 below.
  *
- * m is the smallest count meeting 1 and 2, rounded up to 1–8 or 8, 10, 12, 14
- * times a power of two so that oscillators of neighbouring periods share a
- * count (and so a kernel pass), capped at {@link MAX_SUB_STEPS}.
+ * 1. Peak picking at step ends. Within a step, with the forcing linear, the response is
+ *    a particular solution (u linear in t, v constant, absolute acceleration equal to a_g,
+ *    also linear) plus a damped sinusoid of amplitude R, so a peak between step ends exceeds
+ *    the larger end value by at most max|f''|·h²/8: ω²R·h²/8 for u, ω³R·h²/8 for v and
+ *    ω⁴(1+2ζ)R·h²/8 for the absolute acceleration. For a pure sinusoid this is the familiar
+ *    1 − cos(π/n) ≈ (π/n)²/2 with n = T/h (DOMAIN notes: 4.9% at n = 10, 0.2% at n = 50).
+ *    First pass: n ≥ 64 (0.12% for a sinusoid). Then, from the peaks found, R is bounded
+ *    from the record's PGA and steepest slope J, or from the kinks of the record
+ *    ({@link freeAmplitudeBound}), whichever is smaller, and the oscillator is run again with
+ *    more sub-steps while the bound exceeds 0.25% ({@link peakPickingBound}).
+ * 2. Solver error (Newmark only; the piecewise-exact recurrence of Nigam & Jennings 1969 is
+ *    exact at step ends for linear forcing). Both Newmark variants reproduce the particular
+ *    solution for forcing linear over the step exactly, so their error is in how they
+ *    propagate free vibration: the step's eigenvalue λ̃ against the exact λ = −ζω ± iω_D.
+ *    Its relative error ε = |λ̃h − λh|/(ωh) (average acceleration: ε ≈ (ωh)²/12, the period
+ *    elongation T̄/T = x/arctan x, x = πh/T, Newmark 1959; Chopra sec. 5.5) is computed from
+ *    the actual step matrix. The response is a sum of free vibrations started by the forcing
+ *    over the oscillator's memory M = min(D/2, 1/(ζω)) (D the duration; coherent forcing at
+ *    resonance grows u as t for ζ = 0 and settles within 1/(ζω) for ζ > 0); an error ε in λ
+ *    shifts the phase of a free vibration of age t by ε·ω·t and its amplitude by as much, so
+ *    the ordinate errs by about ε·ω·M, plus ε again in the ratio of velocity to displacement
+ *    amplitude and once more in converting between them: ε·(2 + ω·M). The rule requires
+ *    ε·(2 + ω·M) ≤ the solver budget: 0.45% when peaks are read between steps (the Hermite
+ *    reading takes the other 0.05%), 0.25% when read at step ends (rule 1 takes 0.25%).
+ *    Where that would need more than {@link MAX_SUB_STEPS} sub-steps (ζ = 0 on long records
+ *    at periods below about 2Δt), the oscillator runs on the piecewise-exact recurrence
+ *    instead, with its exact peak search, and the method statement says so.
+ * 3. Stability: linear-acceleration Newmark needs h/T ≤ √3/π ≈ 0.551; the solver rule keeps
+ *    h/T far below it, and a check throws if it ever did not.
+ *
+ * m is the smallest count meeting the rules, rounded up to 1–8 or 8, 10, 12, 14 times a
+ * power of two so that oscillators of neighbouring periods share a count (and so a kernel
+ * pass), capped at {@link MAX_SUB_STEPS}.
  */
 import {
   NEWMARK_LINEAR_STABILITY_LIMIT,
@@ -50,9 +61,21 @@ export const ACCURACY_TARGET = 0.005
 export const PEAK_SAMPLES_PER_PERIOD = 64
 /** 1 − cos(π/64) ≈ 0.12%. */
 export const PEAK_PICKING_BOUND = 1 - Math.cos(Math.PI / PEAK_SAMPLES_PER_PERIOD)
+/** Solver budget when peaks are read at step ends (rule 1 takes the other half). */
 export const SOLVER_ERROR_BUDGET = 0.0025
 export const PEAK_PICKING_BUDGET = 0.0025
+/** Budgets when peaks are read between steps: Newmark's Hermite reading, and its solver the rest. */
+export const HERMITE_READING_BUDGET = 0.0005
+export const HERMITE_SOLVER_BUDGET = ACCURACY_TARGET - HERMITE_READING_BUDGET
 export const MAX_SUB_STEPS = 1024
+
+/** How an oscillator's peaks are read: searched between steps (records) or at step ends (pairs). */
+export type PeakReading = 'between-steps' | 'step-ends'
+
+/** The budget of the bound on peaks between steps for an oscillator read this way with this recurrence. */
+export function peakReadingBudget(reading: PeakReading = 'step-ends'): number {
+  return reading === 'between-steps' ? HERMITE_READING_BUDGET : PEAK_PICKING_BUDGET
+}
 
 /** Rounds m up to 1–8, or to 8, 10, 12 or 14 times a power of two. */
 export function quantiseSubSteps(m: number): number {
@@ -92,6 +115,8 @@ export interface SubStepChoice {
   errorEstimate: number
   /** True when the cap stopped the count short of the rule. */
   capped: boolean
+  /** The recurrence to run: the method, or piecewise-exact where Newmark would need more than the cap. */
+  recurrence: SpectrumMethod
 }
 
 /**
@@ -104,30 +129,40 @@ export function chooseSubSteps(
   dampingRatio: number,
   dtS: number,
   durationS: number,
+  reading: PeakReading = 'step-ends',
 ): SubStepChoice {
+  const between = reading === 'between-steps'
+  if (between && method === 'piecewise-exact') {
+    return { subSteps: 1, errorEstimate: 0, capped: false, recurrence: method }
+  }
+  const budget = between ? HERMITE_SOLVER_BUDGET : SOLVER_ERROR_BUDGET
   const tailS = (0.5 * periodS) / Math.sqrt(1 - dampingRatio * dampingRatio)
   const drivenS = durationS + tailS
-  let m = quantiseSubSteps(Math.ceil(((PEAK_SAMPLES_PER_PERIOD * dtS) / periodS) * (1 - 1e-12)))
+  let m = between ? 1 : quantiseSubSteps(Math.ceil(((PEAK_SAMPLES_PER_PERIOD * dtS) / periodS) * (1 - 1e-12)))
   let capped = m > MAX_SUB_STEPS
   m = Math.min(m, MAX_SUB_STEPS)
   let solver = solverErrorEstimate(method, periodS, dampingRatio, dtS / m, drivenS)
-  while (solver > SOLVER_ERROR_BUDGET && !capped) {
+  while (solver > budget && !capped) {
     if (m >= MAX_SUB_STEPS) {
       capped = true
       break
     }
     // The error falls as h² for both Newmark variants; aim there, then check.
-    const aim = Number.isFinite(solver) ? m * Math.sqrt(solver / SOLVER_ERROR_BUDGET) : 2 * m
+    const aim = Number.isFinite(solver) ? m * Math.sqrt(solver / budget) : 2 * m
     m = Math.min(MAX_SUB_STEPS, quantiseSubSteps(Math.max(aim, m + 1)))
     solver = solverErrorEstimate(method, periodS, dampingRatio, dtS / m, drivenS)
+  }
+  if (between && capped) {
+    // Newmark cannot meet its solver budget within the cap: the exact recurrence can, with no sub-steps.
+    return { subSteps: 1, errorEstimate: 0, capped: false, recurrence: 'piecewise-exact' }
   }
   const h = dtS / m
   if (method === 'newmark-linear' && h / periodS > NEWMARK_LINEAR_STABILITY_LIMIT) {
     throw new RangeError('sub-step rule broke the stability limit of linear-acceleration Newmark')
   }
   const samplesPerPeriod = periodS / h
-  const peak = 1 - Math.cos(Math.PI / Math.max(samplesPerPeriod, 1))
-  return { subSteps: m, errorEstimate: peak + solver, capped }
+  const peak = between ? 0 : 1 - Math.cos(Math.PI / Math.max(samplesPerPeriod, 1))
+  return { subSteps: m, errorEstimate: peak + solver, capped, recurrence: method }
 }
 
 export interface PeakPickingInput {
@@ -144,6 +179,9 @@ export interface PeakPickingInput {
   maxSlopeMPerS3: number
   /** A tighter bound on the free-vibration amplitude R, when known ({@link freeAmplitudeBound}). */
   freeAmplitudeM?: number
+  /** How the peaks were read (default 'step-ends') and with which recurrence (default Newmark). */
+  reading?: PeakReading
+  recurrence?: SpectrumMethod
 }
 
 /**
@@ -156,6 +194,8 @@ export interface PeakPickingInput {
  * true ones, raised by 1% (more than the bound once it meets the budget).
  */
 export function peakPickingBound(input: PeakPickingInput): number {
+  // The exact closed-form search leaves nothing between steps unread.
+  if (input.reading === 'between-steps' && input.recurrence === 'piecewise-exact') return 0
   const omega = (2 * Math.PI) / input.periodS
   const zeta = input.dampingRatio
   const k = omega * omega
@@ -172,6 +212,15 @@ export function peakPickingBound(input: PeakPickingInput): number {
     Math.hypot(uh, (vh + zeta * omega * uh) / omegaD),
     input.freeAmplitudeM ?? Infinity,
   )
+  if (input.reading === 'between-steps') {
+    // Hermite reading: |f − H| ≤ max|f|·h⁴/384, with |u| ≤ ω⁴R, |v| ≤ ω⁵R, |A| ≤ ω⁶R.
+    const h4 = input.stepS ** 4 / 384
+    return Math.max(
+      (k * k * amplitude * h4) / sd,
+      (k * k * omega * amplitude * h4) / sv,
+      (k * k * k * amplitude * h4) / sa,
+    )
+  }
   const h2 = (input.stepS * input.stepS) / 8
   return Math.max(
     (k * amplitude * h2) / sd,
@@ -229,10 +278,12 @@ export function freeAmplitudeBound(
   return largest
 }
 
-/** Sub-steps that bring a peak-picking bound found at m down to the budget (it falls as h²). */
-export function refinedSubSteps(m: number, bound: number): number {
-  return Math.min(
-    MAX_SUB_STEPS,
-    quantiseSubSteps(Math.max(m + 1, m * Math.sqrt(bound / PEAK_PICKING_BUDGET) * 1.02)),
-  )
+/**
+ * Sub-steps that bring a peak-picking bound found at m down to the budget: it falls as h² when
+ * read at step ends, as h⁴ when read from Hermite interpolants.
+ */
+export function refinedSubSteps(m: number, bound: number, reading: PeakReading = 'step-ends'): number {
+  const ratio = bound / peakReadingBudget(reading)
+  const factor = reading === 'between-steps' ? Math.sqrt(Math.sqrt(ratio)) : Math.sqrt(ratio)
+  return Math.min(MAX_SUB_STEPS, quantiseSubSteps(Math.max(m + 1, m * factor * 1.02)))
 }

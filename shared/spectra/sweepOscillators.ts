@@ -6,14 +6,26 @@
  * be reported during long sweeps. The result for each oscillator depends only
  * on its own period, damping ratio and sub-step count.
  */
-import { COEFFICIENT_ARRAYS, OUTPUT_ARRAYS, type SweepKernel, defaultKernel } from './kernel/sweepKernel.js'
+import { type CandidateOscillator, kernelCoefficients, raisePeaksBetweenSteps } from './betweenSteps.js'
+import {
+  CANDIDATE_VALUES,
+  COEFFICIENT_ARRAYS,
+  OUTPUT_ARRAYS,
+  type SweepKernel,
+  defaultKernel,
+} from './kernel/sweepKernel.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
+import type { PeakReading } from './subSteps.js'
 
 export interface OscillatorSpec {
   periodS: number
   dampingRatio: number
   subSteps: number
+  /** The recurrence to run, when it is not the sweep's method (subSteps.ts: Newmark beyond the cap). */
+  recurrence?: SpectrumMethod
+  /** How the sweep reads this oscillator's peaks (default 'step-ends'; see subSteps.ts). */
+  reading?: PeakReading
 }
 
 /** Peaks per oscillator, in the order the oscillators were given. */
@@ -31,6 +43,9 @@ export interface SweepOptions {
   /** Add the free vibration after the record (default true). */
   freeVibrationTail?: boolean
 }
+
+/** A sink for the candidates of padding slots and of oscillators read at step ends. */
+const IGNORED = { sd: Infinity, sdTimeS: 0, sv: Infinity, sa: Infinity, saTimeS: 0 }
 
 /** Oscillator-steps per kernel call, about 10 ms of work, so progress moves often. */
 const STEPS_PER_CHUNK = 3_000_000
@@ -55,9 +70,20 @@ export function sweepOscillators(
     sdTimeS: new Float64Array(count),
     saTimeS: new Float64Array(count),
   }
+  const recurrenceOf = (index: number) => oscillators[index]!.recurrence ?? method
   const order = Array.from({ length: count }, (_, i) => i).sort(
-    (a, b) => oscillators[a]!.subSteps - oscillators[b]!.subSteps || a - b,
+    (a, b) =>
+      oscillators[a]!.subSteps - oscillators[b]!.subSteps ||
+      recurrenceOf(a).localeCompare(recurrenceOf(b)) ||
+      a - b,
   )
+  let pga = 0
+  let slope = 0
+  for (let i = 0; i < accel.length; i++) {
+    pga = Math.max(pga, Math.abs(accel[i]!))
+    if (i > 0) slope = Math.max(slope, Math.abs(accel[i]! - accel[i - 1]!))
+  }
+  const bounds = { pgaMPerS2: pga, maxSlopeMPerS3: slope / dtS }
   let totalSteps = 0
   for (const oscillator of oscillators) totalSteps += intervals * oscillator.subSteps
   let doneSteps = 0
@@ -66,11 +92,18 @@ export function sweepOscillators(
   const { lanes, width } = kernel
   const coeffs = new Float64Array(COEFFICIENT_ARRAYS * MAX_CHUNK)
   const out = new Float64Array(OUTPUT_ARRAYS * MAX_CHUNK)
+  const candidates = { values: new Float64Array(CANDIDATE_VALUES * 4096), capacity: 4096 }
   let next = 0
   while (next < count) {
     const subSteps = oscillators[order[next]!]!.subSteps
+    const recurrence = recurrenceOf(order[next]!)
     let groupEnd = next
-    while (groupEnd < count && oscillators[order[groupEnd]!]!.subSteps === subSteps) groupEnd++
+    while (
+      groupEnd < count &&
+      oscillators[order[groupEnd]!]!.subSteps === subSteps &&
+      recurrenceOf(order[groupEnd]!) === recurrence
+    )
+      groupEnd++
     const stepsEach = Math.max(1, intervals * subSteps)
     const chunkSize = Math.min(
       MAX_CHUNK,
@@ -79,35 +112,44 @@ export function sweepOscillators(
     for (let chunkStart = next; chunkStart < groupEnd; chunkStart += chunkSize) {
       const members = order.slice(chunkStart, Math.min(groupEnd, chunkStart + chunkSize))
       const padded = Math.ceil(members.length / lanes) * lanes
+      const stepS = dtS / subSteps
+      const solved: CandidateOscillator[] = []
       for (let slot = 0; slot < padded; slot++) {
         const oscillator = oscillators[members[Math.min(slot, members.length - 1)]!]!
         const omega = (2 * Math.PI) / oscillator.periodS
-        const c = recurrenceCoefficients(method, omega, oscillator.dampingRatio, dtS / subSteps)
-        const values = [
-          c.a11,
-          c.a12,
-          c.b1,
-          c.c1,
-          c.a21,
-          c.a22,
-          c.b2,
-          c.c2,
-          2 * oscillator.dampingRatio * omega,
-          omega * omega,
-        ]
+        const c = recurrenceCoefficients(recurrence, omega, oscillator.dampingRatio, stepS)
+        const values = kernelCoefficients(c, omega, oscillator.dampingRatio, stepS, bounds)
         for (let q = 0; q < COEFFICIENT_ARRAYS; q++) coeffs[q * padded + slot] = values[q]!
+        solved.push({ method: recurrence, coefficients: c, omega, zeta: oscillator.dampingRatio })
       }
       // A nested sweep (from onProgress) may have loaded another record meanwhile.
       if (kernel.loadedRecord !== accel) kernel.loadRecord(accel)
-      kernel.sweep(padded, subSteps, coeffs, out)
-      const stepS = dtS / subSteps
+      let found = kernel.sweep(padded, subSteps, stepS, coeffs, out, candidates)
+      if (found > candidates.capacity) {
+        candidates.capacity = found
+        candidates.values = new Float64Array(CANDIDATE_VALUES * found)
+        found = kernel.sweep(padded, subSteps, stepS, coeffs, out, candidates)
+      }
+      const chunkPeaks = members.map((_, slot) => ({
+        sd: out[slot]!,
+        sdTimeS: out[3 * padded + slot]! * stepS,
+        sv: out[padded + slot]!,
+        sa: out[2 * padded + slot]!,
+        saTimeS: out[4 * padded + slot]! * stepS,
+      }))
+      const between = (slot: number) => oscillators[members[slot]!]!.reading === 'between-steps'
+      raisePeaksBetweenSteps(
+        accel,
+        subSteps,
+        stepS,
+        candidates.values,
+        found,
+        (slot) => solved[slot]!,
+        (slot) => (slot < members.length && between(slot) ? chunkPeaks[slot]! : { ...IGNORED }),
+      )
       members.forEach((index, slot) => {
         const oscillator = oscillators[index]!
-        let sd = out[slot]!
-        let sdTime = out[3 * padded + slot]! * stepS
-        let sv = out[padded + slot]!
-        let sa = out[2 * padded + slot]!
-        let saTime = out[4 * padded + slot]! * stepS
+        let { sd, sdTimeS: sdTime, sv, sa, saTimeS: saTime } = chunkPeaks[slot]!
         if (withTail) {
           const omega = (2 * Math.PI) / oscillator.periodS
           const tail = freeVibrationTailPeaks(

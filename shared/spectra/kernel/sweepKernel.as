@@ -8,16 +8,21 @@
 // where f, f' are the ground acceleration at the start and end of a sub-step,
 // interpolated linearly between record samples (into a scratch area, a block of
 // samples at a time, so the hot loop only reads them). The absolute acceleration is
-// −(cc·v + kk·u) with cc = 2ζω and kk = ω². Four oscillators advance per time
-// step as two f64x2 vectors held in locals (a last pair as one vector); nothing
-// is allocated.
+// −(cc·v + kk·u) with cc = 2ζω and kk = ω². Two oscillators advance per time step
+// as one f64x2 vector held in locals; nothing is allocated.
 //
-// The operations and their order match jsSweep in sweepKernel.ts exactly, so
-// both kernels give the same bits (IEEE-754 double, no fused multiply-add).
+// After each step the kernel tests whether the step's interior may hold a value of
+// |u|, |v| or |A| above the running peaks (see sweepKernel.ts for the bound): first
+// with a cheap bound for both lanes at once, then, for a lane where that fails,
+// with the exact one (preciseCandidate), listing the steps that still fail.
+//
+// The operations and their order match jsSweep and preciseCandidate in sweepKernel.ts
+// exactly, so both kernels give the same bits (IEEE-754 double, no fused multiply-add).
 //
 // Memory layout (arrays of `count` f64, count even; scratch holds 4097 f64):
-//   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk
+//   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp
 //   out:    max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end
+//   candidates: (oscillator, step, u at start, v at start), at most `capacity` written
 // Steps count sub-steps from 0 (the start, at rest).
 
 /** First 16-byte-aligned address past the module's own data. */
@@ -37,17 +42,23 @@ export function sweep(
   count: i32,
   samples: i32,
   subSteps: i32,
+  invStep: f64,
   coeffs: usize,
   record: usize,
   out: usize,
   scratch: usize,
-): void {
+  candidates: usize,
+  capacity: i32,
+): i32 {
   const stride = (<usize>count) << 3
-  let o: i32 = 0
-  for (; o + 4 <= count; o += 4) {
-    sweepFour(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3), scratch)
+  let found: i32 = 0
+  for (let o: i32 = 0; o < count; o += 2) {
+    found = sweepTwo(
+      stride, samples, subSteps, invStep, o, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3),
+      scratch, candidates, capacity, found,
+    )
   }
-  if (o < count) sweepTwo(stride, samples, subSteps, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3), scratch)
+  return found
 }
 
 /**
@@ -75,81 +86,63 @@ function forcing(record: usize, first: i32, intervals: i32, subSteps: i32, scrat
   return scratch
 }
 
-/** Four oscillators as two f64x2 vectors (p, q); `c` and `r` point at their first coefficient and output. */
-function sweepFour(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize, scratch: usize): void {
-  const a11p = v128.load(c), a11q = v128.load(c, 16)
-  const a12p = v128.load(c + stride), a12q = v128.load(c + stride, 16)
-  const b1p = v128.load(c + 2 * stride), b1q = v128.load(c + 2 * stride, 16)
-  const c1p = v128.load(c + 3 * stride), c1q = v128.load(c + 3 * stride, 16)
-  const a21p = v128.load(c + 4 * stride), a21q = v128.load(c + 4 * stride, 16)
-  const a22p = v128.load(c + 5 * stride), a22q = v128.load(c + 5 * stride, 16)
-  const b2p = v128.load(c + 6 * stride), b2q = v128.load(c + 6 * stride, 16)
-  const c2p = v128.load(c + 7 * stride), c2q = v128.load(c + 7 * stride, 16)
-  const ccp = v128.load(c + 8 * stride), ccq = v128.load(c + 8 * stride, 16)
-  const kkp = v128.load(c + 9 * stride), kkq = v128.load(c + 9 * stride, 16)
-
-  const zero = f64x2.splat(0)
-  let up = zero, uq = zero, vp = zero, vq = zero
-  let mup = zero, muq = zero, mvp = zero, mvq = zero, map = zero, maq = zero
-  let kup = zero, kuq = zero, kap = zero, kaq = zero
-  let step: f64 = 0
-  const blockIntervals = max(1, BLOCK_STEPS / subSteps)
-  for (let first: i32 = 0; first < samples - 1; first += blockIntervals) {
-    const intervals = min(blockIntervals, samples - 1 - first)
-    const f = forcing(record, first, intervals, subSteps, scratch)
-    const steps = intervals * subSteps
-    let f0 = f64x2.splat(load<f64>(f))
-    for (let k: i32 = 1; k <= steps; k++) {
-      const f1 = f64x2.splat(load<f64>(f + ((<usize>k) << 3)))
-      step += 1
-      const kv = f64x2.splat(step)
-
-      const nup = lin(a11p, up, a12p, vp, b1p, f0, c1p, f1)
-      const nvp = lin(a21p, up, a22p, vp, b2p, f0, c2p, f1)
-      up = nup
-      vp = nvp
-      const aup = f64x2.abs(up)
-      kup = v128.bitselect(kv, kup, f64x2.gt(aup, mup))
-      mup = f64x2.max(mup, aup)
-      mvp = f64x2.max(mvp, f64x2.abs(vp))
-      const aap = f64x2.abs(f64x2.add(f64x2.mul(ccp, vp), f64x2.mul(kkp, up)))
-      kap = v128.bitselect(kv, kap, f64x2.gt(aap, map))
-      map = f64x2.max(map, aap)
-
-      const nuq = lin(a11q, uq, a12q, vq, b1q, f0, c1q, f1)
-      const nvq = lin(a21q, uq, a22q, vq, b2q, f0, c2q, f1)
-      uq = nuq
-      vq = nvq
-      const auq = f64x2.abs(uq)
-      kuq = v128.bitselect(kv, kuq, f64x2.gt(auq, muq))
-      muq = f64x2.max(muq, auq)
-      mvq = f64x2.max(mvq, f64x2.abs(vq))
-      const aaq = f64x2.abs(f64x2.add(f64x2.mul(ccq, vq), f64x2.mul(kkq, uq)))
-      kaq = v128.bitselect(kv, kaq, f64x2.gt(aaq, maq))
-      maq = f64x2.max(maq, aaq)
-
-      f0 = f1
-    }
-  }
-
-  v128.store(r, mup)
-  v128.store(r, muq, 16)
-  v128.store(r + stride, mvp)
-  v128.store(r + stride, mvq, 16)
-  v128.store(r + 2 * stride, map)
-  v128.store(r + 2 * stride, maq, 16)
-  v128.store(r + 3 * stride, kup)
-  v128.store(r + 3 * stride, kuq, 16)
-  v128.store(r + 4 * stride, kap)
-  v128.store(r + 4 * stride, kaq, 16)
-  v128.store(r + 5 * stride, up)
-  v128.store(r + 5 * stride, uq, 16)
-  v128.store(r + 6 * stride, vp)
-  v128.store(r + 6 * stride, vq, 16)
+/** The exact test of one step, operation for operation as preciseCandidate in sweepKernel.ts. */
+function preciseCandidate(
+  u0: f64, v0: f64, f0: f64, f1: f64, invH: f64, eu: f64, ev: f64, ea: f64,
+  maxU: f64, maxV: f64, maxA: f64, om: f64, q: f64, sg: f64, iwd: f64, ik: f64, ck: f64, kk: f64,
+): bool {
+  const s = (f1 - f0) * invH
+  const p = u0 + f0 * ik - s * ck
+  const r = (v0 + s * ik + sg * p) * iwd
+  const w = sqrt<f64>(p * p + r * r)
+  const as = abs<f64>(s)
+  const fm = max<f64>(abs<f64>(f0), abs<f64>(f1))
+  const wv = om * w
+  const wa = kk * w
+  return (
+    min<f64>(eu + q * w, fm * ik + as * ck + w) > maxU ||
+    min<f64>(ev + q * wv, as * ik + wv) > maxV ||
+    min<f64>(ea + q * wa, fm + wa) > maxA
+  )
 }
 
-/** The last two oscillators when the count is not a multiple of four: one f64x2 vector. */
-function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: usize, r: usize, scratch: usize): void {
+/** Runs the exact test for one lane (`lane` 0 or 1 of the pair at `c`) and lists the step if it fails. */
+@inline
+function checkLane(
+  lane: i32, stride: usize, c: usize, first: i32, step: f64, u0: v128, v0: v128, f0: f64, f1: f64, invH: f64,
+  eu: v128, ev: v128, ea: v128, mu: v128, mv: v128, ma: v128, candidates: usize, capacity: i32, found: i32,
+): i32 {
+  const at = c + ((<usize>lane) << 3)
+  const uStart = lane == 0 ? f64x2.extract_lane(u0, 0) : f64x2.extract_lane(u0, 1)
+  const vStart = lane == 0 ? f64x2.extract_lane(v0, 0) : f64x2.extract_lane(v0, 1)
+  const hit = preciseCandidate(
+    uStart, vStart, f0, f1, invH,
+    lane == 0 ? f64x2.extract_lane(eu, 0) : f64x2.extract_lane(eu, 1),
+    lane == 0 ? f64x2.extract_lane(ev, 0) : f64x2.extract_lane(ev, 1),
+    lane == 0 ? f64x2.extract_lane(ea, 0) : f64x2.extract_lane(ea, 1),
+    lane == 0 ? f64x2.extract_lane(mu, 0) : f64x2.extract_lane(mu, 1),
+    lane == 0 ? f64x2.extract_lane(mv, 0) : f64x2.extract_lane(mv, 1),
+    lane == 0 ? f64x2.extract_lane(ma, 0) : f64x2.extract_lane(ma, 1),
+    load<f64>(at + 10 * stride), load<f64>(at + 11 * stride), load<f64>(at + 12 * stride),
+    load<f64>(at + 13 * stride), load<f64>(at + 14 * stride), load<f64>(at + 15 * stride),
+    load<f64>(at + 9 * stride),
+  )
+  if (!hit) return found
+  if (found < capacity) {
+    const entry = candidates + ((<usize>found) << 5)
+    store<f64>(entry, <f64>(first + lane))
+    store<f64>(entry, step, 8)
+    store<f64>(entry, uStart, 16)
+    store<f64>(entry, vStart, 24)
+  }
+  return found + 1
+}
+
+/** Two oscillators as one f64x2 vector; `c` and `r` point at their first coefficient and output. */
+function sweepTwo(
+  stride: usize, samples: i32, subSteps: i32, invH: f64, first: i32, c: usize, record: usize, r: usize,
+  scratch: usize, candidates: usize, capacity: i32, foundBefore: i32,
+): i32 {
   const a11 = v128.load(c)
   const a12 = v128.load(c + stride)
   const b1 = v128.load(c + 2 * stride)
@@ -160,32 +153,63 @@ function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: 
   const c2 = v128.load(c + 7 * stride)
   const cc = v128.load(c + 8 * stride)
   const kk = v128.load(c + 9 * stride)
+  const om = v128.load(c + 10 * stride)
+  const q = v128.load(c + 11 * stride)
+  const sg = v128.load(c + 12 * stride)
+  const iwd = v128.load(c + 13 * stride)
+  const bu = v128.load(c + 16 * stride)
+  const bv = v128.load(c + 17 * stride)
 
   const zero = f64x2.splat(0)
   let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero
+  let lu = zero, lv = zero, la = zero
+  let found = foundBefore
   let step: f64 = 0
   const blockIntervals = max(1, BLOCK_STEPS / subSteps)
-  for (let first: i32 = 0; first < samples - 1; first += blockIntervals) {
-    const intervals = min(blockIntervals, samples - 1 - first)
-    const f = forcing(record, first, intervals, subSteps, scratch)
+  for (let firstSample: i32 = 0; firstSample < samples - 1; firstSample += blockIntervals) {
+    const intervals = min(blockIntervals, samples - 1 - firstSample)
+    const f = forcing(record, firstSample, intervals, subSteps, scratch)
     const steps = intervals * subSteps
-    let f0 = f64x2.splat(load<f64>(f))
+    let f0s = load<f64>(f)
+    let f0 = f64x2.splat(f0s)
     for (let k: i32 = 1; k <= steps; k++) {
-      const f1 = f64x2.splat(load<f64>(f + ((<usize>k) << 3)))
+      const f1s = load<f64>(f + ((<usize>k) << 3))
+      const f1 = f64x2.splat(f1s)
       step += 1
       const kv = f64x2.splat(step)
-      const nu = lin(a11, u, a12, v, b1, f0, c1, f1)
-      const nv = lin(a21, u, a22, v, b2, f0, c2, f1)
-      u = nu
-      v = nv
+      const u0 = u
+      const v0 = v
+      u = lin(a11, u0, a12, v0, b1, f0, c1, f1)
+      v = lin(a21, u0, a22, v0, b2, f0, c2, f1)
       const au = f64x2.abs(u)
       ku = v128.bitselect(kv, ku, f64x2.gt(au, mu))
       mu = f64x2.max(mu, au)
-      mv = f64x2.max(mv, f64x2.abs(v))
+      const av = f64x2.abs(v)
+      mv = f64x2.max(mv, av)
       const aa = f64x2.abs(f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
       ka = v128.bitselect(kv, ka, f64x2.gt(aa, ma))
       ma = f64x2.max(ma, aa)
+      const eu = f64x2.max(lu, au)
+      const ev = f64x2.max(lv, av)
+      const ea = f64x2.max(la, aa)
+      const wu = f64x2.add(mu, bu)
+      const w = f64x2.add(wu, f64x2.mul(f64x2.add(f64x2.add(mv, bv), f64x2.mul(sg, wu)), iwd))
+      const mw = f64x2.mul(q, w)
+      const flag = v128.or(
+        v128.or(f64x2.gt(f64x2.add(eu, mw), mu), f64x2.gt(f64x2.add(ev, f64x2.mul(om, mw)), mv)),
+        f64x2.gt(f64x2.add(ea, f64x2.mul(kk, mw)), ma),
+      )
+      if (v128.any_true(flag)) {
+        if (i64x2.extract_lane(flag, 0) != 0)
+          found = checkLane(0, stride, c, first, step, u0, v0, f0s, f1s, invH, eu, ev, ea, mu, mv, ma, candidates, capacity, found)
+        if (i64x2.extract_lane(flag, 1) != 0)
+          found = checkLane(1, stride, c, first, step, u0, v0, f0s, f1s, invH, eu, ev, ea, mu, mv, ma, candidates, capacity, found)
+      }
+      lu = au
+      lv = av
+      la = aa
       f0 = f1
+      f0s = f1s
     }
   }
   v128.store(r, mu)
@@ -195,4 +219,5 @@ function sweepTwo(stride: usize, samples: i32, subSteps: i32, c: usize, record: 
   v128.store(r + 4 * stride, ka)
   v128.store(r + 5 * stride, u)
   v128.store(r + 6 * stride, v)
+  return found
 }
