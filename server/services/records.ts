@@ -1,11 +1,19 @@
 import { createHash } from 'node:crypto'
 import path from 'node:path'
-import { and, count, desc, eq, inArray, or } from 'drizzle-orm'
+import { and, asc, count, desc, eq, inArray, isNotNull, or } from 'drizzle-orm'
+import { may, refusalFor } from '../../shared/permissions.js'
 import { parseRecord, RecordParseError } from '../../shared/spectra/parseRecord.js'
 import { integrateRecord, recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
 import type { SourceUnits } from '../../shared/spectra/units.js'
-import type { RecordDetail, RecordInfo, RecordSamples } from '../../shared/schemas/records.js'
+import { recordProcessingSchema } from '../../shared/schemas/processing.js'
+import type {
+  RecordDetail,
+  RecordInfo,
+  RecordSamples,
+  UpdateRecordBody,
+} from '../../shared/schemas/records.js'
 import type { Db } from '../db/client.js'
+import { parseStored } from '../db/parseStored.js'
 import { projects, recordPairs, records, runs, users } from '../db/schema.js'
 import { badRequest, conflict, forbidden, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -190,6 +198,8 @@ const detailColumns = {
   sourceFileName: records.sourceFileName,
   format: records.format,
   synthetic: records.synthetic,
+  parentId: records.parentId,
+  processing: records.processing,
 }
 
 function selectDetails(db: Db) {
@@ -200,10 +210,41 @@ function selectDetails(db: Db) {
     .innerJoin(users, eq(users.id, records.uploadedBy))
 }
 
-const asDetail = (row: Omit<RecordDetail, 'sourceUnits'> & { sourceUnits: string }): RecordDetail => ({
+type DetailRow = Omit<RecordDetail, 'sourceUnits' | 'processing' | 'children'> & {
+  sourceUnits: string
+  processing: unknown
+}
+
+const asDetail = (row: DetailRow, children: RecordDetail['children']): RecordDetail => ({
   ...row,
   sourceUnits: row.sourceUnits as SourceUnits,
+  processing:
+    row.processing == null ? null : parseStored(recordProcessingSchema, row.processing, 'record processing'),
+  children,
 })
+
+/** The firm's processed records by parent id, oldest first. */
+function childrenByParent(db: Db, firmId: string, parentId?: string): Map<string, RecordDetail['children']> {
+  const rows = db
+    .select({ id: records.id, name: records.name, createdAt: records.createdAt, parentId: records.parentId })
+    .from(records)
+    .where(
+      and(
+        eq(records.firmId, firmId),
+        parentId ? eq(records.parentId, parentId) : isNotNull(records.parentId),
+      ),
+    )
+    .orderBy(asc(records.createdAt))
+    .all()
+  const map = new Map<string, RecordDetail['children']>()
+  for (const { parentId: p, ...child } of rows) {
+    if (!p) continue
+    const list = map.get(p) ?? []
+    list.push(child)
+    map.set(p, list)
+  }
+  return map
+}
 
 /** The firm's records, newest first, optionally in one project (another firm's project answers 404). */
 export function listRecords(db: Db, firmId: string, projectId?: string): RecordDetail[] {
@@ -211,7 +252,12 @@ export function listRecords(db: Db, firmId: string, projectId?: string): RecordD
   const where = projectId
     ? and(eq(records.firmId, firmId), eq(records.projectId, projectId))
     : eq(records.firmId, firmId)
-  return selectDetails(db).where(where).orderBy(desc(records.createdAt)).all().map(asDetail)
+  const children = childrenByParent(db, firmId)
+  return selectDetails(db)
+    .where(where)
+    .orderBy(desc(records.createdAt))
+    .all()
+    .map((row) => asDetail(row, children.get(row.id) ?? []))
 }
 
 /** One of the firm's records; another firm's id answers 404, never 403. */
@@ -220,7 +266,7 @@ export function getRecord(db: Db, firmId: string, recordId: string): RecordDetai
     .where(and(eq(records.firmId, firmId), eq(records.id, recordId)))
     .get()
   if (!row) throw notFound('The record')
-  return asDetail(row)
+  return asDetail(row, childrenByParent(db, firmId, recordId).get(recordId) ?? [])
 }
 
 /** For the run service: the record and its samples in m/s², scoped to the firm (404 otherwise). */
@@ -250,8 +296,10 @@ export function recordSamplesForPlot(
   const { velMPerS, dispM } = integrateRecord(accelMPerS2, record.dtS)
   const { timeS, series } = decimateMinMax([accelMPerS2, velMPerS, dispM], record.dtS, maxPoints)
   const [accel, vel, disp] = series as [Float64Array, Float64Array, Float64Array]
+  // A processed record's kept pads come before the original's first sample.
+  const startS = record.processing?.pads === 'keep' ? -record.processing.padS : 0
   return {
-    timeS: Array.from(timeS),
+    timeS: Array.from(timeS, (t) => t + startS),
     accelMPerS2: Array.from(accel),
     velMPerS: Array.from(vel),
     dispM: Array.from(disp),
@@ -265,9 +313,9 @@ export function recordSamplesForPlot(
  */
 export function removeRecord(db: Db, dataDir: string, member: Member, recordId: string): void {
   const record = getRecord(db, member.firmId, recordId)
-  if (record.uploadedBy !== member.userId && !member.roles.includes('admin')) {
+  if (record.uploadedBy !== member.userId && !may(member.roles, 'records.removeAny')) {
     throw forbidden(
-      'Only the member who uploaded this record, or someone with the admin role, may delete it.',
+      `Only the member who uploaded this record may delete it. ${refusalFor('records.removeAny')}`,
     )
   }
   db.transaction(
@@ -292,6 +340,17 @@ export function removeRecord(db: Db, dataDir: string, member: Member, recordId: 
             : eq(runs.recordId, recordId),
         )
         .get()
+      const children = tx
+        .select({ n: count() })
+        .from(records)
+        .where(and(eq(records.firmId, member.firmId), eq(records.parentId, recordId)))
+        .get()
+      if ((children?.n ?? 0) > 0) {
+        throw conflict(
+          `This record has ${children!.n === 1 ? 'a processed record' : `${children!.n} processed records`} made from it; delete ${children!.n === 1 ? 'that' : 'those'} first.`,
+          'record_has_children',
+        )
+      }
       if ((usedBy?.n ?? 0) > 0) {
         throw conflict(
           `This record is used by ${usedBy!.n === 1 ? 'a run' : `${usedBy!.n} runs`}; records that runs depend on cannot be deleted.`,
@@ -322,4 +381,35 @@ export function removeRecord(db: Db, dataDir: string, member: Member, recordId: 
     { behavior: 'immediate' },
   )
   if (!hashInUse(db, record.sha256)) removeOriginal(dataDir, record.sha256)
+}
+
+/** PATCH /api/records/:id: renames one of the firm's records; its samples, file and hash never change. */
+export function renameRecord(
+  db: Db,
+  member: Member,
+  recordId: string,
+  input: UpdateRecordBody,
+): RecordDetail {
+  db.transaction(
+    (tx) => {
+      const current = tx
+        .select({ name: records.name })
+        .from(records)
+        .where(and(eq(records.firmId, member.firmId), eq(records.id, recordId)))
+        .get()
+      if (!current) throw notFound('The record')
+      if (current.name === input.name) return
+      tx.update(records).set({ name: input.name }).where(eq(records.id, recordId)).run()
+      recordAudit(tx, {
+        firmId: member.firmId,
+        userId: member.userId,
+        action: 'record.renamed',
+        subjectType: 'record',
+        subjectId: recordId,
+        detail: { from: current.name, to: input.name },
+      })
+    },
+    { behavior: 'immediate' },
+  )
+  return getRecord(db, member.firmId, recordId)
 }

@@ -2,6 +2,7 @@ import { z } from 'zod'
 import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
 import { SOURCE_UNITS } from '../spectra/units.js'
 import { idSchema } from './common.js'
+import { plotHistoriesSchema, recordProcessingSchema } from './processing.js'
 
 /** The upload limits of POST /api/records. */
 export const MAX_UPLOAD_BYTES = 50 * 1024 * 1024
@@ -60,6 +61,12 @@ export const recordDetailSchema = recordSchema.extend({
   sourceFileName: z.string(),
   format: z.string(),
   synthetic: z.boolean(),
+  /** The record this one was processed from; null for a record as received. */
+  parentId: z.string().nullable(),
+  /** For a processed record, the processing as applied and its chain; null otherwise. */
+  processing: recordProcessingSchema.nullable(),
+  /** Records processed from this one, oldest first. */
+  children: z.array(z.object({ id: z.string(), name: z.string(), createdAt: z.number() })),
 })
 export type RecordDetail = z.infer<typeof recordDetailSchema>
 
@@ -89,12 +96,8 @@ export const recordSamplesQuerySchema = z.strictObject({
 /**
  * GET /api/records/:id/samples: the record in SI, thinned for plotting. When thinned, each
  * bucket of samples gives its lowest and highest value (in time order) at two evenly spaced
- * times, so peaks survive and the time axis stays uniform.
+ * times, so peaks survive and the time axis stays uniform. With maxPoints ≥ points every sample
+ * comes unthinned. A processed record's kept pads start at t = −padS.
  */
-export const recordSamplesSchema = z.object({
-  timeS: z.array(z.number()),
-  accelMPerS2: z.array(z.number()),
-  velMPerS: z.array(z.number()),
-  dispM: z.array(z.number()),
-})
+export const recordSamplesSchema = plotHistoriesSchema
 export type RecordSamples = z.infer<typeof recordSamplesSchema>
