@@ -25,6 +25,7 @@ import { membersRouter } from './routes/members.js'
 import { passwordResetsRouter } from './routes/passwordResets.js'
 import { projectsRouter } from './routes/projects.js'
 import { recordPairsRouter } from './routes/recordPairs.js'
+import { recordProcessingRouter } from './routes/recordProcessing.js'
 import { recordsRouter } from './routes/records.js'
 import { reviewsRouter } from './routes/reviews.js'
 import { runBatchesRouter } from './routes/runBatches.js'
@@ -90,6 +91,7 @@ export function createApp(deps: AppDeps) {
   if (deps.devMailbox && deps.config.env !== 'production') api.use(devMailboxRouter(deps.devMailbox))
   api.use(projectsRouter(deps))
   api.use(recordsRouter(deps))
+  api.use(recordProcessingRouter(deps))
   api.use(recordPairsRouter(deps))
   api.use(runsRouter(deps))
   api.use(runBatchesRouter(deps))
