@@ -5,17 +5,19 @@ import {
   MAX_UPLOAD_BYTES,
   recordListQuerySchema,
   recordSamplesQuerySchema,
+  updateRecordBodySchema,
   uploadRecordFieldsSchema,
 } from '../../shared/schemas/records.js'
 import type { AppDeps } from '../deps.js'
 import { badRequest, tooLarge } from '../httpError.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import {
   createRecord,
   getRecord,
   listRecords,
   recordSamplesForPlot,
   removeRecord,
+  renameRecord,
 } from '../services/records.js'
 
 const MAX_UPLOAD_MB = MAX_UPLOAD_BYTES / (1024 * 1024)
@@ -48,8 +50,7 @@ export function recordsRouter(deps: AppDeps) {
     res.json({ items: listRecords(deps.db, memberOf(req).firmId, projectId) })
   })
 
-  // Role table (accounts issue): engineers and checkers upload; an admin only when also an engineer.
-  router.post('/records', requireRole('engineer', 'checker'), receiveFile, (req, res) => {
+  router.post('/records', requireAction('records.upload'), receiveFile, (req, res) => {
     const fields = uploadRecordFieldsSchema.parse(req.body ?? {})
     if (!req.file) {
       throw badRequest('Choose a record file to upload (the "file" field).', 'file_missing', {
@@ -67,6 +68,12 @@ export function recordsRouter(deps: AppDeps) {
   router.get('/records/:id', requireMember, (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
     res.json(getRecord(deps.db, memberOf(req).firmId, id))
+  })
+
+  router.patch('/records/:id', requireAction('records.upload'), (req, res) => {
+    const { id } = idParamsSchema.parse(req.params)
+    const body = updateRecordBodySchema.parse(req.body)
+    res.json(renameRecord(deps.db, memberOf(req), id, body))
   })
 
   router.get('/records/:id/samples', requireMember, (req, res) => {

@@ -1,4 +1,5 @@
 import { and, desc, eq, or } from 'drizzle-orm'
+import { isVerticalComponent, sameTimeStep } from '../../shared/pairRules.js'
 import type { CreateRecordPairBody, RecordPair, RecordPairDetail } from '../../shared/schemas/recordPairs.js'
 import type { Db } from '../db/client.js'
 import { recordPairs, runs } from '../db/schema.js'
@@ -7,12 +8,6 @@ import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { getRecord } from './records.js'
-
-/** Component labels that mark a vertical record; a pair is two horizontal components. */
-const VERTICAL_LABELS = new Set(['v', 'up', 'ud', 'z', 'vert', 'vertical'])
-
-/** Same time step to the precision a header or time column gives it (relative 1e-9). */
-const sameDt = (a: number, b: number) => Math.abs(a - b) <= 1e-9 * Math.max(a, b)
 
 /**
  * Marks two of the firm's horizontal records as a pair for two-component spectra. They must
@@ -29,14 +24,14 @@ export function createRecordPair(
   const r1 = getRecord(db, member.firmId, id1)
   const r2 = getRecord(db, member.firmId, id2)
   for (const r of [r1, r2]) {
-    if (r.component && VERTICAL_LABELS.has(r.component.trim().toLowerCase())) {
+    if (isVerticalComponent(r.component)) {
       throw badRequest(
         `"${r.name}" is marked as component ${r.component} (vertical); a pair is two horizontal components.`,
         'pair_not_horizontal',
       )
     }
   }
-  if (!sameDt(r1.dtS, r2.dtS)) {
+  if (!sameTimeStep(r1.dtS, r2.dtS)) {
     throw badRequest(
       `The time steps differ: "${r1.name}" has Δt = ${r1.dtS} s and "${r2.name}" has Δt = ${r2.dtS} s.`,
       'pair_dt_mismatch',
