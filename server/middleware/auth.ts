@@ -1,5 +1,6 @@
 import type { NextFunction, Request, Response } from 'express'
 import { eq } from 'drizzle-orm'
+import { type Action, may, refusalFor } from '../../shared/permissions.js'
 import type { Role } from '../../shared/schemas/accounts.js'
 import type { Db } from '../db/client.js'
 import { firms, memberships, users } from '../db/schema.js'
@@ -56,17 +57,11 @@ export function requireMember(req: Request, _res: Response, next: NextFunction) 
   next()
 }
 
-const ROLE_NAMES: Record<Role, string> = { engineer: 'engineer', checker: 'checker', admin: 'admin' }
-
-/** Allows members holding any of `roles`; others get 403 naming the role needed. */
-export function requireRole(...roles: Role[]) {
+/** Allows members who may take `action` (shared/permissions.ts); others get 403 naming the roles it needs. */
+export function requireAction(action: Action) {
   return (req: Request, _res: Response, next: NextFunction) => {
     if (!req.member) return next(unauthorized())
-    if (!roles.some((r) => req.member!.roles.includes(r))) {
-      const names = roles.map((r) => ROLE_NAMES[r])
-      const needed = names.length === 1 ? `the ${names[0]} role` : `one of the roles ${names.join(', ')}`
-      return next(forbidden(`This needs ${needed}.`))
-    }
+    if (!may(req.member.roles, action)) return next(forbidden(refusalFor(action)))
     next()
   }
 }

@@ -7,7 +7,7 @@ import {
   updateComparisonBodySchema,
 } from '../../shared/schemas/comparisons.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import {
   createComparison,
   getComparisonView,
@@ -34,12 +34,11 @@ export function comparisonsRouter(deps: AppDeps) {
     res.json(getComparisonView(deps.db, memberOf(req).firmId, id))
   })
 
-  // Role table (accounts issue): engineers and checkers create and edit comparisons.
-  router.post('/comparisons', requireRole('engineer', 'checker'), (req, res) => {
+  router.post('/comparisons', requireAction('comparisons.create'), (req, res) => {
     res.status(201).json(createComparison(deps.db, memberOf(req), createComparisonBodySchema.parse(req.body)))
   })
 
-  router.patch('/comparisons/:id', requireRole('engineer', 'checker'), (req, res) => {
+  router.patch('/comparisons/:id', requireAction('comparisons.edit'), (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
     res.json(updateComparison(deps.db, memberOf(req), id, updateComparisonBodySchema.parse(req.body)))
   })

@@ -3,7 +3,7 @@ import { creditPacks } from '../../shared/credits/creditPacks.js'
 import { purchaseBodySchema } from '../../shared/schemas/credits.js'
 import type { AppDeps } from '../deps.js'
 import { HttpError } from '../httpError.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import type { Payments } from '../payments/payments.js'
 import { creditsSummary } from '../services/credits.js'
 import { createPurchase, listPurchases } from '../services/purchases.js'
@@ -17,7 +17,6 @@ function paymentsOf(deps: AppDeps): Payments {
 export function creditsRouter(deps: AppDeps) {
   const router = Router()
 
-  // Role table (accounts issue): every member sees the balance and ledger; only admins buy credits and see purchases.
   router.get('/credits', requireMember, (req, res) => {
     res.json(creditsSummary(deps.db, memberOf(req).firmId))
   })
@@ -34,11 +33,11 @@ export function creditsRouter(deps: AppDeps) {
     })
   })
 
-  router.get('/credits/purchases', requireRole('admin'), (req, res) => {
+  router.get('/credits/purchases', requireAction('credits.buy'), (req, res) => {
     res.json({ items: listPurchases(deps.db, memberOf(req).firmId) })
   })
 
-  router.post('/credits/purchases', requireRole('admin'), async (req, res) => {
+  router.post('/credits/purchases', requireAction('credits.buy'), async (req, res) => {
     const body = purchaseBodySchema.parse(req.body)
     const { result, replayed } = await createPurchase(deps.db, paymentsOf(deps), memberOf(req), body)
     if (replayed) res.set('Idempotent-Replayed', 'true')

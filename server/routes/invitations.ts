@@ -4,7 +4,7 @@ import { acceptInvitationBodySchema, createInvitationBodySchema } from '../../sh
 import { tokenParamsSchema } from '../../shared/schemas/tokens.js'
 import type { AppDeps } from '../deps.js'
 import { linkOrigin } from '../mail/links.js'
-import { findMember, memberOf, requireRole } from '../middleware/auth.js'
+import { findMember, memberOf, requireAction } from '../middleware/auth.js'
 import { toSessionInfo } from '../services/auth.js'
 import {
   acceptInvitation,
@@ -18,7 +18,7 @@ import { startSession } from './auth.js'
 /** Invitations: sent by a firm's admins, opened and accepted by the invitee through the link in the mail. */
 export function invitationsRouter(deps: AppDeps) {
   const router = Router()
-  const admin = requireRole('admin')
+  const admin = requireAction('members.manage')
 
   router.get('/firm/invitations', admin, (req, res) => {
     res.json({ items: listInvitations(deps.db, memberOf(req)) })

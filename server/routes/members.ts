@@ -2,13 +2,13 @@ import { Router } from 'express'
 import { idParamsSchema } from '../../shared/schemas/common.js'
 import { updateMemberBodySchema } from '../../shared/schemas/members.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction } from '../middleware/auth.js'
 import { listMembers, removeMember, updateMemberRoles } from '../services/members.js'
 
 /** The signed-in admin's own firm: its members and their roles. */
 export function membersRouter(deps: AppDeps) {
   const router = Router()
-  const admin = requireRole('admin')
+  const admin = requireAction('members.manage')
 
   router.get('/firm/members', admin, (req, res) => {
     res.json({ items: listMembers(deps.db, memberOf(req)) })

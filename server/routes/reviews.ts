@@ -7,7 +7,7 @@ import {
   submitReviewBodySchema,
 } from '../../shared/schemas/reviews.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import { addReviewComment, decideReview, getReview, listReviews, submitReview } from '../services/reviews.js'
 
 export function reviewsRouter(deps: AppDeps) {
@@ -22,19 +22,17 @@ export function reviewsRouter(deps: AppDeps) {
     res.json(getReview(deps.db, memberOf(req).firmId, id))
   })
 
-  // Role table (accounts issue): engineers submit their own work; checkers decide, never on their own.
-  router.post('/reviews', requireRole('engineer'), (req, res) => {
+  router.post('/reviews', requireAction('reviews.submit'), (req, res) => {
     const { review, created } = submitReview(deps.db, memberOf(req), submitReviewBodySchema.parse(req.body))
     res.status(created ? 201 : 200).json(review)
   })
 
-  router.post('/reviews/:id/decision', requireRole('checker'), (req, res) => {
+  router.post('/reviews/:id/decision', requireAction('reviews.decide'), (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
     res.json(decideReview(deps.db, memberOf(req), id, reviewDecisionBodySchema.parse(req.body)))
   })
 
-  // The thread is between the people doing and checking the work.
-  router.post('/reviews/:id/comments', requireRole('engineer', 'checker'), (req, res) => {
+  router.post('/reviews/:id/comments', requireAction('reviews.comment'), (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
     res
       .status(201)

@@ -5,7 +5,7 @@ import {
   targetPreviewBodySchema,
 } from '../../shared/schemas/targets.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import { createTarget, listTargets, previewTarget } from '../services/targets.js'
 
 export function targetsRouter(deps: AppDeps) {
@@ -21,8 +21,7 @@ export function targetsRouter(deps: AppDeps) {
     res.json({ items: listTargets(deps.db, memberOf(req).firmId, projectId) })
   })
 
-  // Role table (accounts issue): creating comparisons (and their targets) is for engineers and checkers.
-  router.post('/targets', requireRole('engineer', 'checker'), (req, res) => {
+  router.post('/targets', requireAction('targets.create'), (req, res) => {
     res.status(201).json(createTarget(deps.db, memberOf(req), createTargetBodySchema.parse(req.body)))
   })
 

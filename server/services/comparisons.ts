@@ -37,7 +37,7 @@ import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { resolveProject } from './projects.js'
-import { assertEditable, reviewStateOf, reviewStates } from './reviews.js'
+import { assertMayEdit, noteRevision, reviewStateOf, reviewStates } from './reviews.js'
 import { nullIfNaN, resolveComparisonTarget } from './targets.js'
 
 type CreateInput = z.output<typeof createComparisonBodySchema>
@@ -444,12 +444,18 @@ export function createComparison(db: Db, member: Member, body: CreateInput): Com
   return getComparisonView(db, member.firmId, id)
 }
 
-/** Changes a comparison that is neither under review nor checked (409 otherwise). */
+/**
+ * Changes a comparison the member may edit in its review state (shared/permissions.ts; 409 while
+ * under review or once checked, 403 for a checker and someone else's work). A change to returned
+ * work makes a new revision, which the sheet, the file name and the review thread then show.
+ */
 export function updateComparison(db: Db, member: Member, id: string, body: UpdateInput): ComparisonView {
   db.transaction(
     (tx) => {
       const current = getComparison(tx, member.firmId, id)
-      assertEditable(tx, member.firmId, 'comparison', id)
+      const subject = { type: 'comparison' as const, id, createdBy: current.createdBy.id }
+      const state = assertMayEdit(tx, member, subject)
+      const revision = state === 'draft' ? current.revision : current.revision + 1
       const target =
         body.target === undefined
           ? current.target
@@ -467,16 +473,17 @@ export function updateComparison(db: Db, member: Member, id: string, body: Updat
       }
       computeView(tx, member.firmId, inputs)
       tx.update(comparisons)
-        .set({ ...inputs, updatedAt: Date.now() })
+        .set({ ...inputs, revision, updatedAt: Date.now() })
         .where(and(eq(comparisons.firmId, member.firmId), eq(comparisons.id, id)))
         .run()
+      if (revision !== current.revision) noteRevision(tx, member, subject, revision, Object.keys(body))
       recordAudit(tx, {
         firmId: member.firmId,
         userId: member.userId,
         action: 'comparison.updated',
         subjectType: 'comparison',
         subjectId: id,
-        detail: { fields: Object.keys(body) },
+        detail: { fields: Object.keys(body), revision },
       })
     },
     { behavior: 'immediate' },

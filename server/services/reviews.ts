@@ -10,8 +10,18 @@ import type {
   ReviewSubjectType,
   SubmitReviewBody,
 } from '../../shared/schemas/reviews.js'
+import { mayEditWork } from '../../shared/permissions.js'
 import type { Db, Tx } from '../db/client.js'
-import { comparisons, recordPairs, records, reviewComments, reviews, runs, users } from '../db/schema.js'
+import {
+  auditLog,
+  comparisons,
+  recordPairs,
+  records,
+  reviewComments,
+  reviews,
+  runs,
+  users,
+} from '../db/schema.js'
 import { conflict, forbidden, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
@@ -104,17 +114,18 @@ export function reviewStateOf(
 }
 
 /**
- * Refuses changes to work that is being checked (409 under_review) or has been checked (409 locked):
- * checked work is locked, and a change makes a new revision instead.
+ * Refuses a change to review work that shared/permissions.ts (WORK_EDITING) does not allow:
+ * submitted work waits for a decision (409 under_review), checked work is locked (409 locked),
+ * and otherwise the member's roles decide (403), so a checker changes only drafts they made.
+ * Answers the state the work is in, so the caller can raise the revision of returned work.
  */
-export function assertEditable(
+export function assertMayEdit(
   db: Tx,
-  firmId: string,
-  subjectType: ReviewSubjectType,
-  subjectId: string,
-): void {
-  const state = reviewStateOf(db, firmId, subjectType, subjectId)
-  const what = subjectType === 'run' ? 'run' : 'comparison'
+  member: Member,
+  subject: { type: ReviewSubjectType; id: string; createdBy: string },
+): ReviewState {
+  const state = reviewStateOf(db, member.firmId, subject.type, subject.id)
+  const what = subject.type === 'run' ? 'run' : 'comparison'
   if (state === 'checked') {
     throw conflict(`This ${what} has been checked and is locked. Make a new revision instead.`, 'locked')
   }
@@ -124,6 +135,35 @@ export function assertEditable(
       'under_review',
     )
   }
+  if (!mayEditWork(member, { state, createdBy: subject.createdBy })) {
+    throw forbidden(
+      state === 'returned'
+        ? `This ${what} was returned to the engineer who made it; only an engineer may change it now, and its checker never does.`
+        : `A checker changes only work they made; this ${what} was made by someone else.`,
+    )
+  }
+  return state
+}
+
+/**
+ * Notes in the review thread that returned work was changed, and which revision that made, so
+ * the checker sees what they are deciding on. Work never submitted has no thread.
+ */
+export function noteRevision(
+  tx: Tx,
+  member: Member,
+  subject: { type: ReviewSubjectType; id: string },
+  revision: number,
+  changed: string[],
+): void {
+  const review = tx
+    .select({ id: reviews.id })
+    .from(reviews)
+    .where(and(eq(reviews.subjectType, subject.type), eq(reviews.subjectId, subject.id)))
+    .get()
+  if (!review) return
+  const fields = changed.length ? ` (changed: ${changed.join(', ')})` : ''
+  insertComment(tx, review.id, member.userId, `Revision ${revision} saved${fields}.`, Date.now())
 }
 
 function people(db: Tx, ids: (string | null)[]): Map<string, { id: string; name: string }> {
@@ -161,11 +201,12 @@ function selectReviews(db: Tx, where: SQL | undefined) {
 function toReviews(db: Tx, firmId: string, rows: ReviewRow[]): Review[] {
   const runIds = rows.filter((r) => r.subjectType === 'run').map((r) => r.subjectId)
   const comparisonIds = rows.filter((r) => r.subjectType === 'comparison').map((r) => r.subjectId)
-  const subjects = new Map<string, { name: string; createdBy: string }>()
+  const subjects = new Map<string, { name: string; createdBy: string; revision: number }>()
   if (runIds.length > 0) {
     db.select({
       id: runs.id,
       createdBy: runs.createdBy,
+      revision: runs.revision,
       name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
     })
       .from(runs)
@@ -176,7 +217,12 @@ function toReviews(db: Tx, firmId: string, rows: ReviewRow[]): Review[] {
       .forEach((s) => subjects.set(`run:${s.id}`, s))
   }
   if (comparisonIds.length > 0) {
-    db.select({ id: comparisons.id, createdBy: comparisons.createdBy, name: comparisons.name })
+    db.select({
+      id: comparisons.id,
+      createdBy: comparisons.createdBy,
+      revision: comparisons.revision,
+      name: comparisons.name,
+    })
       .from(comparisons)
       .where(and(eq(comparisons.firmId, firmId), inArray(comparisons.id, comparisonIds)))
       .all()
@@ -193,6 +239,7 @@ function toReviews(db: Tx, firmId: string, rows: ReviewRow[]): Review[] {
       ...r,
       subjectName: subject?.name ?? '',
       subjectAuthor: person(subject?.createdBy ?? ''),
+      subjectRevision: subject?.revision ?? 1,
       submittedBy: person(r.submittedBy),
       decidedBy: r.decidedBy ? person(r.decidedBy) : null,
     }
@@ -323,6 +370,25 @@ export function submitReview(
   return { review: getReview(db, member.firmId, reviewId), created }
 }
 
+/** Whether the member ever created or changed the subject (the audit log keeps every change). */
+function changedSubject(tx: Tx, member: Member, type: ReviewSubjectType, id: string): boolean {
+  const actions = type === 'run' ? ['run.created'] : ['comparison.created', 'comparison.updated']
+  const row = tx
+    .select({ id: auditLog.id })
+    .from(auditLog)
+    .where(
+      and(
+        eq(auditLog.firmId, member.firmId),
+        eq(auditLog.userId, member.userId),
+        eq(auditLog.subjectType, type),
+        eq(auditLog.subjectId, id),
+        inArray(auditLog.action, actions),
+      ),
+    )
+    .get()
+  return row !== undefined
+}
+
 /**
  * A checker's decision: submitted → checked, or submitted → returned (with a comment). Nobody
  * decides on work they submitted, made, or ran (for a comparison: any of its runs).
@@ -352,6 +418,9 @@ export function decideReview(
       }
       if (subject.ranBy.includes(member.userId)) {
         throw forbidden('You ran part of this work yourself, so another checker must decide.')
+      }
+      if (changedSubject(tx, member, review.subjectType, review.subjectId)) {
+        throw forbidden('You changed this work yourself, so another checker must decide.')
       }
       if (review.state !== 'submitted') {
         throw conflict(`This review is ${review.state}, not waiting for a decision.`, 'not_submitted')

@@ -69,6 +69,8 @@ export const reviewSchema = z.object({
   subjectName: z.string(),
   /** Who made the work (ran the run or created the comparison). */
   subjectAuthor: person,
+  /** The work's revision now: a change to returned work raises it, and the thread says so. */
+  subjectRevision: z.number().int(),
   state: z.enum(STORED_REVIEW_STATES),
   submittedBy: person,
   submittedAt: z.number(),

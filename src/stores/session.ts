@@ -6,6 +6,7 @@ import * as sessionApi from '@/api/session'
 import type { Role, SessionInfo, SignInInput } from '@/api/session'
 import type { AcceptInvitationBody } from '../../shared/schemas/invitations'
 import { useErrorReporter } from '@/composables/useErrorReporter'
+import { type Action, type WorkForEditing, may as mayTake, mayEditWork } from '../../shared/permissions'
 
 /**
  * The signed-in member: who, in which firm, with which roles. `load()` asks the
@@ -24,8 +25,14 @@ export const useSessionStore = defineStore('session', () => {
 
   const signedIn = computed(() => user.value !== null)
 
-  function hasRole(...wanted: Role[]): boolean {
-    return wanted.some((r) => roles.value.includes(r))
+  /** Whether the signed-in member may take `action` (shared/permissions.ts). */
+  function may(action: Action): boolean {
+    return mayTake(roles.value, action)
+  }
+
+  /** Whether the signed-in member may change a run or comparison in its review state now. */
+  function mayEdit(work: WorkForEditing): boolean {
+    return user.value !== null && mayEditWork({ userId: user.value.id, roles: roles.value }, work)
   }
 
   function apply(info: SessionInfo | null) {
@@ -106,7 +113,8 @@ export const useSessionStore = defineStore('session', () => {
     error,
     loaded,
     signedIn,
-    hasRole,
+    may,
+    mayEdit,
     load,
     signIn,
     acceptInvitation,

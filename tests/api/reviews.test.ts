@@ -1,7 +1,7 @@
 import { and, asc, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
-import { auditLog, memberships, users } from '../../server/db/schema.js'
+import { auditLog, comparisons, memberships, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { insertSucceededRun, markRunQueued } from '../support/comparisonFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -282,5 +282,120 @@ describe('who may do what', () => {
       state: 'checked',
       subjectAuthor: { name: 'Ines Marlowe' },
     })
+  })
+})
+
+describe('checkers never change the work they sign off (issue 12, defects 1 and 2)', () => {
+  let comparisonId: string
+  let reviewId: string
+  const patch = (agent: request.Agent, body: Record<string, unknown>) =>
+    agent.patch(`/api/comparisons/${comparisonId}`).send(body)
+  const stored = () =>
+    ctx.db
+      .select({ name: comparisons.name, revision: comparisons.revision })
+      .from(comparisons)
+      .where(eq(comparisons.id, comparisonId))
+      .get()
+
+  beforeAll(async () => {
+    const res = await engineer
+      .post('/api/comparisons')
+      .send({ name: 'Checked suite', runIds: [engineerRun], dampingRatio: 0.05 })
+    expect(res.status).toBe(201)
+    comparisonId = res.body.comparison.id
+  })
+
+  it('a checker cannot edit an engineer’s draft (403), and nothing changes', async () => {
+    const res = await patch(checker, { name: 'Changed by the checker' })
+    expect(res.status).toBe(403)
+    expect(res.body.error.message).toMatch(/checker changes only work they made/)
+    expect(stored()).toEqual({ name: 'Checked suite', revision: 1 })
+  })
+
+  it('a checker may edit a draft they made themselves', async () => {
+    const own = await checker
+      .post('/api/comparisons')
+      .send({ name: 'Independent check', runIds: [checkerRun], dampingRatio: 0.05 })
+    expect(own.status).toBe(201)
+    const res = await checker
+      .patch(`/api/comparisons/${own.body.comparison.id}`)
+      .send({ name: 'Independent check B' })
+    expect(res.status).toBe(200)
+    expect(res.body.comparison).toMatchObject({ name: 'Independent check B', revision: 1 })
+  })
+
+  it('submitted work changes for nobody (409 under_review)', async () => {
+    const submitted = await engineer
+      .post('/api/reviews')
+      .send({ subjectType: 'comparison', subjectId: comparisonId })
+    expect(submitted.status).toBe(201)
+    reviewId = submitted.body.id
+    for (const agent of [engineer, checker]) {
+      const res = await patch(agent, { name: 'Changed while under review' })
+      expect(res.status).toBe(409)
+      expect(res.body.error.code).toBe('under_review')
+    }
+    expect(stored()).toEqual({ name: 'Checked suite', revision: 1 })
+  })
+
+  it('after returning it, the checker still cannot change it (403)', async () => {
+    const returned = await checker
+      .post(`/api/reviews/${reviewId}/decision`)
+      .send({ decision: 'returned', comment: 'Use the 5% curves of both runs.' })
+    expect(returned.status).toBe(200)
+    const res = await patch(checker, { name: 'Changed by the checker after the return' })
+    expect(res.status).toBe(403)
+    expect(res.body.error.message).toMatch(/returned to the engineer/)
+    expect(stored()).toEqual({ name: 'Checked suite', revision: 1 })
+  })
+
+  it('each change to returned work makes a new revision, shown by the sheet, the file name and the thread', async () => {
+    const first = await patch(engineer, { name: 'Checked suite, corrected' })
+    expect(first.status).toBe(200)
+    expect(first.body.comparison).toMatchObject({ name: 'Checked suite, corrected', revision: 2 })
+    const second = await patch(engineer, { meanKind: 'arithmetic' })
+    expect(second.body.comparison.revision).toBe(3)
+    expect(stored()).toEqual({ name: 'Checked suite, corrected', revision: 3 })
+
+    const sheet = await engineer.get(`/api/comparisons/${comparisonId}/sheet`)
+    expect(sheet.status).toBe(200)
+    expect(sheet.body.revision).toBe(3)
+    const file = await engineer.get(`/api/comparisons/${comparisonId}/export.csv`)
+    expect(file.status).toBe(200)
+    expect(file.headers['content-disposition']).toMatch(/-rev3-suite-comparison-checked-suite-corrected\.csv/)
+
+    const thread = await checker.get(`/api/reviews/${reviewId}`)
+    expect(thread.body.comments.map((c: { body: string }) => c.body)).toEqual([
+      'Use the 5% curves of both runs.',
+      'Revision 2 saved (changed: name).',
+      'Revision 3 saved (changed: meanKind).',
+    ])
+    expect(thread.body.subjectRevision).toBe(3)
+  })
+
+  it('a checker who changed the work cannot check it; another checker can', async () => {
+    // `both` holds the engineer role too, so may change returned work, and then may not check it.
+    const changed = await patch(both, { name: 'Checked suite, rev 4' })
+    expect(changed.status).toBe(200)
+    expect(changed.body.comparison.revision).toBe(4)
+    expect(
+      (await engineer.post('/api/reviews').send({ subjectType: 'comparison', subjectId: comparisonId }))
+        .status,
+    ).toBe(200)
+    const refused = await both.post(`/api/reviews/${reviewId}/decision`).send({ decision: 'checked' })
+    expect(refused.status).toBe(403)
+    expect(refused.body.error.message).toMatch(/You changed this work yourself/)
+    const checked = await checker.post(`/api/reviews/${reviewId}/decision`).send({ decision: 'checked' })
+    expect(checked.status).toBe(200)
+    expect(checked.body).toMatchObject({ state: 'checked', subjectRevision: 4 })
+  })
+
+  it('checked work is locked for everyone (409 locked)', async () => {
+    for (const agent of [engineer, checker, both]) {
+      const res = await patch(agent, { name: 'After the check' })
+      expect(res.status).toBe(409)
+      expect(res.body.error.code).toBe('locked')
+    }
+    expect(stored()).toEqual({ name: 'Checked suite, rev 4', revision: 4 })
   })
 })

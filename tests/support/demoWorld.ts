@@ -5,6 +5,7 @@ import { eq } from 'drizzle-orm'
 import type request from 'supertest'
 import { vi } from 'vitest'
 import type { Role } from '../../shared/schemas/accounts.js'
+import { rolesFor } from '../../shared/permissions.js'
 import type { Db } from '../../server/db/client.js'
 import { memberships, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
@@ -196,7 +197,7 @@ export async function createWorldContext(extend: (deps: AppDeps) => void = () =>
         ? ctx.anonymous()
         : r.access === 'member'
           ? members.engineer
-          : members[r.access[0]!],
+          : members[rolesFor(r.access)[0]!],
     async close() {
       await queue?.stop(0)
       ctx.close()

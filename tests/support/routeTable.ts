@@ -1,5 +1,5 @@
 import type { Express } from 'express'
-import type { Role } from '../../shared/schemas/accounts.js'
+import type { Action } from '../../shared/permissions.js'
 
 /**
  * Every route of the API, in one place, with who may call it and what it reads. The security and
@@ -7,10 +7,10 @@ import type { Role } from '../../shared/schemas/accounts.js'
  * and a test compares it with the routes createApp() actually mounts, so a new route without an
  * entry here fails the suite until someone says who may use it.
  *
- * `access` follows the role table of the accounts issue: 'public' (signed-out visitors too),
- * 'member' (any member of a firm), or the roles of which the member needs one.
+ * `access` is 'public' (signed-out visitors too), 'member' (any member of a firm), or the action
+ * of shared/permissions.ts the route takes, whose roles the sweeps read from that one table.
  */
-export type Access = 'public' | 'member' | readonly Role[]
+export type Access = 'public' | 'member' | Action
 
 /** The firm-owned object a route's `:id` names; the sweeps look its id up in the demo world. */
 export type IdKind = 'record' | 'run' | 'comparison' | 'review' | 'membership' | 'invitation'
@@ -53,8 +53,6 @@ export interface RouteSpec {
   mountedWhen?: string
 }
 
-const WRITERS = ['engineer', 'checker'] as const
-const ADMIN = ['admin'] as const
 const ASCE7 = { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 }
 
 export const routeTable: RouteSpec[] = [
@@ -85,25 +83,25 @@ export const routeTable: RouteSpec[] = [
     validBody: () => ({ password: 'a-new-password-1' }),
   },
 
-  { method: 'GET', path: '/firm/members', access: ADMIN },
+  { method: 'GET', path: '/firm/members', access: 'members.manage' },
   {
     method: 'PATCH',
     path: '/firm/members/:id',
-    access: ADMIN,
+    access: 'members.manage',
     id: 'membership',
     body: 'json',
     validBody: () => ({ roles: ['checker'] }),
   },
-  { method: 'DELETE', path: '/firm/members/:id', access: ADMIN, id: 'membership' },
-  { method: 'GET', path: '/firm/invitations', access: ADMIN },
+  { method: 'DELETE', path: '/firm/members/:id', access: 'members.manage', id: 'membership' },
+  { method: 'GET', path: '/firm/invitations', access: 'members.manage' },
   {
     method: 'POST',
     path: '/firm/invitations',
-    access: ADMIN,
+    access: 'members.manage',
     body: 'json',
     validBody: () => ({ email: 'someone-new@ordinate.test', roles: ['engineer'] }),
   },
-  { method: 'DELETE', path: '/firm/invitations/:id', access: ADMIN, id: 'invitation' },
+  { method: 'DELETE', path: '/firm/invitations/:id', access: 'members.manage', id: 'invitation' },
   { method: 'GET', path: '/invitations/:token', access: 'public', token: 'invitation' },
   {
     method: 'POST',
@@ -124,7 +122,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/projects',
-    access: WRITERS,
+    access: 'projects.manage',
     body: 'json',
     validBody: () => ({ name: 'Harbour Pavilion' }),
   },
@@ -136,7 +134,7 @@ export const routeTable: RouteSpec[] = [
     query: true,
     foreignIds: (w) => ({ query: { projectId: w.projectId } }),
   },
-  { method: 'POST', path: '/records', access: WRITERS, body: 'multipart' },
+  { method: 'POST', path: '/records', access: 'records.upload', body: 'multipart' },
   { method: 'GET', path: '/records/:id', access: 'member', id: 'record' },
   { method: 'GET', path: '/records/:id/samples', access: 'member', id: 'record', query: true },
   { method: 'DELETE', path: '/records/:id', access: 'member', id: 'record' },
@@ -144,7 +142,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/record-pairs',
-    access: WRITERS,
+    access: 'pairs.manage',
     body: 'json',
     validBody: (w) => ({ recordIds: w.recordIds }),
     foreignIds: (w) => ({ body: { recordIds: w.recordIds } }),
@@ -160,7 +158,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/runs',
-    access: WRITERS,
+    access: 'runs.start',
     body: 'json',
     validBody: (w) => ({ recordId: w.recordIds[0] }),
     foreignIds: (w) => ({ body: { recordId: w.recordIds[0] } }),
@@ -174,11 +172,11 @@ export const routeTable: RouteSpec[] = [
 
   { method: 'GET', path: '/credits', access: 'member' },
   { method: 'GET', path: '/credits/packs', access: 'member' },
-  { method: 'GET', path: '/credits/purchases', access: ADMIN },
+  { method: 'GET', path: '/credits/purchases', access: 'credits.buy' },
   {
     method: 'POST',
     path: '/credits/purchases',
-    access: ADMIN,
+    access: 'credits.buy',
     body: 'json',
     validBody: () => ({
       packId: 'pack-10',
@@ -205,7 +203,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/targets',
-    access: WRITERS,
+    access: 'targets.create',
     body: 'json',
     validBody: () => ({ name: 'Site target', definition: { ...ASCE7 } }),
     foreignIds: (w) => ({ body: { name: 'Site target', projectId: w.projectId, definition: { ...ASCE7 } } }),
@@ -230,7 +228,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/comparisons',
-    access: WRITERS,
+    access: 'comparisons.create',
     body: 'json',
     validBody: (w) => ({ name: 'Suite A', runIds: [w.runId], dampingRatio: 0.05 }),
     foreignIds: (w) => ({ body: { name: 'Suite A', runIds: [w.runId], dampingRatio: 0.05 } }),
@@ -238,7 +236,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'PATCH',
     path: '/comparisons/:id',
-    access: WRITERS,
+    access: 'comparisons.edit',
     id: 'comparison',
     body: 'json',
     validBody: () => ({ name: 'Suite A, revised' }),
@@ -257,7 +255,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/reviews',
-    access: ['engineer'],
+    access: 'reviews.submit',
     body: 'json',
     validBody: (w) => ({ subjectType: 'run', subjectId: w.runId }),
     foreignIds: (w) => ({ body: { subjectType: 'run', subjectId: w.runId } }),
@@ -265,7 +263,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/reviews/:id/decision',
-    access: ['checker'],
+    access: 'reviews.decide',
     id: 'review',
     body: 'json',
     validBody: () => ({ decision: 'checked' }),
@@ -273,7 +271,7 @@ export const routeTable: RouteSpec[] = [
   {
     method: 'POST',
     path: '/reviews/:id/comments',
-    access: WRITERS,
+    access: 'reviews.comment',
     id: 'review',
     body: 'json',
     validBody: () => ({ body: 'Please state the damping used.' }),
