@@ -1,4 +1,4 @@
-import type { GlobalThemeOverrides } from 'naive-ui'
+import { type GlobalThemeOverrides, type NLocale, createLocale, enUS } from 'naive-ui'
 import { palette } from '../shared/charts/palette'
 import { FONT_FAMILY } from '../shared/charts/svgMarkup'
 
@@ -57,6 +57,31 @@ export const themeOverrides: GlobalThemeOverrides = {
     thFontWeight: '600',
   },
 }
+
+/**
+ * Ordinate's own wording for the library's built-in texts, set once on the config provider
+ * (App.vue): fields are named by their labels, so inputs carry no stock placeholder, and an
+ * empty list or menu says so plainly.
+ */
+export const locale: NLocale = createLocale(
+  {
+    Input: { placeholder: '' },
+    InputNumber: { placeholder: '' },
+    Select: { placeholder: 'Choose…' },
+    Cascader: { placeholder: 'Choose…', loading: 'Loading…' },
+    Empty: { description: 'Nothing to show yet.' },
+    DataTable: {
+      checkTableAll: 'Tick every row',
+      uncheckTableAll: 'Untick every row',
+      confirm: 'Apply',
+      clear: 'Clear',
+    },
+    Pagination: { goto: 'Go to page', selectionSuffix: 'rows a page' },
+    Popconfirm: { positiveText: 'Yes', negativeText: 'Cancel' },
+    Log: { loading: 'Loading…' },
+  },
+  enUS,
+)
 
 /**
  * The palette as CSS custom properties (`palette.textMuted` → `--ordinate-text-muted`), set on

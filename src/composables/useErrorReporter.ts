@@ -1,6 +1,6 @@
 import { type MessageApi, createDiscreteApi } from 'naive-ui'
 import { ApiError } from '@/api/client'
-import { themeOverrides } from '@/theme'
+import { locale, themeOverrides } from '@/theme'
 
 let messages: MessageApi | null = null
 
@@ -11,7 +11,7 @@ let messages: MessageApi | null = null
 function messageApi(): MessageApi {
   if (messages === null) {
     messages = createDiscreteApi(['message'], {
-      configProviderProps: { themeOverrides },
+      configProviderProps: { themeOverrides, locale },
       messageProviderProps: { placement: 'top', duration: 6000, keepAliveOnHover: true, max: 4 },
     }).message
   }

@@ -1,4 +1,5 @@
 import { type Ref, ref } from 'vue'
+import { idSchema } from '../../shared/schemas/common'
 import { ApiError } from '@/api/client'
 import { useErrorReporter } from '@/composables/useErrorReporter'
 
@@ -20,11 +21,16 @@ export function useRequestState() {
     options: {
       /** Set instead of reporting when the server answers 404 (absent, or another firm's). */
       missing?: Ref<boolean>
+      /** The id asked for: one that cannot be an id (a mistyped link) is missing without asking. */
+      id?: string
     } = {},
   ): Promise<T | undefined> {
-    if (flag) flag.value = true
     error.value = null
-    if (options.missing) options.missing.value = false
+    if (options.missing) {
+      options.missing.value = options.id !== undefined && !idSchema.safeParse(options.id).success
+      if (options.missing.value) return undefined
+    }
+    if (flag) flag.value = true
     try {
       return await work()
     } catch (err) {

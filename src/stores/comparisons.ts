@@ -37,7 +37,7 @@ export const useComparisonsStore = defineStore('comparisons', () => {
       async () => {
         current.value = await comparisonsApi.getComparison(id)
       },
-      { missing: currentMissing },
+      { missing: currentMissing, id },
     )
   }
 

@@ -52,7 +52,7 @@ export const useRecordsStore = defineStore('records', () => {
         current.value = record
         currentSamples.value = samples
       },
-      { missing: currentMissing },
+      { missing: currentMissing, id },
     )
   }
 

@@ -85,7 +85,7 @@ export const useRunsStore = defineStore('runs', () => {
         if (run.status === 'succeeded') currentSpectrum.value = await runsApi.getRunSpectrum(id)
         else follow(run)
       },
-      { missing: currentMissing },
+      { missing: currentMissing, id },
     )
   }
 
