@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { readDecimal } from '../forms/runSettingsText.js'
 import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
 import { SOURCE_UNITS } from '../spectra/units.js'
 import { idSchema } from './common.js'
@@ -20,11 +21,15 @@ const optionalField = <T extends z.ZodType>(schema: T) =>
 export const uploadRecordFieldsSchema = z.strictObject({
   name: optionalField(z.string().trim().max(200, 'Use at most 200 characters.')),
   units: optionalField(sourceUnitsSchema),
+  // "0,005" (a decimal comma) reads as 0.005; anything else unreadable is refused on the field.
   dtS: optionalField(
-    z.coerce
-      .number({ error: 'Enter the time step in seconds, for example 0.005.' })
-      .positive('The time step must be greater than zero.')
-      .max(10, 'The time step must be at most 10 s.'),
+    z.preprocess(
+      (v) => (typeof v === 'string' ? (readDecimal(v) ?? v) : v),
+      z.coerce
+        .number({ error: 'Enter the time step in seconds, for example 0.005.' })
+        .positive('The time step must be greater than zero.')
+        .max(10, 'The time step must be at most 10 s.'),
+    ),
   ),
   component: optionalField(z.string().trim().max(40, 'Use at most 40 characters.')),
   projectId: optionalField(idSchema),

@@ -9,7 +9,9 @@
  *   `dt = 0.005 s`, `sampling rate 200 Hz`) and often the point count
  *   (`NPTS= 8001`, `points: 8001`), then values, several per line.
  *
- * Units come from the caller or a header line (g, m/s², cm/s² or gal, in/s²).
+ * Units come from the caller or a header line, column names included (`acc (g)`,
+ * `accel_m_s2`, `a [cm/s2]`, `in/s^2`). Values that look like the wrong units (PGA above 4 g or
+ * below 0.0005 g) or a time step above 0.1 s only warn (shared/spectra/unitPlausibility.ts).
  * Every rejection is a {@link RecordParseError} naming the line and what to fix.
  */
 import { parse as parseCsv } from 'csv-parse/browser/esm/sync'
@@ -25,6 +27,7 @@ import {
   splitLines,
   toNumber,
 } from './recordHeader.js'
+import { unitPlausibilityWarnings } from './unitPlausibility.js'
 import { M_PER_S2_PER_UNIT, STANDARD_GRAVITY_M_PER_S2, type SourceUnits, isSourceUnits } from './units.js'
 
 export { inspectRecordHeader, type RecordHeaderInfo, type RecordFormat } from './recordHeader.js'
@@ -498,8 +501,10 @@ export function parseRecord(text: string, options: ParseRecordOptions = {}): Par
 
   const scale = M_PER_S2_PER_UNIT[sourceUnits]
   const limit = MAX_PLAUSIBLE_ACCEL_G * STANDARD_GRAVITY_M_PER_S2
+  let peak = 0
   for (let index = 0; index < points; index++) {
     const value = (accel[index] ?? 0) * scale
+    if (Math.abs(value) > peak) peak = Math.abs(value)
     if (Math.abs(value) > limit) {
       const line = lineOf(index)
       throw new RecordParseError(
@@ -510,5 +515,6 @@ export function parseRecord(text: string, options: ParseRecordOptions = {}): Par
     }
     accel[index] = value
   }
+  for (const w of unitPlausibilityWarnings(peak, sourceUnits, dtS)) warnings.push(w.message)
   return { accelMPerS2: accel, dtS, points, sourceUnits, format, warnings }
 }

@@ -89,10 +89,18 @@ const POINTS_SUFFIX_RE = /\b(\d+)\s*(?:points|samples|pts|values)\b(?!\s*(?:per\
 
 const PER_S2 = String.raw`\s*\/\s*s(?:ec)?\s*(?:\^?\s*2|²|\*\*\s*2|\/\s*s(?:ec)?\b)`
 const PER_S2_EXP = String.raw`\s*s(?:ec)?\s*\^?\s*-\s*2`
+/** Column names spell units with underscores: accel_m_s2, a_cm_per_s2, acc_in_s_2. */
+const PER_S2_SNAKE = String.raw`_(?:per_)?s(?:ec)?_?2(?![a-z0-9])`
 const UNIT_PATTERNS: readonly (readonly [SourceUnits, RegExp])[] = [
-  ['cm/s2', new RegExp(String.raw`(?<![a-z])cm(?:${PER_S2}|${PER_S2_EXP})|\bgals?\b|\bcmps2\b`, 'i')],
-  ['in/s2', new RegExp(String.raw`(?<![a-z])in(?:ch(?:es)?)?(?:${PER_S2}|${PER_S2_EXP})`, 'i')],
-  ['m/s2', new RegExp(String.raw`(?<![a-z])m(?:${PER_S2}|${PER_S2_EXP})|\bmps2\b`, 'i')],
+  [
+    'cm/s2',
+    new RegExp(String.raw`(?<![a-z])cm(?:${PER_S2}|${PER_S2_EXP}|${PER_S2_SNAKE})|\bgals?\b|\bcmps2\b`, 'i'),
+  ],
+  [
+    'in/s2',
+    new RegExp(String.raw`(?<![a-z])in(?:ch(?:es)?)?(?:${PER_S2}|${PER_S2_EXP}|${PER_S2_SNAKE})`, 'i'),
+  ],
+  ['m/s2', new RegExp(String.raw`(?<![a-z])m(?:${PER_S2}|${PER_S2_EXP}|${PER_S2_SNAKE})|\bmps2\b`, 'i')],
   [
     'g',
     new RegExp(
@@ -122,10 +130,12 @@ export function unitsInText(text: string): SourceUnits | null {
 }
 
 function timeStepInText(text: string): number | null {
-  const dt = DT_RE.exec(text)
+  // A decimal comma ("dt = 0,005 s") is read as a decimal point, never as a time step of 0.
+  const dt = DT_RE.exec(text.replace(/(\d),(\d)/g, '$1.$2'))
   if (dt) {
     const value = Number(dt[2])
     const unit = (dt[3] ?? dt[1] ?? 's').toLowerCase()
+    if (!(value > 0)) return null
     return unit.startsWith('m') ? value / 1000 : value
   }
   const rate = RATE_RE.exec(text) ?? RATE_SUFFIX_RE.exec(text)
