@@ -36,7 +36,11 @@ export const navigation: NavEntry[] = [
     iconPath:
       'M7 9a3 3 0 1 0 0-6 3 3 0 0 0 0 6M2 17c0-3 2.2-5 5-5s5 2 5 5M13 4.5a2.5 2.5 0 0 1 0 5M15 12c1.8.6 3 2.4 3 5',
   },
-  { to: '/account', label: 'Account', iconPath: 'M10 9a3.5 3.5 0 1 0 0-7 3.5 3.5 0 0 0 0 7M3 18c0-4 3-6 7-6s7 2 7 6' },
+  {
+    to: '/account',
+    label: 'Account',
+    iconPath: 'M10 9a3.5 3.5 0 1 0 0-7 3.5 3.5 0 0 0 0 7M3 18c0-4 3-6 7-6s7 2 7 6',
+  },
 ]
 
 /** The entries a member holding `roles` may use, in navigation order. */

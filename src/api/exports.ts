@@ -19,6 +19,8 @@ export interface PlotView {
   yScale?: 'log' | 'linear'
   /** Comparisons: records drawn scaled (true) or as recorded. */
   scaled?: boolean
+  /** The four-way log plot instead of the spectrum chart (in the PDF sheet too). */
+  chart?: 'tripartite'
 }
 
 /**
@@ -35,6 +37,7 @@ export function exportUrl(
   const path = `${BASE[subject]}/${encodeURIComponent(id)}/export.${format}`
   const params = new URLSearchParams()
   if (format === 'png' && options.widthMm !== undefined) params.set('widthMm', String(options.widthMm))
+  if (format === 'pdf' && options.view?.chart) params.set('chart', options.view.chart)
   if (format === 'png' || format === 'svg') {
     for (const [key, value] of Object.entries(options.view ?? {})) {
       if (value !== undefined) params.set(key, String(value))

@@ -5,6 +5,7 @@ import {
   type SpectrumQuantity,
   spectrumQuantities,
 } from '../../shared/charts/units'
+import { useMeStore } from '@/stores/me'
 
 /** The two unit choices a spectrum page offers; velocity and displacement follow acceleration's. */
 export type UnitSystem = 'practical' | 'SI'
@@ -12,6 +13,23 @@ export type UnitSystem = 'practical' | 'SI'
 export const UNIT_SYSTEMS: Readonly<Record<UnitSystem, Readonly<Record<MotionKind, DisplayUnit>>>> = {
   practical: { acceleration: 'g', velocity: 'cm/s', displacement: 'mm' },
   SI: { acceleration: 'm/s²', velocity: 'm/s', displacement: 'm' },
+}
+
+/** The practical units of a member who chose US customary (Account page): SD in in, SV and PSV in in/s. */
+export const US_PRACTICAL: Readonly<Record<MotionKind, DisplayUnit>> = {
+  acceleration: 'g',
+  velocity: 'in/s',
+  displacement: 'in',
+}
+
+/** The units of each choice for this member: "practical" follows their SI or US preference. */
+export function useUnitSystems() {
+  const me = useMeStore()
+  void me.ensureLoaded()
+  return computed<Readonly<Record<UnitSystem, Readonly<Record<MotionKind, DisplayUnit>>>>>(() => ({
+    ...UNIT_SYSTEMS,
+    ...(me.units === 'us' ? { practical: US_PRACTICAL } : {}),
+  }))
 }
 
 /**
@@ -25,7 +43,8 @@ export function useSpectrumView() {
   const logPeriods = ref(true)
   const logOrdinates = ref(false)
 
-  const unitOf = (kind: MotionKind): DisplayUnit => UNIT_SYSTEMS[system.value][kind]
+  const systems = useUnitSystems()
+  const unitOf = (kind: MotionKind): DisplayUnit => systems.value[system.value][kind]
   const unit = computed(() => unitOf(spectrumQuantities[quantity.value].kind))
   const plotView = computed(() => ({
     quantity: quantity.value,

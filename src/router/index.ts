@@ -42,8 +42,14 @@ const router = createRouter({
     {
       path: '/',
       name: 'overview',
+      component: () => import('@/views/WorkspaceView.vue'),
+      meta: { title: 'Workspace' },
+    },
+    {
+      path: '/demo',
+      name: 'demo',
       component: () => import('@/views/OverviewView.vue'),
-      meta: { title: 'Overview' },
+      meta: { title: 'Demo spectrum' },
     },
     {
       path: '/records',

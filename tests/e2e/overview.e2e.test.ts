@@ -9,6 +9,8 @@ describe('Overview', () => {
   it('shows the demo record spectrum computed in the browser, equal to the engine run in Node', async () => {
     const page = await env.browser.newPage()
     await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
+    // The home page is the firm's workspace once records exist; the demo keeps its own page.
+    await page.goto(`${env.server.url}/demo`)
     const table = page.locator('[data-test="ordinates-table"]')
     await table.waitFor({ timeout: 30_000 })
 
@@ -49,6 +51,7 @@ describe('Overview', () => {
   it("zooms the demo record's plot to a dragged window and back to the whole record", async () => {
     const page = await env.browser.newPage()
     await signInThroughForm(page, env.server.url, demoMembers.checker.email)
+    await page.goto(`${env.server.url}/demo`)
     await page.locator('[data-test="ordinates-table"]').waitFor({ timeout: 30_000 })
     const history = page.locator('.chart-surface').nth(1)
     const window = page.getByText(/^Showing .* s\. Drag across the plot to zoom\.$/)
