@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto'
 import path from 'node:path'
-import { and, asc, count, desc, eq, inArray, isNotNull, or } from 'drizzle-orm'
+import { and, asc, count, desc, eq, inArray, isNotNull, or, type SQL } from 'drizzle-orm'
 import { may, refusalFor } from '../../shared/permissions.js'
 import { parseRecord, RecordParseError } from '../../shared/spectra/parseRecord.js'
 import { integrateRecord, recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
@@ -12,7 +12,7 @@ import type {
   RecordSamples,
   UpdateRecordBody,
 } from '../../shared/schemas/records.js'
-import type { Db } from '../db/client.js'
+import type { Db, Tx } from '../db/client.js'
 import { parseStored } from '../db/parseStored.js'
 import { projects, recordPairs, records, runs, users } from '../db/schema.js'
 import { badRequest, conflict, forbidden, notFound } from '../httpError.js'
@@ -306,6 +306,36 @@ export function recordSamplesForPlot(
   }
 }
 
+/** The firm's record pairs that have the record as one of their components. */
+export function pairIdsOfRecord(db: Tx, firmId: string, recordId: string): string[] {
+  return db
+    .select({ id: recordPairs.id })
+    .from(recordPairs)
+    .where(
+      and(
+        eq(recordPairs.firmId, firmId),
+        or(eq(recordPairs.record1Id, recordId), eq(recordPairs.record2Id, recordId)),
+      ),
+    )
+    .all()
+    .map((p) => p.id)
+}
+
+/**
+ * The runs that read a record: its own runs and those of every pair it is a component of, so
+ * the record's page lists the runs its deletion is refused for.
+ */
+export function runsOfRecordCondition(
+  db: Tx,
+  firmId: string,
+  recordId: string,
+  pairIds = pairIdsOfRecord(db, firmId, recordId),
+): SQL {
+  return pairIds.length
+    ? (or(eq(runs.recordId, recordId), inArray(runs.pairId, pairIds)) as SQL)
+    : eq(runs.recordId, recordId)
+}
+
 /**
  * Deletes a record: only its uploader or an admin. While a run uses the record, directly or
  * through a pair, it answers 409. Pairs the record belongs to are removed with it. The
@@ -320,25 +350,11 @@ export function removeRecord(db: Db, dataDir: string, member: Member, recordId: 
   }
   db.transaction(
     (tx) => {
-      const pairIds = tx
-        .select({ id: recordPairs.id })
-        .from(recordPairs)
-        .where(
-          and(
-            eq(recordPairs.firmId, member.firmId),
-            or(eq(recordPairs.record1Id, recordId), eq(recordPairs.record2Id, recordId)),
-          ),
-        )
-        .all()
-        .map((p) => p.id)
+      const pairIds = pairIdsOfRecord(tx, member.firmId, recordId)
       const usedBy = tx
         .select({ n: count() })
         .from(runs)
-        .where(
-          pairIds.length
-            ? or(eq(runs.recordId, recordId), inArray(runs.pairId, pairIds))
-            : eq(runs.recordId, recordId),
-        )
+        .where(runsOfRecordCondition(tx, member.firmId, recordId, pairIds))
         .get()
       const children = tx
         .select({ n: count() })

@@ -31,3 +31,13 @@ export const M_PER_S2_PER_UNIT: Readonly<Record<SourceUnits, number>> = {
 export function isSourceUnits(value: string): value is SourceUnits {
   return (SOURCE_UNITS as readonly string[]).includes(value)
 }
+
+/**
+ * How a record's accelerations were read, for the method panel, sheets and files: "Read in m/s²",
+ * or "Read in cm/s² and converted to m/s²" (with the value of g for records in g).
+ */
+export function unitsStatement(sourceUnits: SourceUnits): string {
+  if (sourceUnits === 'm/s2') return 'Read in m/s²'
+  const gravity = sourceUnits === 'g' ? ` (g = ${STANDARD_GRAVITY_M_PER_S2} m/s²)` : ''
+  return `Read in ${SOURCE_UNIT_LABELS[sourceUnits]} and converted to m/s²${gravity}`
+}
