@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { COMBINATIONS } from '../vocabulary/combinations.js'
 import { idSchema } from './common.js'
 import {
   runCombinationSchema,
@@ -69,7 +70,7 @@ export const createRunBatchBodySchema = z
       ctx.addIssue({
         code: 'custom',
         path: ['combinations'],
-        message: 'Give the combinations to compute for the pairs (geomean, rotd50, rotd100).',
+        message: `Give the combinations to compute for the pairs (${COMBINATIONS.join(', ')}).`,
       })
     }
     if (b.pairIds.length === 0 && b.combinations) {
