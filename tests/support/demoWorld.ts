@@ -90,6 +90,19 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
     },
     { timeout: 30_000, interval: 50 },
   )
+  const batch = await engineer
+    .post('/api/run-batches')
+    .send({ recordIds: [recordIds[1]], dampingRatios: [0.05], periodsS: [0.2, 1] })
+  expectStatus(batch, 202, 'batch')
+  await vi.waitFor(
+    async () => {
+      const res = await engineer.get(`/api/run-batches/${batch.body.id}`)
+      if (!res.body.finished) throw new Error(`batch ${JSON.stringify(res.body.counts)}`)
+    },
+    { timeout: 30_000, interval: 50 },
+  )
+  const apiToken = await engineer.post('/api/me/tokens').send({ name: 'Demo world script' })
+  expectStatus(apiToken, 201, 'API token')
   const comparison = await engineer
     .post('/api/comparisons')
     .send({ name: 'Demo world suite', runIds: [runId], dampingRatio: 0.05 })
@@ -138,6 +151,9 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
       review: ids.reviewId,
       membership: ids.membershipId,
       invitation: ids.invitationId,
+      project: ids.projectId,
+      batch: batch.body.id,
+      apiToken: apiToken.body.id,
     },
     tokenOf: { invitation: invitationToken, reset: resetToken },
   }

@@ -13,7 +13,8 @@ import type { Action } from '../../shared/permissions.js'
 export type Access = 'public' | 'member' | Action
 
 /** The firm-owned object a route's `:id` names; the sweeps look its id up in the demo world. */
-export type IdKind = 'record' | 'run' | 'comparison' | 'review' | 'membership' | 'invitation'
+export type IdKind =
+  'record' | 'run' | 'comparison' | 'review' | 'membership' | 'invitation' | 'project' | 'batch' | 'apiToken'
 /** The single-use token a route's `:token` names. */
 export type TokenKind = 'invitation' | 'reset'
 
@@ -67,6 +68,18 @@ export const routeTable: RouteSpec[] = [
   },
   { method: 'POST', path: '/auth/sign-out', access: 'public' },
   { method: 'GET', path: '/me', access: 'member' },
+  { method: 'PATCH', path: '/me', access: 'member', body: 'json', validBody: () => ({ units: 'us' }) },
+  { method: 'GET', path: '/me/tokens', access: 'member' },
+  {
+    method: 'POST',
+    path: '/me/tokens',
+    access: 'member',
+    body: 'json',
+    validBody: () => ({ name: 'Suite scripts', roles: ['engineer'] }),
+  },
+  { method: 'DELETE', path: '/me/tokens/:id', access: 'member', id: 'apiToken' },
+  { method: 'GET', path: '/firm/tokens', access: 'members.manage' },
+  { method: 'DELETE', path: '/firm/tokens/:id', access: 'members.manage', id: 'apiToken' },
   {
     method: 'POST',
     path: '/auth/password-reset',
@@ -126,6 +139,14 @@ export const routeTable: RouteSpec[] = [
     body: 'json',
     validBody: () => ({ name: 'Harbour Pavilion' }),
   },
+  {
+    method: 'PATCH',
+    path: '/projects/:id',
+    access: 'projects.manage',
+    id: 'project',
+    body: 'json',
+    validBody: () => ({ name: 'Tidewater Library Annex, east wing' }),
+  },
 
   {
     method: 'GET',
@@ -136,6 +157,14 @@ export const routeTable: RouteSpec[] = [
   },
   { method: 'POST', path: '/records', access: 'records.upload', body: 'multipart' },
   { method: 'GET', path: '/records/:id', access: 'member', id: 'record' },
+  {
+    method: 'PATCH',
+    path: '/records/:id',
+    access: 'records.upload',
+    id: 'record',
+    body: 'json',
+    validBody: () => ({ name: 'Demo world H1, renamed' }),
+  },
   { method: 'GET', path: '/records/:id/samples', access: 'member', id: 'record', query: true },
   { method: 'DELETE', path: '/records/:id', access: 'member', id: 'record' },
   { method: 'GET', path: '/record-pairs', access: 'member' },
@@ -163,6 +192,23 @@ export const routeTable: RouteSpec[] = [
     validBody: (w) => ({ recordId: w.recordIds[0] }),
     foreignIds: (w) => ({ body: { recordId: w.recordIds[0] } }),
   },
+  {
+    method: 'GET',
+    path: '/run-batches',
+    access: 'member',
+    query: true,
+    foreignIds: (w) => ({ query: { projectId: w.projectId } }),
+  },
+  {
+    method: 'POST',
+    path: '/run-batches',
+    access: 'runs.start',
+    body: 'json',
+    validBody: (w) => ({ recordIds: [w.recordIds[0]], periodsS: [0.5, 1] }),
+    foreignIds: (w) => ({ body: { recordIds: [w.recordIds[0]], periodsS: [0.5, 1] } }),
+  },
+  { method: 'GET', path: '/run-batches/:id', access: 'member', id: 'batch' },
+  { method: 'GET', path: '/run-batches/:id/events', access: 'member', id: 'batch' },
   { method: 'GET', path: '/runs/:id', access: 'member', id: 'run' },
   { method: 'GET', path: '/runs/:id/spectrum', access: 'member', id: 'run' },
   { method: 'GET', path: '/runs/:id/spectrum.csv', access: 'member', id: 'run' },
