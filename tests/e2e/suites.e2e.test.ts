@@ -1,0 +1,139 @@
+import type { Page } from 'playwright-core'
+import { describe, expect, it } from 'vitest'
+import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
+
+const env = useBrowserTestEnvironment()
+
+/**
+ * A synthetic time–value record stating its units (g) and Δt (0.01 s, from the time column):
+ * a decaying sine, invented for the test.
+ */
+function syntheticRecord(amplitudeG: number, periodS: number, points = 400): string {
+  const lines = ['time (s),acceleration (g)']
+  for (let i = 0; i < points; i++) {
+    const t = i * 0.01
+    lines.push(
+      `${t.toFixed(2)},${(amplitudeG * Math.exp(-t / 2) * Math.sin((2 * Math.PI * t) / periodS)).toFixed(6)}`,
+    )
+  }
+  return `${lines.join('\n')}\n`
+}
+
+const file = (name: string, text: string) => ({ name, mimeType: 'text/plain', buffer: Buffer.from(text) })
+
+/** The same record with a letter O in place of a zero on line 7. */
+const badRecord = syntheticRecord(0.2, 0.4).split('\n')
+badRecord[6] = '0.05,0.0O3'
+
+async function engineerOn(path: string): Promise<Page> {
+  const page = await env.browser.newPage()
+  await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
+  await page.goto(`${env.server.url}${path}`)
+  return page
+}
+
+describe('suites in the browser', () => {
+  it('uploads 5 dropped files: 4 stored and the bad one refused with its line; accepts a suggested pair', async () => {
+    const page = await engineerOn('/records')
+    await page
+      .locator('[data-test="multi-file-input"]')
+      .setInputFiles([
+        file('Quay station H1.csv', syntheticRecord(0.3, 0.5)),
+        file('Quay station H2.csv', syntheticRecord(0.25, 0.7)),
+        file('Pier station X.csv', syntheticRecord(0.15, 0.3)),
+        file('Bad quay record.csv', badRecord.join('\n')),
+        file('Yard station.csv', syntheticRecord(0.1, 1.1, 300)),
+      ])
+    const table = page.locator('[data-test="multi-upload-table"]')
+    await expect(table.locator('tbody tr').count()).resolves.toBe(5)
+    await page.locator('[data-test="upload-all"]').click()
+    await page
+      .locator('[data-test="multi-summary"]')
+      .getByText('4 stored, 1 refused.')
+      .waitFor({ timeout: 60_000 })
+    const bad = table.locator('tr[data-file="Bad quay record.csv"]')
+    expect(await bad.getAttribute('data-state')).toBe('refused')
+    expect(await bad.locator('[data-test="row-refusal"]').innerText()).toMatch(/line 7/i)
+    expect(await table.locator('tr[data-state="stored"]').count()).toBe(4)
+    await page.screenshot({ path: artifactPath('suites-multi-upload.png'), fullPage: true })
+
+    const suggestion = page.locator('[data-test="pair-suggestion"]', { hasText: 'Quay station H1/H2' })
+    await suggestion.waitFor()
+    await suggestion.locator('[data-test="accept-pair"]').click()
+    await page.locator('[data-test="pair-made"]').waitFor()
+    await page.goto(`${env.server.url}/pairs`)
+    await page
+      .locator('[data-test="pairs-table"]')
+      .getByRole('link', { name: 'Quay station H1/H2' })
+      .waitFor()
+    await page.close()
+  })
+
+  it('runs the pair from its page and reads RotD50 on the run page', async () => {
+    const page = await engineerOn('/pairs')
+    await page.locator('[data-test="pairs-table"]').getByRole('link', { name: 'Quay station H1/H2' }).click()
+    await page.locator('[data-test="pair-components"]').getByText('Quay station H1').waitFor()
+    await page.locator('[data-test="pair-run-form"]').waitFor()
+    await page.locator('[data-test="start-pair-run"]').click()
+    await page.waitForURL(/\/runs\/[^/]+$/)
+    const chart = page.locator('figure svg[role="img"]').first()
+    await chart.waitFor({ timeout: 60_000 })
+    expect(await chart.locator('desc').textContent()).toContain('Quay station H1/H2 (RotD50)')
+    await page.close()
+  })
+
+  it('runs a batch of two records, watches it finish, and compares it on the four-way log plot', async () => {
+    const page = await engineerOn('/records')
+    const table = page.locator('[data-test="records-table"]')
+    for (const name of ['Pier station X', 'Yard station']) {
+      await table.locator('tr', { hasText: name }).locator('.n-checkbox').first().click()
+    }
+    const form = page.locator('[data-test="batch-run-form"]')
+    await expect(form.locator('[data-test="batch-cost"]').innerText()).resolves.toMatch(
+      /Needs 2 credits · balance \d+/,
+    )
+    await form.locator('[data-test="start-batch"]').click()
+    await page.getByRole('button', { name: 'Start the runs' }).click()
+    await page.waitForURL(/\/batches\/[^/]+$/)
+    await page.locator('[data-test="batch-finished"]').waitFor({ timeout: 90_000 })
+    await expect(page.locator('[data-test="batch-counts"]').innerText()).resolves.toMatch(/2 of 2/)
+
+    await page.locator('[data-test="chart-kind-tripartite"]').click()
+    const plot = page.locator('[data-test="tripartite-chart"] svg')
+    await plot.waitFor()
+    const svg = await plot.evaluate((el) => el.outerHTML)
+    expect(svg).toContain('PSV (cm/s)')
+    expect(svg).toMatch(/data-diagonal="SD [\d.]+"/)
+    expect(svg).toMatch(/data-diagonal="PSA [\d.]+"/)
+    await page.screenshot({ path: artifactPath('suites-batch-tripartite.png'), fullPage: true })
+
+    await page.locator('[data-test="compare-batch"]').click()
+    await page.waitForURL(/\/comparisons\/[^/]+$/)
+    await page.locator('[data-test="comparison-chart"], figure svg[role="img"]').first().waitFor()
+    await page.locator('[data-test="chart-kind-tripartite"]').click()
+    await page.locator('[data-test="tripartite-chart"] svg').waitFor()
+    expect(await page.locator('[data-test="tripartite-chart"] svg').evaluate((el) => el.outerHTML)).toContain(
+      'SD (cm)',
+    )
+    await page.screenshot({ path: artifactPath('suites-comparison-tripartite.png'), fullPage: true })
+    await page.close()
+  })
+
+  it('switches to US customary units and shows inches in the ordinates table', async () => {
+    const page = await engineerOn('/account')
+    await page.locator('[data-test="units-us"]').click()
+    await page.locator('[data-test="save-units"]').click()
+    await page.locator('[data-test="units-saved"]').getByText('Saved.').waitFor()
+
+    await page.goto(`${env.server.url}/runs`)
+    await page
+      .locator('[data-test="runs-table"]')
+      .getByRole('link', { name: 'Pier station X' })
+      .first()
+      .click()
+    await page.locator('[data-test="quantity"]').getByText('SD', { exact: true }).click()
+    await page.getByText('Ordinates: SD in in', { exact: true }).waitFor()
+    await page.screenshot({ path: artifactPath('suites-us-units.png'), fullPage: true })
+    await page.close()
+  })
+})
