@@ -1,4 +1,4 @@
-import { type Ref, computed, onScopeDispose, ref, watch } from 'vue'
+import { type Ref, computed, onScopeDispose, reactive, ref, watch } from 'vue'
 import { dampingLabel } from '../../shared/charts/spectrumChart'
 import type { ScalingRule } from '../../shared/spectra/suite'
 import { COMBINATIONS, COMBINATION_LABELS } from '../../shared/vocabulary/combinations'
@@ -19,6 +19,23 @@ import { formatDateTime } from '@/formatDateTime'
 /** How long the inputs must rest before the preview is asked for again. */
 const PREVIEW_DELAY_MS = 350
 
+/** What the form edits. */
+export interface ComparisonDraftInputs {
+  name: string
+  runIds: string[]
+  dampingRatio: number | null
+  meanKind: MeanKind
+  /** How pair runs are combined; null leaves the server's default. */
+  combination: Combination | null
+  target: ComparisonTargetInput | null
+  scalingOn: boolean
+  fromS: number | null
+  toS: number | null
+  rule: ScalingRule
+  /** The checked comparison this draft revises, if any. */
+  revisionOf: string | null
+}
+
 /** The stored target of a saved comparison, as the target editor takes it. */
 function targetInputOf(stored: ComparisonSummary['target']): ComparisonTargetInput | null {
   if (!stored) return null
@@ -35,18 +52,19 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
   const { runs, ready, locked } = options
   const { report } = useErrorReporter()
 
-  const name = ref('')
-  const runIds = ref<string[]>([])
-  const dampingRatio = ref<number | null>(null)
-  const meanKind = ref<MeanKind>('arithmetic')
-  const combination = ref<Combination | null>(null)
-  const target = ref<ComparisonTargetInput | null>(null)
-  const scalingOn = ref(false)
-  const fromS = ref<number | null>(0.2)
-  const toS = ref<number | null>(2)
-  const rule = ref<ScalingRule>('suite-90')
-  /** The checked comparison this draft revises, if any. */
-  const revisionOf = ref<string | null>(null)
+  const draft = reactive<ComparisonDraftInputs>({
+    name: '',
+    runIds: [],
+    dampingRatio: null,
+    meanKind: 'arithmetic',
+    combination: null,
+    target: null,
+    scalingOn: false,
+    fromS: 0.2,
+    toS: 2,
+    rule: 'suite-90',
+    revisionOf: null,
+  })
 
   const drawing = ref<ComparisonDrawing | null>(null)
   const previewing = ref(false)
@@ -54,18 +72,16 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
 
   /** Puts a saved comparison's inputs in the fields. */
   function fill(c: ComparisonSummary) {
-    name.value = c.name
-    runIds.value = [...c.runIds]
-    dampingRatio.value = c.dampingRatio
-    meanKind.value = c.meanKind
-    combination.value = c.combination
-    target.value = targetInputOf(c.target)
-    scalingOn.value = c.scaling !== null
-    if (c.scaling) {
-      fromS.value = c.scaling.fromS
-      toS.value = c.scaling.toS
-      rule.value = c.scaling.rule
-    }
+    Object.assign(draft, {
+      name: c.name,
+      runIds: [...c.runIds],
+      dampingRatio: c.dampingRatio,
+      meanKind: c.meanKind,
+      combination: c.combination,
+      target: targetInputOf(c.target),
+      scalingOn: c.scaling !== null,
+      ...(c.scaling ? { fromS: c.scaling.fromS, toS: c.scaling.toS, rule: c.scaling.rule } : {}),
+    })
   }
 
   const runOptions = computed(() =>
@@ -77,7 +93,7 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
       })),
   )
   const chosenRuns = computed(() =>
-    runIds.value.map((id) => runs.value.find((r) => r.id === id)).filter((r) => r !== undefined),
+    draft.runIds.map((id) => runs.value.find((r) => r.id === id)).filter((r) => r !== undefined),
   )
 
   /** Damping ratios every chosen run computed. */
@@ -90,8 +106,8 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
   })
   watch(dampingOptions, (choices) => {
     if (!ready.value) return
-    if (dampingRatio.value !== null && choices.some((o) => o.value === dampingRatio.value)) return
-    dampingRatio.value =
+    if (draft.dampingRatio !== null && choices.some((o) => o.value === draft.dampingRatio)) return
+    draft.dampingRatio =
       choices.find((o) => Math.abs(o.value - 0.05) < 1e-9)?.value ?? choices[0]?.value ?? null
   })
 
@@ -105,18 +121,18 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
   })
 
   const body = computed<PreviewComparisonBody | null>(() => {
-    if (runIds.value.length === 0 || dampingRatio.value === null) return null
+    if (draft.runIds.length === 0 || draft.dampingRatio === null) return null
     const scaling =
-      scalingOn.value && target.value && fromS.value !== null && toS.value !== null
-        ? { fromS: fromS.value, toS: toS.value, rule: rule.value }
+      draft.scalingOn && draft.target && draft.fromS !== null && draft.toS !== null
+        ? { fromS: draft.fromS, toS: draft.toS, rule: draft.rule }
         : undefined
     return {
-      name: name.value.trim() || undefined,
-      runIds: runIds.value,
-      dampingRatio: dampingRatio.value,
-      meanKind: meanKind.value,
-      ...(pairRuns.value.length > 0 && combination.value ? { combination: combination.value } : {}),
-      ...(target.value ? { target: target.value } : {}),
+      name: draft.name.trim() || undefined,
+      runIds: draft.runIds,
+      dampingRatio: draft.dampingRatio,
+      meanKind: draft.meanKind,
+      ...(pairRuns.value.length > 0 && draft.combination ? { combination: draft.combination } : {}),
+      ...(draft.target ? { target: draft.target } : {}),
       ...(scaling ? { scaling } : {}),
     }
   })
@@ -156,27 +172,16 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
     controller?.abort()
   })
 
-  return {
-    name,
-    runIds,
-    dampingRatio,
-    meanKind,
-    combination,
-    target,
-    scalingOn,
-    fromS,
-    toS,
-    rule,
-    revisionOf,
-    drawing,
-    previewing,
-    previewProblem,
-    fill,
-    runOptions,
+  /** What the inputs leave to choose from, and the runs chosen. */
+  const choices = reactive({
+    runs: runOptions,
+    damping: dampingOptions,
+    combinations: combinationOptions,
     chosenRuns,
-    dampingOptions,
     pairRuns,
-    combinationOptions,
-    body,
-  }
+  })
+  /** The live drawing: null until there is something to draw. */
+  const preview = reactive({ drawing, busy: previewing, problem: previewProblem })
+
+  return { draft, preview, choices, fill, body }
 }
