@@ -6,6 +6,7 @@
 import type { ComparisonDrawing } from '../schemas/comparisons.js'
 import type { SpectrumChartInput } from '../schemas/sheets.js'
 import type { AxisScale } from './axes.js'
+import { recordHues } from './palette.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../spectra/units.js'
 
 export interface ComparisonChartView {
@@ -33,9 +34,10 @@ export function comparisonChartInput(
   const periodsS = view.periodsS
   const scaled = chartView.scaled && view.scaling !== null && view.suite.scaled !== null
   const suite = scaled && view.suite.scaled ? view.suite.scaled : view.suite.unscaled
-  const series: SpectrumChartInput['data']['series'] = view.curves.map((curve) => {
+  const series: SpectrumChartInput['data']['series'] = view.curves.map((curve, i) => {
     const factor = scaled && curve.scaleFactor !== null ? curve.scaleFactor : 1
     return {
+      colour: recordHues[i % recordHues.length],
       label: scaled ? `${curve.label} × ${Number(factor.toPrecision(3))}` : curve.label,
       periodsS,
       values: toSI(curve.psaG, factor),
@@ -65,6 +67,8 @@ export function comparisonChartInput(
       }`,
     },
   }
+  const shortfall = view.target ? shortfallBand(periodsS, suite.meanG, view.target.target90G) : null
+  if (shortfall) input.data.shortfall = shortfall
   if (suite.lowerG && suite.upperG) {
     input.data.band = {
       label: suite.label,
@@ -81,4 +85,28 @@ export function comparisonChartInput(
     }
   }
   return input
+}
+
+/**
+ * Where the mean falls below 90% of the target: the band between the two there, NaN elsewhere
+ * (the chart leaves gaps at NaN). The crossing between two periods is not interpolated, so a
+ * shortfall shows from the first period below to the last. Null when the mean never falls short.
+ */
+export function shortfallBand(
+  periodsS: number[],
+  meanG: Array<number | null>,
+  target90G: Array<number | null>,
+): NonNullable<SpectrumChartInput['data']['shortfall']> | null {
+  const lower: number[] = []
+  const upper: number[] = []
+  let any = false
+  periodsS.forEach((_, i) => {
+    const m = meanG[i]
+    const t = target90G[i]
+    const short = m != null && t != null && m < t
+    any ||= short
+    lower.push(short ? m * STANDARD_GRAVITY_M_PER_S2 : Number.NaN)
+    upper.push(short ? t * STANDARD_GRAVITY_M_PER_S2 : Number.NaN)
+  })
+  return any ? { label: 'Mean below 90% of the target', periodsS, lower, upper } : null
 }

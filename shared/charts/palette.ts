@@ -52,4 +52,10 @@ export const palette = {
  */
 export const seriesColours = [palette.ink, '#5d7f38', '#7a4c86', '#2b7f83', '#8a6a2c', '#4b5560'] as const
 
+/**
+ * The comparison chart's record curves: one teal family, dark and light in turn so that
+ * neighbours stay apart, all clear of the ink mean, the ochre target and the brick shortfall.
+ */
+export const recordHues = ['#1f6466', '#5fa3a5', '#2b7f83', '#86bcbd', '#17504f', '#44908f'] as const
+
 export type PaletteColour = (typeof palette)[keyof typeof palette]

@@ -141,7 +141,8 @@ describe('spectrumChartSvg', () => {
     expect(svg).toContain('fill-opacity="0.12"')
     expect(svg).toContain('>0.2T1–2T1</text>')
     expect(svg).toContain('EN 1998-1 spectrum defined to 4 s')
-    expect(svg.match(/stroke-dasharray="2 3"/g)).toHaveLength(2)
+    // The period range: a tinted background band with a thin line at each end.
+    expect(svg.match(/data-role="period-range"/g)).toHaveLength(1)
     expect(svg).toContain('stroke-dasharray="7 4"')
   })
 

@@ -25,7 +25,7 @@ import { type DisplayUnit, type SpectrumQuantity, checkUnit, fromSI, spectrumQua
 /**
  * What a curve is, which decides how it is drawn:
  * - `record`: one record's spectrum (colours cycle through the series colours);
- * - `mean`: the suite mean, heavy and dark;
+ * - `mean`: the suite mean, heavy, in the brand ink;
  * - `band`: an edge of a spread band, such as mean + σ, thin and dashed;
  * - `target`: a design spectrum, ochre;
  * - `target90`: 90% of the target, ochre and dashed.
@@ -42,6 +42,8 @@ export interface SpectrumSeries {
   dampingRatio?: number
   /** An SVG stroke-dasharray such as "6 3", overriding the role's. */
   dash?: string
+  /** A stroke colour overriding the role's (the comparison chart's record hues). */
+  colour?: string
 }
 
 /** A shaded region between two curves (for example mean ± σ), in SI. */
@@ -54,7 +56,10 @@ export interface SpectrumBand {
 
 export interface SpectrumChartData {
   series: SpectrumSeries[]
+  /** Drawn as a tint with thin edge lines. */
   band?: SpectrumBand
+  /** Where the mean falls below 90% of the target: shaded between the two, in brick. */
+  shortfall?: SpectrumBand
 }
 
 export interface SpectrumChartOptions {
@@ -102,7 +107,7 @@ interface RoleStyle {
 }
 
 const ROLE_STYLES: Record<Exclude<SeriesRole, 'record'>, RoleStyle> = {
-  mean: { colour: palette.text, widthPx: 2.25, dash: null },
+  mean: { colour: palette.ink, widthPx: 2.5, dash: null },
   band: { colour: palette.inkHover, widthPx: 1, dash: '3 3' },
   target: { colour: palette.ochre, widthPx: 2, dash: null },
   target90: { colour: palette.ochre, widthPx: 1.5, dash: '7 4' },
@@ -133,7 +138,8 @@ function styleFor(series: SpectrumSeries, recordIndex: number): RoleStyle {
           dash: null,
         }
       : ROLE_STYLES[series.role]
-  return series.dash === undefined ? base : { ...base, dash: series.dash }
+  const coloured = series.colour === undefined ? base : { ...base, colour: escapeXml(series.colour) }
+  return series.dash === undefined ? coloured : { ...coloured, dash: series.dash }
 }
 
 function checkLengths(label: string, periodsS: ArrayLike<number>, values: ArrayLike<number>) {
@@ -194,8 +200,13 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   const heightPx = options.heightPx ?? 440
   const id = safeId(options.id ?? 'ordinate-spectrum')
 
+  if (data.shortfall) {
+    checkLengths(data.shortfall.label, data.shortfall.periodsS, data.shortfall.lower)
+    checkLengths(data.shortfall.label, data.shortfall.periodsS, data.shortfall.upper)
+  }
   const legendEntries = [
     ...(data.band ? [{ kind: 'band' as const, label: data.band.label }] : []),
+    ...(data.shortfall ? [{ kind: 'shortfall' as const, label: data.shortfall.label }] : []),
     ...data.series.map((s, i) => ({
       kind: 'series' as const,
       index: i,
@@ -261,6 +272,16 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   parts.push(
     `<defs><clipPath id="${id}-clip"><rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}"/></clipPath></defs>`,
   )
+  // The scaling range as a tinted background band, under the grid and the curves.
+  if (options.periodRange) {
+    const lo = Math.max(options.periodRange.minS, xDomainS[0])
+    const hi = Math.min(options.periodRange.maxS, xDomainS[1])
+    if (hi > lo) {
+      parts.push(
+        `<rect x="${px(x(lo))}" y="${px(plot.top)}" width="${px(x(hi) - x(lo))}" height="${px(plot.height)}" fill="${palette.ochreSoft}" fill-opacity="0.7" data-role="period-range"/>`,
+      )
+    }
+  }
   parts.push(`<g>${xGridMarkup(x, xTicks, plot)}${yGridMarkup(y, yTicks, plot)}</g>`)
 
   parts.push(`<g clip-path="url(#${id}-clip)">`)
@@ -279,6 +300,35 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
       .digits(2)(indices)
     if (bandPath) {
       parts.push(`<path d="${bandPath}" fill="${palette.ink}" fill-opacity="0.12" stroke="none"/>`)
+      for (const edge of [bandLower, bandUpper]) {
+        const d = line<number>()
+          .x((i) => x(periods[i] ?? 0))
+          .y((i) => y(edge[i] ?? 0))
+          .digits(2)(indices)
+        if (d) {
+          parts.push(
+            `<path d="${d}" fill="none" stroke="${palette.inkHover}" stroke-width="0.75" stroke-opacity="0.8" data-role="band-edge"/>`,
+          )
+        }
+      }
+    }
+  }
+  if (data.shortfall) {
+    const periods = Array.from(data.shortfall.periodsS)
+    const lower = Array.from(data.shortfall.lower, toUnit)
+    const upper = Array.from(data.shortfall.upper, toUnit)
+    const d = area<number>()
+      .defined(
+        (i) => drawable(periods[i] ?? NaN, lower[i] ?? NaN) && drawable(periods[i] ?? NaN, upper[i] ?? NaN),
+      )
+      .x((i) => x(periods[i] ?? 0))
+      .y0((i) => y(lower[i] ?? 0))
+      .y1((i) => y(upper[i] ?? 0))
+      .digits(2)(periods.map((_, i) => i))
+    if (d) {
+      parts.push(
+        `<path d="${d}" fill="${palette.brick}" fill-opacity="0.28" stroke="none" data-role="shortfall"/>`,
+      )
     }
   }
   let recordIndex = 0
@@ -306,7 +356,7 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
       if (t < xDomainS[0] || t > xDomainS[1]) continue
       const xp = px(x(t))
       parts.push(
-        `<line x1="${xp}" y1="${px(plot.top)}" x2="${xp}" y2="${px(plot.top + plot.height)}" stroke="${palette.ochrePressed}" stroke-width="1.25" stroke-dasharray="2 3"/>`,
+        `<line x1="${xp}" y1="${px(plot.top)}" x2="${xp}" y2="${px(plot.top + plot.height)}" stroke="${palette.ochre}" stroke-width="0.75" stroke-opacity="0.8"/>`,
       )
     }
     if (label) {
@@ -342,7 +392,12 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
     const ly = legendTop + placed.line * LEGEND_ROW_PX
     let swatch: string
     if (entry.kind === 'band') {
-      swatch = `<rect x="${px(lx)}" y="${px(ly - 9)}" width="24" height="10" fill="${palette.ink}" fill-opacity="0.12"/>`
+      swatch =
+        `<rect x="${px(lx)}" y="${px(ly - 9)}" width="24" height="10" fill="${palette.ink}" fill-opacity="0.12"/>` +
+        `<line x1="${px(lx)}" y1="${px(ly - 9)}" x2="${px(lx + 24)}" y2="${px(ly - 9)}" stroke="${palette.inkHover}" stroke-width="0.75"/>` +
+        `<line x1="${px(lx)}" y1="${px(ly + 1)}" x2="${px(lx + 24)}" y2="${px(ly + 1)}" stroke="${palette.inkHover}" stroke-width="0.75"/>`
+    } else if (entry.kind === 'shortfall') {
+      swatch = `<rect x="${px(lx)}" y="${px(ly - 9)}" width="24" height="10" fill="${palette.brick}" fill-opacity="0.28"/>`
     } else {
       const style = styles[entry.index] ?? ROLE_STYLES.mean
       const dash = style.dash ? ` stroke-dasharray="${escapeXml(style.dash)}"` : ''

@@ -33,12 +33,14 @@ export const chartSeriesSchema = z.object({
   role: z.enum(['record', 'mean', 'band', 'target', 'target90']),
   dampingRatio: z.number().optional(),
   dash: z.string().optional(),
+  colour: z.string().optional(),
 })
 
 export const spectrumChartInputSchema = z.object({
   data: z.object({
     series: z.array(chartSeriesSchema),
     band: z.object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers }).optional(),
+    shortfall: z.object({ label: z.string(), periodsS: numbers, lower: numbers, upper: numbers }).optional(),
   }),
   options: z.object({
     quantity: quantitySchema,
