@@ -9,11 +9,12 @@
  * stderr with the reason and the line, and the exit status is non-zero:
  * 1 when the record or periods file cannot be used, 2 for a bad command line.
  */
-import { CAUTION } from '../shared/cautions.js'
 import { createHash } from 'node:crypto'
 import { readFileSync } from 'node:fs'
 import { basename } from 'node:path'
 import { parseArgs } from 'node:util'
+import { runOrdinatesCsv } from '../server/exports/ordinatesCsv.js'
+import { ordinateVersion } from '../server/exports/sheetParts.js'
 import { spectrumResultSchema } from '../shared/schemas/spectrum.js'
 import { MAX_DAMPING_RATIO, computeSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { SPECTRUM_METHODS, type SpectrumMethod } from '../shared/spectra/oscillatorRecurrence.js'
@@ -158,44 +159,17 @@ function readOptions(argv: string[]): Options {
   }
 }
 
+/** The run CSV of the export and the API (server/exports/ordinatesCsv.ts), for one file. */
 function csvText(result: SpectrumResult, fileName: string, sha256: string): string {
-  const { record, methodStatement: statement } = result
-  const lines = [
-    '# Ordinate elastic response spectrum',
-    `# Caution: ${CAUTION}`,
-    `# Record: ${fileName} (sha256 ${sha256})`,
-    `# Points: ${record.points}; time step: ${record.dtS} s; duration: ${record.durationS} s; source units: ${record.sourceUnits} (converted to SI)`,
-    `# PGA: ${record.pgaMPerS2} m/s2; PGV: ${record.pgvMPerS} m/s; PGD: ${record.pgdM} m; Arias intensity: ${record.ariasMPerS} m/s; D5-95: ${record.d595S} s; CAV: ${record.cavMPerS} m/s`,
-    '# Processing: none (no baseline correction or filtering applied)',
-    `# Solver: ${statement.solver}`,
-    `# Sub-steps: ${statement.subStepRule} Used: ${statement.subStepsMin} to ${statement.subStepsMax}.`,
-    `# Initial conditions: ${statement.initialConditions}`,
-    `# Free-vibration tail: ${statement.freeVibrationTail}`,
-    `# Accuracy: ${statement.accuracyTarget}`,
-    `# Engine: ${statement.engineVersion} (${statement.kernel} kernel)`,
-    ...result.warnings.map((warning) => `# Warning: ${warning}`),
-    'period_s,damping_ratio,sd_m,sv_m_per_s,sa_m_per_s2,psv_m_per_s,psa_m_per_s2,psa_g,sd_peak_time_s,sa_peak_time_s',
-  ]
-  for (const curve of result.curves) {
-    result.periodsS.forEach((periodS, p) => {
-      const psa = curve.psaMPerS2[p]!
-      lines.push(
-        [
-          periodS,
-          curve.dampingRatio,
-          curve.sdM[p],
-          curve.svMPerS[p],
-          curve.saMPerS2[p],
-          curve.psvMPerS[p],
-          psa,
-          psa / STANDARD_GRAVITY_M_PER_S2,
-          curve.sdTimeS?.[p],
-          curve.saTimeS?.[p],
-        ].join(','),
-      )
-    })
-  }
-  return lines.join('\n') + '\n'
+  return runOrdinatesCsv({
+    about: [
+      `Ordinate ${ordinateVersion()}`,
+      `Elastic response spectrum of ${fileName}, computed on the command line`,
+    ],
+    records: [{ name: fileName, sha256, sourceUnits: result.record.sourceUnits }],
+    spectrum: result,
+    gravityMPerS2: STANDARD_GRAVITY_M_PER_S2,
+  })
 }
 
 function run(argv: string[]): string {

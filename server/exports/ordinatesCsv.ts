@@ -4,9 +4,10 @@
  * (shortest round-trip form), so the file holds exactly what the API answers.
  */
 import { CAUTION } from '../../shared/cautions.js'
-import type { RunSpectrumLike } from '../../shared/charts/runSpectrumChartInput.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { Sheet } from '../../shared/schemas/sheets.js'
+import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
+import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 
 /**
  * A text cell: quoted when it holds a separator, and kept from being read as a formula by
@@ -20,16 +21,17 @@ export function csvText(text: string): string {
 const csvNumber = (value: number | null | undefined) =>
   value === null || value === undefined || !Number.isFinite(value) ? '' : String(value)
 
-function provenance(sheet: Sheet, extra: string[]): string[] {
+/** The lines a sheet's CSV opens with: product, title, reference and review, firm and project. */
+export function sheetCsvAbout(sheet: Sheet): string[] {
   return [
     `${sheet.product.name} ${sheet.product.version}`,
     `${sheet.title}`,
     `${sheet.reference} revision ${sheet.revision}; ${sheet.dateLabel} ${sheet.dateText}; ${sheet.review.stateLabel}`,
     `${sheet.firmName}; ${sheet.projectName}`,
-    ...extra,
-    CAUTION,
-  ].map((line) => `# ${line.replace(/[\r\n]+/g, ' ')}`)
+  ]
 }
+
+const comments = (lines: string[]) => lines.map((line) => `# ${line.replace(/[\r\n]+/g, ' ')}`)
 
 function table(header: string[], rows: Array<Array<number | null | undefined>>): string[] {
   return [header.map(csvText).join(','), ...rows.map((row) => row.map(csvNumber).join(','))]
@@ -45,12 +47,49 @@ const QUANTITIES = [
   ['psa_m_per_s2', 'psaMPerS2'],
 ] as const
 
-/** SD, SV, SA, PSV and PSA in SI for every curve of a run, and PSA in g. */
-export function runOrdinatesCsv(sheet: Sheet, spectrum: RunSpectrumLike, gravityMPerS2: number): string {
+/** The record of a run, or one component of a pair run, as its CSV names it. */
+export interface CsvRecord {
+  name: string
+  sha256: string
+  /** The units the file was read in (every ordinate is converted to SI). */
+  sourceUnits: string
+}
+
+export interface RunCsvInput {
+  /** The opening lines: what the file is and whose (sheetCsvAbout, or the command line's own). */
+  about: string[]
+  records: CsvRecord[]
+  spectrum: SpectrumResult
+  gravityMPerS2: number
+}
+
+/** What produced the numbers, from the spectrum's method statement and warnings. */
+function methodLines({ methodStatement: m, warnings }: SpectrumResult): string[] {
+  const subSteps = m.subStepsMin === m.subStepsMax ? `${m.subStepsMin}` : `${m.subStepsMin}–${m.subStepsMax}`
+  return [
+    `Solver: ${m.solver}`,
+    `Time step of the record: Δt = ${m.recordDtS} s; sub-steps per oscillator: ${subSteps}`,
+    `Sub-step rule: ${m.subStepRule}`,
+    `Initial conditions: ${m.initialConditions} Free-vibration tail: ${m.freeVibrationTail}`,
+    ...(m.combinationRule ? [`Combination: ${m.combinationRule}`] : []),
+    `Accuracy: ${m.accuracyTarget}`,
+    `Engine: ${m.engineVersion} (${m.kernel} kernel)`,
+    ...warnings.map((w) => `Warning: ${w}`),
+  ]
+}
+
+/**
+ * The one CSV of a run: `#` lines saying what produced the numbers (the record or both
+ * components with their SHA-256 and source units, the method, the warnings, the caution), a
+ * header row, then one row per period (ascending) with SD, SV, SA, PSV and PSA in SI and PSA in g
+ * for every curve. The export route, GET /api/runs/:id/spectrum.csv and the command line's
+ * `--format csv` all write it.
+ */
+export function runOrdinatesCsv({ about, records, spectrum, gravityMPerS2 }: RunCsvInput): string {
   const periods = Array.from(spectrum.periodsS)
   const order = periods.map((_, i) => i).sort((a, b) => (periods[a] as number) - (periods[b] as number))
-  const suffix = (c: RunSpectrumLike['curves'][number]) =>
-    `_zeta${c.dampingRatio}${c.combination ? `_${c.combination}` : ''}`
+  const suffix = (c: SpectrumResult['curves'][number]) =>
+    `_zeta${c.dampingRatio}${c.combination ? `_${COMBINATION_LABELS[c.combination]}` : ''}`
   const header = ['period_s']
   for (const curve of spectrum.curves) {
     for (const [name] of QUANTITIES) header.push(`${name}${suffix(curve)}`)
@@ -64,11 +103,18 @@ export function runOrdinatesCsv(sheet: Sheet, spectrum: RunSpectrumLike, gravity
     }
     return row
   })
-  const sha = sheet.records.map((r) => r.fields.find((f) => f.label.startsWith('SHA-256'))?.value ?? '')
+  const units =
+    records.length === 1
+      ? `Source units: ${records[0]?.sourceUnits}, converted to m/s2`
+      : `Source units: ${records.map((r) => `${r.name} ${r.sourceUnits}`).join('; ')}; each converted to m/s2`
   return finish([
-    ...provenance(sheet, [
-      `Record: ${sheet.records.map((r) => r.name).join(' + ')}; SHA-256 ${sha.join(' + ')}`,
+    ...comments([
+      ...about,
+      `Record: ${records.map((r) => r.name).join(' + ')}; SHA-256 ${records.map((r) => r.sha256).join(' + ')}`,
+      units,
+      ...methodLines(spectrum),
       `g = ${gravityMPerS2} m/s2; zeta is the damping ratio; SI units unless the column says g`,
+      `Caution: ${CAUTION}`,
     ]),
     ...table(header, rows),
   ])
@@ -99,8 +145,10 @@ export function comparisonOrdinatesCsv(sheet: Sheet, view: ComparisonView): stri
   }
   const rows = view.periodsS.map((t, i) => [t, ...columns.map((c) => c.values[i])])
   return finish([
-    ...provenance(sheet, [
+    ...comments([
+      ...sheetCsvAbout(sheet),
       `${view.labels.damping}; ${view.labels.mean}${view.scaling ? `; ${view.scaling.ruleLabel} over ${view.scaling.fromS}-${view.scaling.toS} s` : ''}`,
+      CAUTION,
     ]),
     ...table(['period_s', ...columns.map((c) => c.name)], rows),
   ])

@@ -1,16 +1,16 @@
 import { Router, type Response } from 'express'
 import { idParamsSchema } from '../../shared/schemas/common.js'
 import {
-  createPairRunBodySchema,
-  createRunBodySchema,
   isFinished,
   runListQuerySchema,
+  runRequestSchema,
   type RunStatusEvent,
 } from '../../shared/schemas/runs.js'
+import { plotExportQuerySchema } from '../../shared/schemas/sheets.js'
 import type { AppDeps } from '../deps.js'
-import { memberOf, requireMember, requireRole } from '../middleware/auth.js'
-import type { RunEvent } from '../runs/runQueue.js'
-import { runSpectrumCsv } from '../services/runSpectrumCsv.js'
+import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
+import type { RunEvent } from '../runs/runEvents.js'
+import { exportSheet } from '../services/exports.js'
 import { createRun, getRun, getRunSpectrum, listRuns } from '../services/runs.js'
 
 /** How often an open event stream gets a comment line, so proxies keep it open. */
@@ -29,11 +29,8 @@ export function runsRouter(deps: AppDeps) {
     res.json({ items: listRuns(deps.db, memberOf(req).firmId, query) })
   })
 
-  // Role table (accounts issue): engineers start runs, checkers for independent re-runs; an admin only when also one of these.
-  router.post('/runs', requireRole('engineer', 'checker'), (req, res) => {
-    const isPair = typeof req.body === 'object' && req.body !== null && 'pairId' in req.body
-    const body = isPair ? createPairRunBodySchema.parse(req.body) : createRunBodySchema.parse(req.body)
-    const run = createRun(deps.db, memberOf(req), body)
+  router.post('/runs', requireAction('runs.start'), (req, res) => {
+    const run = createRun(deps.db, memberOf(req), runRequestSchema.parse(req.body))
     deps.runQueue?.kick()
     res.status(202).json(run)
   })
@@ -49,12 +46,14 @@ export function runsRouter(deps: AppDeps) {
     res.json({ ...result, settings: run.settings })
   })
 
-  router.get('/runs/:id/spectrum.csv', requireMember, (req, res) => {
+  /** The run's CSV: the same file as its CSV export (server/exports/ordinatesCsv.ts). */
+  router.get('/runs/:id/spectrum.csv', requireMember, async (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
-    const csv = runSpectrumCsv(deps.db, memberOf(req).firmId, id)
-    res.type('text/csv; charset=utf-8')
-    res.attachment(csv.fileName)
-    res.send(csv.text)
+    const file = await exportSheet(deps.db, memberOf(req), 'run', id, 'csv', plotExportQuerySchema.parse({}))
+    res.type(file.contentType)
+    res.attachment(file.fileName)
+    res.set('cache-control', 'private, no-store')
+    res.send(file.body)
   })
 
   /** Server-sent events: `progress` and `status` until the run ends, then the stream closes. */

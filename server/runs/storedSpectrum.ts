@@ -5,7 +5,7 @@ import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { isSourceUnits } from '../../shared/spectra/units.js'
 import type { Db } from '../db/client.js'
 import { records } from '../db/schema.js'
-import type { ClaimedRun } from '../services/runs.js'
+import type { ClaimedRun } from './runStore.js'
 import { recordSummaryColumns } from './recordSummaryColumns.js'
 import { storedPairSpectrum } from './storedPairSpectrum.js'
 

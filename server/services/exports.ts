@@ -3,7 +3,7 @@
  * CSV files made from it. Firm-scoped (another firm's id answers 404) and recorded in the
  * audit log, with a digest of the file handed out.
  */
-import { parseStored } from '../db/parseStored.js'
+import { decodeRunSettings, decodeSpectrumResult, parseStored } from '../db/parseStored.js'
 import { createHash } from 'node:crypto'
 import { aliasedTable, and, eq } from 'drizzle-orm'
 import { z } from 'zod'
@@ -16,8 +16,7 @@ import { asTripartite, chartSvg } from '../../shared/charts/chartSvg.js'
 import { TRIPARTITE_UNITS } from '../../shared/charts/tripartiteChart.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
-import type { RunSettings } from '../../shared/schemas/runs.js'
-import { type SpectrumResult, spectrumResultSchema } from '../../shared/schemas/spectrum.js'
+import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
 import type { PlotExportQuery, Sheet, SpectrumChartInput } from '../../shared/schemas/sheets.js'
 import type { Db } from '../db/client.js'
 import {
@@ -33,7 +32,7 @@ import {
 } from '../db/schema.js'
 import { renderChartPng } from '../exports/chartPng.js'
 import { buildComparisonSheetFromFacts } from '../exports/comparisonSheet.js'
-import { comparisonOrdinatesCsv, runOrdinatesCsv } from '../exports/ordinatesCsv.js'
+import { comparisonOrdinatesCsv, runOrdinatesCsv, sheetCsvAbout } from '../exports/ordinatesCsv.js'
 import { type SheetRecordFacts, buildRunSheetFromFacts } from '../exports/runSheet.js'
 import { renderSheetPdf } from '../exports/sheetPdf.js'
 import { type ReviewFacts, ordinateVersion } from '../exports/sheetParts.js'
@@ -98,7 +97,7 @@ function loadRunSheet(
   db: Db,
   firmId: string,
   runId: string,
-): { sheet: Sheet; spectrum: SpectrumResult; subjectName: string } {
+): { sheet: Sheet; spectrum: SpectrumResult; subjectName: string; records: SheetRecordFacts[] } {
   const author = aliasedTable(users, 'author')
   const row = db
     .select({
@@ -128,7 +127,7 @@ function loadRunSheet(
     throw conflict('Only a run that has succeeded has a spectrum to export.', 'run_not_finished')
   }
   const { subjectName, records: recordList } = runRecords(db, firmId, row)
-  const spectrum = parseStored(spectrumResultSchema, row.result, 'spectrum')
+  const spectrum = decodeSpectrumResult(row.result)
   const sheet = buildRunSheetFromFacts({
     productVersion: ordinateVersion(),
     firmName: row.firmName,
@@ -136,7 +135,7 @@ function loadRunSheet(
     run: {
       id: row.id,
       revision: row.revision,
-      settings: row.settings as RunSettings,
+      settings: decodeRunSettings(row.settings),
       engineVersion: row.engineVersion,
       createdByName: row.createdByName,
       createdAt: row.createdAt,
@@ -149,7 +148,7 @@ function loadRunSheet(
     spectrumWarnings: spectrum.warnings,
     review: reviewFacts(db, 'run', row.id),
   })
-  return { sheet, spectrum, subjectName }
+  return { sheet, spectrum, subjectName, records: recordList }
 }
 
 /** The record of a run, or the two records of a pair run, and the name the sheet gives it. */
@@ -286,10 +285,16 @@ function loadExport(
 ): { sheet: Sheet; csv: () => string; chart: () => SpectrumChartInput } {
   if (subject === 'run') {
     if (query.scaled !== undefined) throw badRequest('scaled applies to comparisons only.', 'invalid_input')
-    const { sheet, spectrum, subjectName } = loadRunSheet(db, firmId, id)
+    const { sheet, spectrum, subjectName, records: recordList } = loadRunSheet(db, firmId, id)
     return {
       sheet,
-      csv: () => runOrdinatesCsv(sheet, spectrum, STANDARD_GRAVITY_M_PER_S2),
+      csv: () =>
+        runOrdinatesCsv({
+          about: sheetCsvAbout(sheet),
+          records: recordList,
+          spectrum,
+          gravityMPerS2: STANDARD_GRAVITY_M_PER_S2,
+        }),
       chart: () =>
         runSpectrumChartInput(spectrum, subjectName, {
           quantity: query.quantity ?? DEFAULT_SPECTRUM_VIEW.quantity,

@@ -1,4 +1,6 @@
 import { z } from 'zod'
+import { type Combination, combinationSchema } from '../vocabulary/combinations.js'
+import { runStatusSchema } from '../vocabulary/runStatuses.js'
 import { idSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 
@@ -66,37 +68,92 @@ export const runSettingsInputShape = {
 /** A re-run of an earlier run of the same record or pair (a new revision, e.g. after it was checked). */
 const revisionOfShape = { revisionOf: idSchema.optional() }
 
-/** POST /api/runs */
+const onePeriodChoice = {
+  check: (b: { periodsS?: number[]; periodGrid?: PeriodGrid }) => !(b.periodsS && b.periodGrid),
+  issue: { message: 'Give either periodsS or periodGrid, not both.', path: ['periodGrid'] },
+}
+
+/** POST /api/runs of one record, as a form fills it. */
 export const createRunBodySchema = z
   .strictObject({ recordId: idSchema, ...runSettingsInputShape, ...revisionOfShape })
-  .refine((b) => !(b.periodsS && b.periodGrid), {
-    message: 'Give either periodsS or periodGrid, not both.',
-    path: ['periodGrid'],
-  })
+  .refine(onePeriodChoice.check, onePeriodChoice.issue)
 export type CreateRunBody = z.infer<typeof createRunBodySchema>
 
 /** How a pair run combines its two horizontal components (Boore 2010 for RotD50/RotD100). */
-export const runCombinationSchema = z.enum(['geomean', 'rotd50', 'rotd100'], {
-  error: 'Each combination must be geomean, rotd50 or rotd100.',
-})
-export type RunCombination = z.infer<typeof runCombinationSchema>
+export const runCombinationSchema = combinationSchema
+export type RunCombination = Combination
 
-/** POST /api/runs for a record pair: the same settings, with the combinations to compute. */
+const combinationsSchema = z
+  .array(runCombinationSchema)
+  .min(1, 'Give at least one combination.')
+  .refine((values) => new Set(values).size === values.length, 'Give each combination once.')
+
+/** POST /api/runs of a record pair, as a form fills it: the same settings, with the combinations to compute. */
 export const createPairRunBodySchema = z
   .strictObject({
     pairId: idSchema,
-    combinations: z
-      .array(runCombinationSchema)
-      .min(1, 'Give at least one combination.')
-      .refine((values) => new Set(values).size === values.length, 'Give each combination once.'),
+    combinations: combinationsSchema,
     ...runSettingsInputShape,
     ...revisionOfShape,
   })
-  .refine((b) => !(b.periodsS && b.periodGrid), {
-    message: 'Give either periodsS or periodGrid, not both.',
-    path: ['periodGrid'],
-  })
+  .refine(onePeriodChoice.check, onePeriodChoice.issue)
 export type CreatePairRunBody = z.infer<typeof createPairRunBodySchema>
+
+/** What a run computes: one record, or a record pair and the combinations of its two components. */
+export const runSubjectSchema = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('record'), recordId: idSchema }),
+  z.object({ kind: z.literal('pair'), pairId: idSchema, combinations: combinationsSchema }),
+])
+export type RunSubject = z.infer<typeof runSubjectSchema>
+
+/**
+ * The one body of POST /api/runs, as the server reads it. On the wire the subject is `recordId`,
+ * or `pairId` with `combinations`, beside the same settings; parsed, it is one discriminated
+ * `subject`, so nothing after this edge asks which fields a body has.
+ */
+export const runRequestSchema = z
+  .strictObject({
+    recordId: idSchema.optional(),
+    pairId: idSchema.optional(),
+    combinations: combinationsSchema.optional(),
+    ...runSettingsInputShape,
+    ...revisionOfShape,
+  })
+  .refine(onePeriodChoice.check, onePeriodChoice.issue)
+  .superRefine((b, context) => {
+    if (b.recordId && b.pairId)
+      context.addIssue({
+        code: 'custom',
+        path: ['pairId'],
+        message: 'Give a recordId or a pairId, not both.',
+      })
+    else if (!b.recordId && !b.pairId)
+      context.addIssue({
+        code: 'custom',
+        path: ['recordId'],
+        message: 'Give the recordId of the record to run (or a pairId for a record pair).',
+      })
+    else if (b.pairId && !b.combinations)
+      context.addIssue({
+        code: 'custom',
+        path: ['combinations'],
+        message: 'Give the combinations to compute.',
+      })
+    else if (b.recordId && b.combinations)
+      context.addIssue({
+        code: 'custom',
+        path: ['combinations'],
+        message: 'Combinations apply to a record pair only.',
+      })
+  })
+  .transform(({ recordId, pairId, combinations, ...settings }): RunRequest => ({
+    ...settings,
+    subject: pairId
+      ? { kind: 'pair', pairId, combinations: combinations ?? [] }
+      : { kind: 'record', recordId: recordId ?? '' },
+  }))
+/** A run request: its subject, the settings as given (resolved by the server) and the run it revises. */
+export type RunRequest = Omit<CreateRunBody, 'recordId'> & { subject: RunSubject }
 
 /** Where a run's periods came from. */
 export const periodChoiceSchema = z.enum(['default', 'list', 'grid'])
@@ -115,8 +172,7 @@ export const runSettingsSchema = z.object({
 })
 export type RunSettings = z.infer<typeof runSettingsSchema>
 
-export const runStatusSchema = z.enum(['queued', 'running', 'succeeded', 'failed'])
-export type RunStatus = z.infer<typeof runStatusSchema>
+export { runStatusSchema, type RunStatus, isFinished } from '../vocabulary/runStatuses.js'
 
 /** A run as the API answers it. */
 export const runSchema = z.object({
@@ -168,5 +224,3 @@ export const runStatusEventSchema = z.object({
 })
 export type RunProgressEvent = z.infer<typeof runProgressEventSchema>
 export type RunStatusEvent = z.infer<typeof runStatusEventSchema>
-
-export const isFinished = (status: RunStatus) => status === 'succeeded' || status === 'failed'

@@ -188,7 +188,13 @@ describe('POST /api/runs', () => {
     smallRun = (await engineer.get(`/api/runs/${res.body.id}`)).body
     expect(smallRun).toMatchObject({ status: 'succeeded', progress: 1, error: null, creditsCharged: 1 })
     expect(smallRun.engineVersion).toMatch(/ordinate-spectra/)
-    expect(Object.keys(smallRun.timings as object).sort()).toEqual(['computeMs', 'queuedMs', 'runMs'])
+    expect(Object.keys(smallRun.timings as object).sort()).toEqual([
+      'computeMs',
+      'parts',
+      'queuedMs',
+      'runMs',
+    ])
+    expect((smallRun.timings as { parts: number }).parts).toBe(1)
     // Spent, not returned: one reservation and nothing else.
     expect(ledgerRows(ctx.db, res.body.id)).toEqual([{ kind: 'run_reserved', delta: -1 }])
     expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
@@ -517,6 +523,7 @@ describe('GET /api/runs/:id/spectrum', () => {
     expect(progress).toEqual([...progress].sort((a, b) => a - b))
     const run = (await engineer.get(`/api/runs/${res.body.id}`)).body
     expect(run.settings.periodsS).toEqual(settings.periodsS)
+    expect(run.timings.parts).toBe(2)
     const api = (await engineer.get(`/api/runs/${res.body.id}/spectrum`)).body
 
     const local = commandLineSpectrum(parsed, settings)
@@ -553,48 +560,59 @@ describe('GET /api/runs/:id/spectrum', () => {
 })
 
 describe('GET /api/runs/:id/spectrum.csv', () => {
-  it('labels the data (product, record and SHA-256, method, caution) and carries the same numbers with units in the columns', async () => {
+  it('is the run’s CSV export: labelled data (product, record and SHA-256, source units, method, caution), one row per period', async () => {
     const res = await admin.get(`/api/runs/${smallRun.id}/spectrum.csv`)
     expect(res.status).toBe(200)
-    expect(res.headers['content-type']).toMatch(/^text\/csv/)
-    expect(res.headers['content-disposition']).toMatch(
-      /^attachment; filename="?[\w-]+-spectrum-[0-9a-f]{8}\.csv"?$/,
-    )
+    expect(res.headers['content-type']).toBe('text/csv; charset=utf-8')
+    expect(res.headers['content-disposition']).toMatch(/^attachment; filename="?[\w.-]+-rev1-[\w-]+\.csv"?$/)
+    const exported = await admin.get(`/api/runs/${smallRun.id}/export.csv`)
+    expect(res.text).toBe(exported.text)
     const lines = res.text.trimEnd().split('\r\n')
     const header = lines.filter((l) => l.startsWith('#')).join('\n')
     expect(header).toMatch(/^# Ordinate \d+\.\d+\.\d+/)
     expect(header).toContain('Synthetic test motion')
     expect(header).toContain(`SHA-256 ${record.sha256}`)
+    expect(header).toContain('# Source units: m/s2, converted to m/s2')
     expect(header).toMatch(/Solver: Newmark-β, average acceleration/)
     expect(header).toMatch(/Δt = 0\.01 s; sub-steps per oscillator: \d+/)
-    expect(header).toMatch(/Damping ratios: 0\.05 \(5%\), 0\.1 \(10%\)/)
     expect(header).toMatch(
       /Caution: Ordinate is a calculation aid; the licensed engineer of record is responsible/,
     )
     const rows = lines.filter((l) => !l.startsWith('#'))
-    expect(rows[0]).toBe('period_s,damping_ratio,sd_m,sv_m_per_s,sa_m_per_s2,psv_m_per_s,psa_m_per_s2,psa_g')
-    expect(rows).toHaveLength(1 + SMALL.periodsS.length * SMALL.dampingRatios.length)
+    const columns = rows[0]!.split(',')
+    expect(columns.slice(0, 7)).toEqual([
+      'period_s',
+      'sd_m_zeta0.05',
+      'sv_m_per_s_zeta0.05',
+      'sa_m_per_s2_zeta0.05',
+      'psv_m_per_s_zeta0.05',
+      'psa_m_per_s2_zeta0.05',
+      'psa_g_zeta0.05',
+    ])
+    expect(columns).toContain('psa_g_zeta0.1')
+    expect(rows).toHaveLength(1 + SMALL.periodsS.length)
     const spectrum = (await admin.get(`/api/runs/${smallRun.id}/spectrum`)).body
-    const [period, damping, sd, , , , psa, psaG] = rows[1 + SMALL.periodsS.length]!.split(',').map(Number)
-    expect(period).toBe(SMALL.periodsS[0])
-    expect(damping).toBe(0.1)
-    expect(sd).toBe(spectrum.curves[1].sdM[0])
-    expect(psa).toBe(spectrum.curves[1].psaMPerS2[0])
-    expect(psaG).toBeCloseTo(psa! / 9.80665, 15) // g = 9.80665 m/s² (3rd CGPM, 1901)
+    const first = rows[1]!.split(',').map(Number)
+    expect(first[0]).toBe(SMALL.periodsS[0])
+    expect(first[columns.indexOf('sd_m_zeta0.1')]).toBe(spectrum.curves[1].sdM[0])
+    const psa = spectrum.curves[1].psaMPerS2[0]
+    expect(first[columns.indexOf('psa_m_per_s2_zeta0.1')]).toBe(psa)
+    expect(first[columns.indexOf('psa_g_zeta0.1')]).toBeCloseTo(psa / 9.80665, 15) // g = 9.80665 m/s² (3rd CGPM, 1901)
   })
 
-  it('has no combination column for a single record', async () => {
+  it('names no combination for a single record', async () => {
     const res = await engineer.get(`/api/runs/${smallRun.id}/spectrum.csv`)
-    expect(res.text).not.toMatch(/combination/)
+    expect(res.text).not.toMatch(/RotD|Geometric mean|rotd|geomean/)
   })
 
-  it('adds a combination column for a record pair, one block of rows per damping and combination', async () => {
+  it('has one column per damping, combination and quantity for a record pair, labelled as the legend is, with each component’s source units', async () => {
     const owner = { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! }
     const h1 = insertRecord(ctx.db, owner, { name: 'Pair H1 (synthetic)', points: 400 })
     const h2 = insertRecord(ctx.db, owner, {
       name: 'Pair H2 (synthetic)',
       samples: syntheticMotion(400, 0.01).reverse(),
     })
+    ctx.db.update(records).set({ sourceUnits: 'cm/s2' }).where(eq(records.id, h2.id)).run()
     const pair = await engineer
       .post('/api/record-pairs')
       .send({ recordIds: [h1.id, h2.id], name: 'Synthetic CSV pair' })
@@ -603,24 +621,22 @@ describe('GET /api/runs/:id/spectrum.csv', () => {
       pairId: pair.body.id,
       combinations: ['geomean', 'rotd100'],
       dampingRatios: [0.05],
-      periodsS: [0.2, 1],
+      periodsS: [1, 0.2],
     })
     expect(run.status).toBe('succeeded')
     const csv = await engineer.get(`/api/runs/${run.id}/spectrum.csv`)
     const lines = csv.text.trimEnd().split('\r\n')
-    expect(lines.filter((l) => l.startsWith('#')).join('\n')).toMatch(
-      /rotd50 and rotd100 = median and maximum/,
+    expect(lines).toContain(
+      '# Source units: Pair H1 (synthetic) m/s2; Pair H2 (synthetic) cm/s2; each converted to m/s2',
     )
     const rows = lines.filter((l) => !l.startsWith('#'))
-    expect(rows[0]).toBe(
-      'period_s,damping_ratio,combination,sd_m,sv_m_per_s,sa_m_per_s2,psv_m_per_s,psa_m_per_s2,psa_g',
-    )
-    expect(rows.slice(1).map((r) => r.split(',').slice(0, 3).join(','))).toEqual([
-      '0.2,0.05,geomean',
-      '1,0.05,geomean',
-      '0.2,0.05,rotd100',
-      '1,0.05,rotd100',
+    const columns = rows[0]!.split(',')
+    expect(columns.filter((c) => c.startsWith('psa_g'))).toEqual([
+      'psa_g_zeta0.05_Geometric mean',
+      'psa_g_zeta0.05_RotD100',
     ])
+    expect(columns).toHaveLength(1 + 2 * 6)
+    expect(rows.slice(1).map((r) => Number(r.split(',')[0]))).toEqual([0.2, 1])
   })
 
   it("answers 404 for another firm's run and 401 when signed out", async () => {
