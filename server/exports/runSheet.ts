@@ -11,10 +11,11 @@ import {
 } from '../../shared/charts/runSpectrumChartInput.js'
 import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 import { dampingLabel } from '../../shared/charts/spectrumChart.js'
-import { formatSignificant } from '../../shared/charts/units.js'
+import { FILE_UNITS, unitsStatement } from '../../shared/charts/unitSystems.js'
+import { type DisplayUnit, formatSignificant, fromSI } from '../../shared/charts/units.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import type { MethodStatement } from '../../shared/spectra/computeSpectrum.js'
-import type { RecordParameters } from '../../shared/spectra/recordParameters.js'
+import { CAV_LABEL, type RecordParameters } from '../../shared/spectra/recordParameters.js'
 import { SOURCE_UNIT_LABELS, STANDARD_GRAVITY_M_PER_S2, isSourceUnits } from '../../shared/spectra/units.js'
 import type { Sheet, SheetField, SheetRecord, SheetTable } from '../../shared/schemas/sheets.js'
 import { STANDARD_PERIODS_S, ordinateAtPeriod, peakOrdinate } from '../../shared/sheets/ordinateAtPeriod.js'
@@ -26,6 +27,7 @@ import {
   reviewAndDate,
   sheetReference,
 } from './sheetParts.js'
+import type { UnitSystem } from '../../shared/schemas/me.js'
 
 /** A record as the sheet describes it: its parameters and the columns of the records table it needs. */
 export interface SheetRecordFacts extends RecordParameters {
@@ -67,6 +69,8 @@ export interface RunSheetFacts {
   spectrumWarnings: string[]
   review: ReviewFacts | null
   view?: SpectrumView
+  /** The units the sheet states its values in (SI unless the member chose US customary). */
+  units?: UnitSystem
 }
 
 const g = (valueMPerS2: number) => valueMPerS2 / STANDARD_GRAVITY_M_PER_S2
@@ -92,15 +96,27 @@ function processingStatement(units: string): string {
     : `Converted from ${units} to m/s² (g = ${STANDARD_GRAVITY_M_PER_S2} m/s²); no baseline correction or filtering by Ordinate.`
 }
 
+/** A record parameter in a display unit, with the unit. */
+const inUnits = (valueSI: number, unit: DisplayUnit) => `${num(fromSI(valueSI, unit))} ${unit}`
+
 /**
  * A record as the sheet lists it. `compact` folds the parameters into a few lines, for
  * sheets that list a whole suite.
  */
-export function recordSection(record: SheetRecordFacts, compact = false): SheetRecord {
+export function recordSection(
+  record: SheetRecordFacts,
+  compact = false,
+  system: UnitSystem = 'si',
+): SheetRecord {
   const units = isSourceUnits(record.sourceUnits)
     ? SOURCE_UNIT_LABELS[record.sourceUnits]
     : record.sourceUnits
-  const pga = `${num(g(record.pgaMPerS2))} g (${num(record.pgaMPerS2)} m/s²)`
+  const pga =
+    system === 'us'
+      ? `${num(g(record.pgaMPerS2))} g`
+      : `${num(g(record.pgaMPerS2))} g (${num(record.pgaMPerS2)} m/s²)`
+  const pgv = inUnits(record.pgvMPerS, FILE_UNITS[system].velocity)
+  const pgd = inUnits(record.pgdM, FILE_UNITS[system].displacement)
   const origin = record.synthetic
     ? [{ label: 'Origin', value: 'Synthetic record (demonstration data, not recorded motion)' }]
     : []
@@ -119,7 +135,7 @@ export function recordSection(record: SheetRecordFacts, compact = false): SheetR
           value: `${record.points} points at Δt = ${num(record.dtS)} s, ${num(record.durationS)} s`,
         },
         { label: 'Units and processing', value: `${record.format}, ${units}. ${processingStatement(units)}` },
-        { label: 'PGA, PGV, PGD', value: `${pga}; ${num(record.pgvMPerS)} m/s; ${num(record.pgdM)} m` },
+        { label: 'PGA, PGV, PGD', value: `${pga}; ${pgv}; ${pgd}` },
         ...origin,
       ],
     }
@@ -133,11 +149,11 @@ export function recordSection(record: SheetRecordFacts, compact = false): SheetR
       { label: 'Time step Δt', value: `${num(record.dtS)} s` },
       { label: 'Duration', value: `${num(record.durationS)} s` },
       { label: 'PGA', value: pga },
-      { label: 'PGV', value: `${num(record.pgvMPerS)} m/s` },
-      { label: 'PGD', value: `${num(record.pgdM)} m` },
+      { label: 'PGV', value: pgv },
+      { label: 'PGD', value: pgd },
       { label: 'Arias intensity Ia', value: `${num(record.ariasMPerS)} m/s` },
       { label: 'Significant duration D5-95', value: `${num(record.d595S)} s` },
-      { label: 'CAV', value: `${num(record.cavMPerS)} m/s` },
+      { label: CAV_LABEL, value: `${num(record.cavMPerS)} m/s` },
       { label: 'Processing', value: processingStatement(units) },
       ...origin,
     ],
@@ -223,6 +239,7 @@ function methodFields(facts: RunSheetFacts): SheetField[] {
     { label: 'Damping ratios', value: settings.dampingRatios.map(dampingLabel).join(', ') },
     { label: 'Period grid', value: periodGridStatement(settings) },
     { label: 'Ordinates', value: 'SD = max|u|, SV = max|u′|, SA = max|ü + a_g|, PSV = ωSD, PSA = ω²SD' },
+    { label: 'Units', value: unitsStatement(facts.units ?? 'si') },
     { label: 'Accuracy', value: distinct(methods, (m) => m.accuracyTarget) },
     {
       label: 'Engine version',
@@ -247,7 +264,7 @@ export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
     projectName: facts.projectName,
     revision: run.revision,
     ...dates,
-    records: facts.records.map((r) => recordSection(r)),
+    records: facts.records.map((r) => recordSection(r, false, facts.units)),
     method: methodFields(facts),
     chart: runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
     tables: [runOrdinateTable(facts.spectrum, single ? single.pgaMPerS2 : null)],

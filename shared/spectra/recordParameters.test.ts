@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { integrateRecord, recordParameters, recordWarnings } from './recordParameters.js'
+import { integrateRecord, recordParameters, recordWarnings, standardizedCav } from './recordParameters.js'
 
 const G = 9.80665 // standard gravity, m/s² (3rd CGPM, 1901)
 
@@ -12,6 +12,43 @@ describe('integrateRecord', () => {
     const { velMPerS, dispM } = integrateRecord(new Float64Array(101).fill(2), 0.01)
     expect(velMPerS[100]).toBeCloseTo(2, 12)
     expect(dispM[100]).toBeCloseTo(1, 12)
+  })
+
+  it('integrates a ramp a = t exactly at the samples: v = t²/2, d = t³/6 (closed form)', () => {
+    const { velMPerS, dispM } = integrateRecord(
+      Float64Array.from({ length: 11 }, (_, i) => i * 0.1),
+      0.1,
+    )
+    expect(velMPerS[10]).toBeCloseTo(0.5, 12)
+    expect(dispM[10]).toBeCloseTo(1 / 6, 12)
+  })
+})
+
+describe('PGV and PGD between samples (the record linear between samples, closed form)', () => {
+  it('PGV is the peak of the quadratic velocity: a = 1 → −1 over 1 s gives v = τ − τ², peak 1/4', () => {
+    // At the samples v is 0 and 0; the interpolant peaks at τ = 1/2.
+    expect(recordParameters(Float64Array.from([1, -1]), 1).pgvMPerS).toBeCloseTo(0.25, 12)
+  })
+
+  it('PGD is the peak of the cubic displacement: a = 2 → −4 over 1 s gives d = τ² − τ³, peak 4/27', () => {
+    // v = 2τ − 3τ² vanishes at τ = 2/3; at the samples d is 0 and 0.
+    expect(recordParameters(Float64Array.from([2, -4]), 1).pgdM).toBeCloseTo(4 / 27, 12)
+  })
+})
+
+describe('standardizedCav (EPRI 1991, from memory: 1 s windows whose peak reaches 0.025 g)', () => {
+  const dtS = 0.01
+  it('counts every window of a motion above the threshold, and equals the plain ∫|a| dt then', () => {
+    const strong = new Float64Array(251).fill(0.03 * G)
+    expect(standardizedCav(strong, dtS)).toBeCloseTo(recordParameters(strong, dtS).cavMPerS, 9)
+  })
+
+  it('counts no window of a motion below 0.025 g, and only the windows that reach it', () => {
+    expect(standardizedCav(new Float64Array(251).fill(0.02 * G), dtS)).toBe(0)
+    // 0.05 g up to 0.99 s, then 0.01 g: only the first window counts, its ∫|a| dt being
+    // 0.99 s × 0.05 g plus the last interval's mean 0.03 g × 0.01 s = 0.0498 g·s.
+    const mixed = Float64Array.from({ length: 301 }, (_, i) => (i < 100 ? 0.05 : 0.01) * G)
+    expect(standardizedCav(mixed, dtS)).toBeCloseTo(0.0498 * G, 9)
   })
 })
 
