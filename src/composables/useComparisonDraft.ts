@@ -1,4 +1,5 @@
 import { type Ref, computed, onScopeDispose, reactive, ref, watch } from 'vue'
+import { RUN_METHOD_NAMES } from '../../shared/charts/runSpectrumChartInput'
 import { dampingLabel } from '../../shared/charts/spectrumChart'
 import type { ScalingRule } from '../../shared/spectra/suite'
 import { COMBINATIONS, COMBINATION_LABELS } from '../../shared/vocabulary/combinations'
@@ -89,7 +90,18 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
       .filter((r) => r.status === 'succeeded')
       .map((r) => ({
         value: r.id,
-        label: `${r.subjectName}${r.pairId ? ' (pair)' : ''} · ${r.settings.dampingRatios.map(dampingLabel).join(', ')} · ${r.createdBy.name}, ${formatDateTime(r.createdAt)}${r.revision > 1 ? ` · rev ${r.revision}` : ''}`,
+        // In full, so two runs of one record can be told apart: record, settings and time.
+        label: [
+          `${r.subjectName}${r.pairId ? ' (pair)' : ''}`,
+          r.settings.dampingRatios.map(dampingLabel).join(', '),
+          RUN_METHOD_NAMES[r.settings.method],
+          `${r.settings.periodsS.length} periods${r.settings.periodGrid ? ` ${r.settings.periodGrid.minS}–${r.settings.periodGrid.maxS} s` : ''}`,
+          ...(r.settings.combinations
+            ? [r.settings.combinations.map((c) => COMBINATION_LABELS[c]).join(', ')]
+            : []),
+          `${r.createdBy.name}, ${formatDateTime(r.createdAt)}`,
+          ...(r.revision > 1 ? [`rev ${r.revision}`] : []),
+        ].join(' · '),
       })),
   )
   const chosenRuns = computed(() =>

@@ -25,6 +25,10 @@ describe('the credits page', () => {
     await page.locator('[data-test="pack-choice"]', { hasText: small.name }).click()
     await page.locator('[data-test="test-card"]', { hasText: 'test card: succeeds' }).click()
     await page.locator('[data-test="buy-credits"]').click()
+    await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
+      /Charge .* run credits\?/,
+    )
+    await page.getByRole('button', { name: 'Charge the card' }).click()
     await page
       .locator('[data-test="purchase-outcome"]')
       .getByText(/Bought 10 run credits/)
@@ -38,6 +42,10 @@ describe('the credits page', () => {
 
     await page.locator('[data-test="test-card"]', { hasText: 'declined (insufficient funds)' }).click()
     await page.locator('[data-test="buy-credits"]').click()
+    await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
+      /Charge .* run credits\?/,
+    )
+    await page.getByRole('button', { name: 'Charge the card' }).click()
     await page
       .locator('[data-test="purchase-outcome"]')
       .getByText(/insufficient funds/)
