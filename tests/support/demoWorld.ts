@@ -77,6 +77,20 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
     recordIds.push(res.body.id)
   }
 
+  // A pair of its own (not of the two records above, which the pair route's sweep pairs itself).
+  const pairRecordIds: string[] = []
+  for (const component of ['X', 'Y']) {
+    const res = await engineer
+      .post('/api/records')
+      .field('name', `Demo world pair ${component}`)
+      .field('component', component)
+      .attach('file', bytes, { filename: `world-pair-${component}.csv`, contentType: 'text/csv' })
+    expectStatus(res, 201, 'upload')
+    pairRecordIds.push(res.body.id)
+  }
+  const pair = await engineer.post('/api/record-pairs').send({ recordIds: pairRecordIds })
+  expectStatus(pair, 201, 'pair')
+
   if (!ctx.deps.runQueue) throw new Error('buildDemoWorld needs a context with a run queue')
   const queued = await engineer
     .post('/api/runs')
@@ -153,6 +167,7 @@ export async function buildDemoWorld(ctx: TestContext): Promise<DemoWorld> {
       invitation: ids.invitationId,
       project: ids.projectId,
       batch: batch.body.id,
+      pair: pair.body.id,
       apiToken: apiToken.body.id,
     },
     tokenOf: { invitation: invitationToken, reset: resetToken },

@@ -14,7 +14,16 @@ export type Access = 'public' | 'member' | Action
 
 /** The firm-owned object a route's `:id` names; the sweeps look its id up in the demo world. */
 export type IdKind =
-  'record' | 'run' | 'comparison' | 'review' | 'membership' | 'invitation' | 'project' | 'batch' | 'apiToken'
+  | 'record'
+  | 'run'
+  | 'comparison'
+  | 'review'
+  | 'membership'
+  | 'invitation'
+  | 'project'
+  | 'batch'
+  | 'apiToken'
+  | 'pair'
 /** The single-use token a route's `:token` names. */
 export type TokenKind = 'invitation' | 'reset'
 
@@ -176,6 +185,7 @@ export const routeTable: RouteSpec[] = [
     validBody: (w) => ({ recordIds: w.recordIds }),
     foreignIds: (w) => ({ body: { recordIds: w.recordIds } }),
   },
+  { method: 'DELETE', path: '/record-pairs/:id', access: 'pairs.manage', id: 'pair' },
 
   {
     method: 'GET',
