@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { STORED_REVIEW_STATES } from '../vocabulary/reviewStates.js'
+import { REVIEW_DECISIONS, STORED_REVIEW_STATES } from '../vocabulary/reviewStates.js'
 import { idSchema } from './common.js'
 
 export { reviewStateSchema, type ReviewState } from '../vocabulary/reviewStates.js'
@@ -25,7 +25,7 @@ const commentBody = z
 /** POST /api/reviews/:id/decision */
 export const reviewDecisionBodySchema = z
   .strictObject({
-    decision: z.enum(['checked', 'returned'], { error: 'decision must be checked or returned.' }),
+    decision: z.enum(REVIEW_DECISIONS, { error: `decision must be one of ${REVIEW_DECISIONS.join(', ')}.` }),
     comment: commentBody.optional(),
   })
   .refine((b) => b.decision !== 'returned' || b.comment !== undefined, {

@@ -13,6 +13,10 @@ export type StoredReviewState = (typeof STORED_REVIEW_STATES)[number]
 
 export const reviewStateSchema = z.enum(REVIEW_STATES)
 
+/** What a checker decides on submitted work. */
+export const REVIEW_DECISIONS = ['checked', 'returned'] as const satisfies readonly StoredReviewState[]
+export type ReviewDecision = (typeof REVIEW_DECISIONS)[number]
+
 /** The one wording of each state: `label` on badges and lists, `sheetLabel` in a sheet's review block. */
 export const REVIEW_STATE_LABELS: Readonly<Record<ReviewState, { label: string; sheetLabel: string }>> = {
   draft: { label: 'Draft', sheetLabel: 'Draft, not submitted' },

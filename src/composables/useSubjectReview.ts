@@ -2,6 +2,7 @@ import { computed, ref, toValue, watch, type MaybeRefOrGetter } from 'vue'
 import * as reviewsApi from '@/api/reviews'
 import type { ReviewDetail, ReviewState, ReviewSubjectType } from '@/api/reviews'
 import { useErrorReporter } from '@/composables/useErrorReporter'
+import type { ReviewDecision } from '../../shared/vocabulary/reviewStates'
 
 /**
  * The review of one run or comparison, with its thread, and the actions on it. Actions report
@@ -57,7 +58,7 @@ export function useSubjectReview(
       })
     }, 'Could not submit for checking')
 
-  const decide = (decision: 'checked' | 'returned', comment?: string) =>
+  const decide = (decision: ReviewDecision, comment?: string) =>
     act(
       async () => {
         const current = review.value
