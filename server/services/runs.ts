@@ -16,6 +16,7 @@ import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { reserveRunCredit } from './credits.js'
+import { runsOfRecordCondition } from './records.js'
 import { reviewStateOf, reviewStates } from './reviews.js'
 
 /** Turns the request's settings into the settings the run is computed with (periods resolved). */
@@ -79,12 +80,12 @@ function toRun({ createdById, createdByName, ...row }: RunRow, reviewState: Run[
   }
 }
 
-/** The firm's runs, newest first, optionally for one project or one record. */
+/** The firm's runs, newest first, optionally for one project or one record (with its pairs' runs). */
 export function listRuns(db: Db, firmId: string, query: RunListQuery, limit = 500): Run[] {
   const where = and(
     eq(runs.firmId, firmId),
     query.projectId ? eq(runs.projectId, query.projectId) : undefined,
-    query.recordId ? eq(runs.recordId, query.recordId) : undefined,
+    query.recordId ? runsOfRecordCondition(db, firmId, query.recordId) : undefined,
   )
   const rows = selectRuns(db, where).orderBy(desc(runs.createdAt), desc(runs.id)).limit(limit).all()
   const states = reviewStates(

@@ -1,5 +1,5 @@
 import { createRouter, createWebHistory, type RouteLocationNormalized } from 'vue-router'
-import type { Role } from '../../shared/schemas/accounts'
+import { type Action, refusalFor } from '../../shared/permissions'
 import { useErrorReporter } from '@/composables/useErrorReporter'
 import { useSessionStore } from '@/stores/session'
 
@@ -9,8 +9,8 @@ declare module 'vue-router' {
     public?: boolean
     /** Shown without the app shell (the signed-out pages). */
     bare?: boolean
-    /** Only members holding one of these roles may open the page. */
-    roles?: Role[]
+    /** Only members who may take this action (shared/permissions.ts) may open the page. */
+    action?: Action
     /** The document title, before " · Ordinate". */
     title?: string
   }
@@ -112,7 +112,7 @@ const router = createRouter({
       path: '/runs/new',
       name: 'new-run',
       component: () => import('@/views/NewRunView.vue'),
-      meta: { roles: ['engineer', 'checker'], title: 'Start a run' },
+      meta: { action: 'runs.start', title: 'Start a run' },
     },
     {
       path: '/runs/:id',
@@ -138,7 +138,7 @@ const router = createRouter({
       path: '/comparisons/new',
       name: 'new-comparison',
       component: () => import('@/views/ComparisonView.vue'),
-      meta: { roles: ['engineer', 'checker'], title: 'New comparison' },
+      meta: { action: 'comparisons.create', title: 'New comparison' },
     },
     {
       path: '/comparisons/:id',
@@ -164,7 +164,7 @@ const router = createRouter({
       path: '/members',
       name: 'members',
       component: () => import('@/views/MembersView.vue'),
-      meta: { roles: ['admin'], title: 'Members' },
+      meta: { action: 'members.manage', title: 'Members' },
     },
     {
       path: '/dev/mailbox',
@@ -190,8 +190,8 @@ export function safeNext(next: unknown): string {
   return typeof next === 'string' && next.startsWith('/') && !next.startsWith('//') ? next : '/'
 }
 
-function rolesNeeded(to: RouteLocationNormalized): Role[] | undefined {
-  return to.matched.find((record) => record.meta.roles)?.meta.roles
+function actionNeeded(to: RouteLocationNormalized): Action | undefined {
+  return to.matched.find((record) => record.meta.action)?.meta.action
 }
 
 router.beforeEach(async (to) => {
@@ -200,11 +200,9 @@ router.beforeEach(async (to) => {
   if (to.name === 'sign-in' && session.signedIn) return safeNext(to.query.next)
   if (to.meta.public) return true
   if (!session.signedIn) return { name: 'sign-in', query: { next: to.fullPath } }
-  const roles = rolesNeeded(to)
-  if (roles && !session.hasRole(...roles)) {
-    useErrorReporter().report(
-      new Error(`That page needs the ${roles.join(' or ')} role. Ask your firm's admin if you need it.`),
-    )
+  const action = actionNeeded(to)
+  if (action && !session.may(action)) {
+    useErrorReporter().report(new Error(`${refusalFor(action)} Ask your firm's admin if you need it.`))
     return to.name === 'overview' ? false : { name: 'overview' }
   }
   return true
