@@ -4,6 +4,8 @@ import type { Db } from '../db/client.js'
 import { creditLedger, firms, memberships, projects, users } from '../db/schema.js'
 import { newId } from '../ids.js'
 import { hashPassword } from './auth.js'
+import { DEMO_PROCESSING, driftingDemoRecord } from '../../shared/spectra/processing/demoDriftingRecord.js'
+import { createProcessedRecord } from './recordProcessing.js'
 import { createRecord } from './records.js'
 
 export const DEMO_PASSWORD = 'ordinate-demo'
@@ -47,7 +49,8 @@ export interface SeedOptions {
    * The data folder (config.dataDir). When given, the engine's three synthetic records are added
    * to the demo firm's default project, uploaded by the demo engineer, with their originals kept
    * under `<dataDir>/originals/` like any upload. (None of the three share Δt and length, so no
-   * demo pair is made.)
+   * demo pair is made.) Then a fourth, with a baseline offset and drift, and its processed child
+   * (record processing), so the demo firm has five records.
    */
   dataDir?: string
 }
@@ -97,6 +100,19 @@ export async function seedDemoData(db: Db, options: SeedOptions = {}): Promise<D
       })
       seed.recordIds.push(record.id)
     }
+    // A record with an offset and a drift, and its processed child, to show record processing.
+    const drifting = driftingDemoRecord()
+    const raw = createRecord(db, options.dataDir, engineer, {
+      bytes: Buffer.from(drifting.text, 'utf8'),
+      fileName: drifting.fileName,
+      name: drifting.name,
+      synthetic: true,
+    })
+    const child = createProcessedRecord(db, engineer, raw.id, {
+      ...DEMO_PROCESSING,
+      name: `${drifting.name}, corrected`,
+    })
+    seed.recordIds.push(raw.id, child.id)
   }
   return seed
 }

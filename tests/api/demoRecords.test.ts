@@ -24,10 +24,10 @@ afterAll(() => {
 })
 
 describe('seedDemoData with a data folder', () => {
-  it('adds three synthetic records to the demo firm’s default project, uploaded by the demo engineer', () => {
-    expect(seed.recordIds).toHaveLength(3)
+  it('adds five synthetic records to the demo firm’s default project, uploaded by the demo engineer', () => {
+    expect(seed.recordIds).toHaveLength(5)
     const rows = db.select().from(records).all()
-    expect(rows).toHaveLength(3)
+    expect(rows).toHaveLength(5)
     const project = db.select().from(projects).where(eq(projects.id, seed.projectIds[0]!)).get()!
     expect(project).toMatchObject({ name: 'Tidewater Library Annex', isDefault: true })
     for (const r of rows) {
@@ -36,8 +36,20 @@ describe('seedDemoData with a data folder', () => {
       expect(r.projectId).toBe(project.id)
       expect(r.firmId).toBe(seed.firmIds[0])
       expect(r.uploadedBy).toBe(seed.userIds['engineer@ordinate.test'])
-      expect(existsSync(path.join(dataDir, 'originals', r.sha256))).toBe(true)
+      // A processed record has no file of its own: its hash is that of its stored samples.
+      expect(existsSync(path.join(dataDir, 'originals', r.sha256))).toBe(r.parentId === null)
     }
+  })
+
+  it('adds a record with a baseline drift and its processed child, whose drift is gone', () => {
+    const [rawId, childId] = seed.recordIds.slice(3)
+    const raw = db.select().from(records).where(eq(records.id, rawId!)).get()!
+    const child = db.select().from(records).where(eq(records.id, childId!)).get()!
+    expect(raw.parentId).toBeNull()
+    expect(raw.warnings.some((w) => /baseline/.test(w))).toBe(true)
+    expect(child.parentId).toBe(raw.id)
+    expect(child.processing).toMatchObject({ highPass: { hz: 0.1, order: 4 }, pads: 'keep' })
+    expect(child.warnings.some((w) => /baseline/.test(w))).toBe(false)
   })
 
   it('gives the runs service samples it can load', () => {
@@ -52,6 +64,6 @@ describe('seedDemoData with a data folder', () => {
 
   it('seeds nothing a second time', async () => {
     expect(await seedDemoData(db, { dataDir })).toBeUndefined()
-    expect(db.select().from(records).all()).toHaveLength(3)
+    expect(db.select().from(records).all()).toHaveLength(5)
   })
 })
