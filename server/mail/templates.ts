@@ -92,3 +92,57 @@ export function passwordResetMail(input: { name: string; url: string; expiresAt:
     footer: `${PRODUCT}: response spectra for structural and earthquake engineers. Sent because a password reset was requested for this address.`,
   })
 }
+
+/** What happened to a piece of work in checking, for the people who act next. */
+export type ReviewNotice = 'submitted' | 'returned' | 'checked'
+
+/**
+ * A review notice: submitted work goes to the firm's checkers; returned or checked work goes
+ * back to the engineer who submitted it. The comment, when there is one, is quoted in full.
+ */
+export function reviewNoticeMail(input: {
+  notice: ReviewNotice
+  recipientName: string
+  actorName: string
+  firmName: string
+  /** "run" or "comparison", and its name. */
+  subjectKind: string
+  subjectName: string
+  revision: number
+  comment?: string
+  url: string
+}): MailContent {
+  const work = `the ${input.subjectKind} “${input.subjectName}” (revision ${input.revision})`
+  const lines: Record<ReviewNotice, { subject: string; says: string; next: string; label: string }> = {
+    submitted: {
+      subject: `${input.actorName} submitted ${input.subjectKind} “${input.subjectName}” for checking`,
+      says: `${input.actorName} submitted ${work} for checking.`,
+      next: 'Any checker of the firm who did not make or run part of it may mark it checked or return it with comments.',
+      label: 'Open the work to check it',
+    },
+    returned: {
+      subject: `${input.actorName} returned ${input.subjectKind} “${input.subjectName}” with comments`,
+      says: `${input.actorName} returned ${work} with comments.`,
+      next: 'Change it and submit it again; each change to returned work makes a new revision.',
+      label: 'Open the work and its review thread',
+    },
+    checked: {
+      subject: `${input.actorName} checked ${input.subjectKind} “${input.subjectName}”`,
+      says: `${input.actorName} marked ${work} checked. It is now locked; any change is made as a new revision.`,
+      next: 'Its calc-package sheet now carries the date of the check.',
+      label: 'Open the checked work',
+    },
+  }
+  const line = lines[input.notice]
+  return render({
+    subject: line.subject,
+    paragraphs: [
+      `Hello ${input.recipientName},`,
+      line.says,
+      ...(input.comment ? [`The comment: “${input.comment}”`] : []),
+      line.next,
+    ],
+    action: { label: line.label, url: input.url },
+    footer: `${PRODUCT}: response spectra for structural and earthquake engineers. Sent to members of ${input.firmName} taking part in checking this work.`,
+  })
+}

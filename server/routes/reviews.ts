@@ -7,6 +7,7 @@ import {
   submitReviewBodySchema,
 } from '../../shared/schemas/reviews.js'
 import type { AppDeps } from '../deps.js'
+import { linkOrigin } from '../mail/links.js'
 import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
 import { addReviewComment, decideReview, getReview, listReviews, submitReview } from '../services/reviews.js'
 
@@ -23,13 +24,18 @@ export function reviewsRouter(deps: AppDeps) {
   })
 
   router.post('/reviews', requireAction('reviews.submit'), (req, res) => {
-    const { review, created } = submitReview(deps.db, memberOf(req), submitReviewBodySchema.parse(req.body))
+    const body = submitReviewBodySchema.parse(req.body)
+    const { review, created } = submitReview(deps.db, memberOf(req), body, linkOrigin(req, deps.config))
+    deps.mailDispatcher?.wake()
     res.status(created ? 201 : 200).json(review)
   })
 
   router.post('/reviews/:id/decision', requireAction('reviews.decide'), (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
-    res.json(decideReview(deps.db, memberOf(req), id, reviewDecisionBodySchema.parse(req.body)))
+    const body = reviewDecisionBodySchema.parse(req.body)
+    const review = decideReview(deps.db, memberOf(req), id, body, linkOrigin(req, deps.config))
+    deps.mailDispatcher?.wake()
+    res.json(review)
   })
 
   router.post('/reviews/:id/comments', requireAction('reviews.comment'), (req, res) => {

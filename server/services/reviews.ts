@@ -10,11 +10,13 @@ import type {
   ReviewSubjectType,
   SubmitReviewBody,
 } from '../../shared/schemas/reviews.js'
-import { mayEditWork } from '../../shared/permissions.js'
+import { may, mayEditWork } from '../../shared/permissions.js'
+import type { Role } from '../../shared/schemas/accounts.js'
 import type { Db, Tx } from '../db/client.js'
 import {
   auditLog,
   comparisons,
+  memberships,
   recordPairs,
   records,
   reviewComments,
@@ -25,7 +27,10 @@ import {
 import { conflict, forbidden, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
+import { appLink } from '../mail/links.js'
+import { type ReviewNotice, reviewNoticeMail } from '../mail/templates.js'
 import { recordAudit } from './audit.js'
+import { enqueueMail } from './mail.js'
 
 /** The work a review is about, as the review rules need it. */
 interface Subject {
@@ -33,6 +38,7 @@ interface Subject {
   id: string
   name: string
   createdBy: string
+  revision: number
   /** Everyone whose runs are part of the work: the run's author, or every run's author of a comparison. */
   ranBy: string[]
   /** Runs must have succeeded before they can be checked. */
@@ -45,6 +51,7 @@ function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string
       .select({
         createdBy: runs.createdBy,
         status: runs.status,
+        revision: runs.revision,
         name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
       })
       .from(runs)
@@ -58,12 +65,18 @@ function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string
       id,
       name: run.name,
       createdBy: run.createdBy,
+      revision: run.revision,
       ranBy: [run.createdBy],
       ready: run.status === 'succeeded',
     }
   }
   const comparison = db
-    .select({ createdBy: comparisons.createdBy, name: comparisons.name, runIds: comparisons.runIds })
+    .select({
+      createdBy: comparisons.createdBy,
+      name: comparisons.name,
+      runIds: comparisons.runIds,
+      revision: comparisons.revision,
+    })
     .from(comparisons)
     .where(and(eq(comparisons.firmId, firmId), eq(comparisons.id, id)))
     .get()
@@ -77,7 +90,15 @@ function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string
           .where(and(eq(runs.firmId, firmId), inArray(runs.id, comparison.runIds)))
           .all()
           .map((r) => r.createdBy)
-  return { type, id, name: comparison.name, createdBy: comparison.createdBy, ranBy: runAuthors, ready: true }
+  return {
+    type,
+    id,
+    name: comparison.name,
+    createdBy: comparison.createdBy,
+    revision: comparison.revision,
+    ranBy: runAuthors,
+    ready: true,
+  }
 }
 
 /** Review states of several subjects of one type; subjects never submitted are 'draft'. */
@@ -296,6 +317,50 @@ function insertComment(tx: Tx, reviewId: string, authorId: string, body: string,
 }
 
 /**
+ * Queues the review notice of issue 15 in the outbox, inside the decision's transaction so it is
+ * sent only if the decision commits: submitted work to every checker of the firm except the
+ * member acting, returned or checked work to the engineer who submitted it.
+ */
+function queueNotices(
+  tx: Tx,
+  member: Member,
+  subject: Subject,
+  notice: ReviewNotice,
+  recipients: { email: string; name: string }[],
+  origin: string,
+  comment?: string,
+): void {
+  for (const to of recipients) {
+    enqueueMail(tx, {
+      to: to.email,
+      ...reviewNoticeMail({
+        notice,
+        recipientName: to.name,
+        actorName: member.name,
+        firmName: member.firmName,
+        subjectKind: subject.type,
+        subjectName: subject.name,
+        revision: subject.revision,
+        comment,
+        url: appLink(origin, `/${subject.type === 'run' ? 'runs' : 'comparisons'}/${subject.id}`),
+      }),
+    })
+  }
+}
+
+/** The firm's members who may decide on reviews (shared/permissions.ts), but not `except`. */
+function checkersOf(tx: Tx, firmId: string, except: string): { email: string; name: string }[] {
+  return tx
+    .select({ userId: users.id, email: users.email, name: users.name, roles: memberships.roles })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.firmId, firmId))
+    .all()
+    .filter((m) => m.userId !== except && may(m.roles as Role[], 'reviews.decide'))
+    .map(({ email, name }) => ({ email, name }))
+}
+
+/**
  * Submits a run or comparison for checking: draft → submitted, or returned → submitted again.
  * Engineers submit their own work only; a run must have succeeded. Writes the audit row in the
  * same transaction. Answers the review and whether it was created (201) or resubmitted (200).
@@ -304,6 +369,7 @@ export function submitReview(
   db: Db,
   member: Member,
   body: SubmitReviewBody,
+  origin: string,
 ): { review: ReviewDetail; created: boolean } {
   const { reviewId, created } = db.transaction(
     (tx) => {
@@ -361,8 +427,10 @@ export function submitReview(
           from: existing?.state ?? 'draft',
           to: 'submitted',
           subjectName: subject.name,
+          revision: subject.revision,
         },
       })
+      queueNotices(tx, member, subject, 'submitted', checkersOf(tx, member.firmId, member.userId), origin)
       return { reviewId: id, created: !existing }
     },
     { behavior: 'immediate' },
@@ -398,6 +466,7 @@ export function decideReview(
   member: Member,
   reviewId: string,
   body: ReviewDecisionBody,
+  origin: string,
 ): ReviewDetail {
   db.transaction(
     (tx) => {
@@ -439,8 +508,14 @@ export function decideReview(
         action: `review.${body.decision}`,
         subjectType: review.subjectType,
         subjectId: review.subjectId,
-        detail: { reviewId, from: 'submitted', to: body.decision, commentId },
+        detail: { reviewId, from: 'submitted', to: body.decision, commentId, revision: subject.revision },
       })
+      const engineer = tx
+        .select({ email: users.email, name: users.name })
+        .from(users)
+        .where(eq(users.id, review.submittedBy))
+        .get()
+      queueNotices(tx, member, subject, body.decision, engineer ? [engineer] : [], origin, body.comment)
     },
     { behavior: 'immediate' },
   )

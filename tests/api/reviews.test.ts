@@ -1,7 +1,7 @@
-import { and, asc, eq } from 'drizzle-orm'
+import { and, asc, eq, sql } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
-import { auditLog, comparisons, memberships, users } from '../../server/db/schema.js'
+import { auditLog, comparisons, mailOutbox, memberships, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { insertSucceededRun, markRunQueued } from '../support/comparisonFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -397,5 +397,64 @@ describe('checkers never change the work they sign off (issue 12, defects 1 and 
       expect(res.body.error.code).toBe('locked')
     }
     expect(stored()).toEqual({ name: 'Checked suite, rev 4', revision: 4 })
+  })
+})
+
+describe('review notices by e-mail (issue 15)', () => {
+  const NAME = 'Notice suite'
+  /** The outbox messages about this comparison, as [recipient, subject] pairs, oldest first. */
+  const notices = () =>
+    ctx.db
+      .select({ to: mailOutbox.toAddress, subject: mailOutbox.subject, text: mailOutbox.textBody })
+      .from(mailOutbox)
+      .orderBy(asc(mailOutbox.createdAt), asc(sql`rowid`))
+      .all()
+      .filter((m) => m.subject.includes(`“${NAME}”`))
+  let comparisonId: string
+  let reviewId: string
+
+  it("submitting e-mails the firm's checkers, not the submitter, linking to the work", async () => {
+    const made = await engineer
+      .post('/api/comparisons')
+      .send({ name: NAME, runIds: [engineerRun], dampingRatio: 0.05 })
+    comparisonId = made.body.comparison.id
+    const submitted = await engineer
+      .post('/api/reviews')
+      .send({ subjectType: 'comparison', subjectId: comparisonId })
+    expect(submitted.status).toBe(201)
+    reviewId = submitted.body.id
+    const sent = notices()
+    expect(sent.map((m) => m.to).sort()).toEqual(['both@ordinate.test', 'checker@ordinate.test'])
+    for (const m of sent) {
+      expect(m.subject).toBe(`Ines Marlowe submitted comparison “${NAME}” for checking`)
+      expect(m.text).toContain(`/comparisons/${comparisonId}`)
+      expect(m.text).toContain('(revision 1)')
+    }
+  })
+
+  it('returning e-mails the engineer with the comment; checking e-mails them again', async () => {
+    await checker
+      .post(`/api/reviews/${reviewId}/decision`)
+      .send({ decision: 'returned', comment: 'State the period range used.' })
+    const returned = notices().at(-1)!
+    expect(returned.to).toBe('engineer@ordinate.test')
+    expect(returned.subject).toBe(`Tomas Verhoek returned comparison “${NAME}” with comments`)
+    expect(returned.text).toContain('“State the period range used.”')
+
+    await engineer.patch(`/api/comparisons/${comparisonId}`).send({ meanKind: 'arithmetic' })
+    await engineer.post('/api/reviews').send({ subjectType: 'comparison', subjectId: comparisonId })
+    await checker.post(`/api/reviews/${reviewId}/decision`).send({ decision: 'checked' })
+    const checked = notices().at(-1)!
+    expect(checked.to).toBe('engineer@ordinate.test')
+    expect(checked.subject).toBe(`Tomas Verhoek checked comparison “${NAME}”`)
+    expect(checked.text).toContain('(revision 2)')
+    expect(notices().filter((m) => m.to === 'admin@ordinate.test')).toEqual([])
+  })
+
+  it('a refused decision queues no mail', async () => {
+    const before = notices().length
+    const res = await checker.post(`/api/reviews/${reviewId}/decision`).send({ decision: 'checked' })
+    expect(res.status).toBe(409)
+    expect(notices()).toHaveLength(before)
   })
 })
