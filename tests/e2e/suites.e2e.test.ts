@@ -119,6 +119,31 @@ describe('suites in the browser', () => {
     await page.close()
   })
 
+  it('flags a binary file renamed .txt as not a record file before asking for units or Δt', async () => {
+    const page = await engineerOn('/records')
+    // A word-processor document starts "PK" (a zip); this one also holds NUL bytes.
+    const binary = {
+      name: 'Site report.txt',
+      mimeType: 'text/plain',
+      buffer: Buffer.from([0x50, 0x4b, 3, 4, 0, 0, 8, 0]),
+    }
+    await page.locator('[data-test="multi-file-input"]').setInputFiles([binary])
+    const row = page.locator('[data-test="multi-upload-table"] tr[data-file="Site report.txt"]')
+    expect(await row.getAttribute('data-state')).toBe('not-record')
+    expect(await row.locator('[data-test="not-record"]').innerText()).toMatch(/not a text record file/)
+    expect(await row.locator('[data-test="row-units"], [data-test="row-dt"]').count()).toBe(0)
+    expect(await page.locator('[data-test="upload-all"]').isDisabled()).toBe(true)
+
+    await page.locator('#record-file').setInputFiles([binary])
+    await page
+      .locator('[data-test="record-file-message"]')
+      .getByText(/not a text record file/)
+      .waitFor()
+    expect(await page.locator('[data-test="record-units-field"]').count()).toBe(0)
+    expect(await page.locator('[data-test="record-upload"]').isDisabled()).toBe(true)
+    await page.close()
+  })
+
   it('switches to US customary units and shows inches in the ordinates table', async () => {
     const page = await engineerOn('/account')
     await page.locator('[data-test="units-us"]').click()
