@@ -72,6 +72,9 @@ describe('comparing and checking in the browser', () => {
     expect(legend).toContain(FAR_FIELD)
     expect(legend).toContain(NEAR_FAULT)
     expect(legend).toMatch(/Arithmetic mean/)
+    // Long legend entries wrap onto more lines; their values are never cut off.
+    expect((await chart.locator('text').allTextContents()).join(' ')).toMatch(/SD1 = 0\.6 g, TL = 8 s/)
+    expect(legend).not.toContain('…')
     // One suite factor that keeps the mean at or above 90% of the target passes by construction.
     const check = page.locator('[data-test="suite-check"]')
     await expect.poll(() => check.getAttribute('data-passed'), { timeout: 10_000 }).toBe('true')
