@@ -45,6 +45,8 @@ describe('suites in the browser', () => {
         file('Yard station.csv', syntheticRecord(0.1, 1.1, 300)),
       ])
     const table = page.locator('[data-test="multi-upload-table"]')
+    // Each file is read in the browser first; the rows appear once all five are read.
+    await table.locator('tbody tr').nth(4).waitFor()
     await expect(table.locator('tbody tr').count()).resolves.toBe(5)
     await page.locator('[data-test="upload-all"]').click()
     await page
