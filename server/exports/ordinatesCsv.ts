@@ -3,6 +3,11 @@
  * numbers, a header row, then one row per period (ascending). Numbers are written in full
  * (shortest round-trip form), so the file holds exactly what the API answers.
  */
+import type { RecordProcessing } from '../../shared/schemas/processing.js'
+import {
+  describeProcessing,
+  usableBandCautionFor,
+} from '../../shared/spectra/processing/describeProcessing.js'
 import { CAUTION } from '../../shared/cautions.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { Sheet } from '../../shared/schemas/sheets.js'
@@ -53,6 +58,8 @@ export interface CsvRecord {
   sha256: string
   /** The units the file was read in (every ordinate is converted to SI). */
   sourceUnits: string
+  /** A processed record's processing chain; null or absent for a record as received. */
+  processing?: RecordProcessing | null
 }
 
 export interface RunCsvInput {
@@ -112,6 +119,11 @@ export function runOrdinatesCsv({ about, records, spectrum, gravityMPerS2 }: Run
       ...about,
       `Record: ${records.map((r) => r.name).join(' + ')}; SHA-256 ${records.map((r) => r.sha256).join(' + ')}`,
       units,
+      ...records.map(
+        (r) =>
+          `Processing${records.length > 1 ? ` of ${r.name}` : ''}: ${describeProcessing(r.processing, r.sourceUnits)}`,
+      ),
+      ...[usableBandCautionFor(records, spectrum.periodsS)].flatMap((c) => (c ? [`Warning: ${c}`] : [])),
       ...methodLines(spectrum),
       `g = ${gravityMPerS2} m/s2; zeta is the damping ratio; SI units unless the column says g`,
       `Caution: ${CAUTION}`,

@@ -13,8 +13,13 @@ import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 import { dampingLabel } from '../../shared/charts/spectrumChart.js'
 import { FILE_UNITS, unitsStatement } from '../../shared/charts/unitSystems.js'
 import { type DisplayUnit, formatSignificant, fromSI } from '../../shared/charts/units.js'
+import type { RecordProcessing } from '../../shared/schemas/processing.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import type { MethodStatement } from '../../shared/spectra/computeSpectrum.js'
+import {
+  describeProcessing,
+  usableBandCautionFor,
+} from '../../shared/spectra/processing/describeProcessing.js'
 import { CAV_LABEL, type RecordParameters } from '../../shared/spectra/recordParameters.js'
 import { SOURCE_UNIT_LABELS, STANDARD_GRAVITY_M_PER_S2, isSourceUnits } from '../../shared/spectra/units.js'
 import type { Sheet, SheetField, SheetRecord, SheetTable } from '../../shared/schemas/sheets.js'
@@ -38,6 +43,8 @@ export interface SheetRecordFacts extends RecordParameters {
   format: string
   sourceUnits: string
   synthetic: boolean
+  /** A processed record's processing chain; null or absent for a record as received. */
+  processing?: RecordProcessing | null
 }
 
 /** The engine's statement of how it solved the oscillators. */
@@ -90,7 +97,8 @@ export function periodGridStatement(settings: RunSettings): string {
   return `${count} log-spaced periods ${span}${perDecade}${which}`
 }
 
-function processingStatement(units: string): string {
+function processingStatement(units: string, processing?: RecordProcessing | null): string {
+  if (processing) return describeProcessing(processing, units)
   return units === 'm/s²'
     ? 'None: read in m/s²; no baseline correction or filtering by Ordinate.'
     : `Converted from ${units} to m/s² (g = ${STANDARD_GRAVITY_M_PER_S2} m/s²); no baseline correction or filtering by Ordinate.`
@@ -134,7 +142,10 @@ export function recordSection(
           label: 'Points, Δt, duration',
           value: `${record.points} points at Δt = ${num(record.dtS)} s, ${num(record.durationS)} s`,
         },
-        { label: 'Units and processing', value: `${record.format}, ${units}. ${processingStatement(units)}` },
+        {
+          label: 'Units and processing',
+          value: `${record.format}, ${units}. ${processingStatement(units, record.processing)}`,
+        },
         { label: 'PGA, PGV, PGD', value: `${pga}; ${pgv}; ${pgd}` },
         ...origin,
       ],
@@ -154,7 +165,7 @@ export function recordSection(
       { label: 'Arias intensity Ia', value: `${num(record.ariasMPerS)} m/s` },
       { label: 'Significant duration D5-95', value: `${num(record.d595S)} s` },
       { label: CAV_LABEL, value: `${num(record.cavMPerS)} m/s` },
-      { label: 'Processing', value: processingStatement(units) },
+      { label: 'Processing', value: processingStatement(units, record.processing) },
       ...origin,
     ],
   }
@@ -238,6 +249,16 @@ function methodFields(facts: RunSheetFacts): SheetField[] {
     { label: 'Free vibration after the record', value: distinct(methods, (m) => m.freeVibrationTail) },
     { label: 'Damping ratios', value: settings.dampingRatios.map(dampingLabel).join(', ') },
     { label: 'Period grid', value: periodGridStatement(settings) },
+    ...facts.records.flatMap((r) =>
+      r.processing
+        ? [
+            {
+              label: facts.records.length > 1 ? `Record processing, ${r.name}` : 'Record processing',
+              value: describeProcessing(r.processing, r.sourceUnits),
+            },
+          ]
+        : [],
+    ),
     { label: 'Ordinates', value: 'SD = max|u|, SV = max|u′|, SA = max|ü + a_g|, PSV = ωSD, PSA = ω²SD' },
     { label: 'Units', value: unitsStatement(facts.units ?? 'si') },
     { label: 'Accuracy', value: distinct(methods, (m) => m.accuracyTarget) },
@@ -269,7 +290,10 @@ export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
     chart: runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
     tables: [runOrdinateTable(facts.spectrum, single ? single.pgaMPerS2 : null)],
     comparison: null,
-    warnings: [...facts.spectrumWarnings],
+    warnings: [
+      ...facts.spectrumWarnings,
+      ...[usableBandCautionFor(facts.records, facts.spectrum.periodsS)].filter((c) => c !== null),
+    ],
     cautions: [...SHEET_CAUTIONS],
   }
 }

@@ -40,6 +40,7 @@ import { badRequest, conflict, notFound } from '../httpError.js'
 import type { Member } from '../middleware/auth.js'
 import { recordSummaryColumns } from '../runs/recordSummaryColumns.js'
 import { recordAudit } from './audit.js'
+import { decodeRecordProcessing } from './recordProcessing.js'
 import { getComparisonView } from './comparisons.js'
 
 export type ExportFormat = 'pdf' | 'png' | 'svg' | 'csv'
@@ -64,6 +65,7 @@ const recordFactColumns = {
   sha256: records.sha256,
   format: records.format,
   synthetic: records.synthetic,
+  processing: records.processing,
 }
 
 function recordFacts(db: Db, firmId: string, recordId: string): SheetRecordFacts {
@@ -73,7 +75,7 @@ function recordFacts(db: Db, firmId: string, recordId: string): SheetRecordFacts
     .where(and(eq(records.firmId, firmId), eq(records.id, recordId)))
     .get()
   if (!row) throw notFound('The record of this run')
-  return row
+  return { ...row, processing: decodeRecordProcessing(row.processing) }
 }
 
 /** The review of a run or comparison, with the checker's name; null when never submitted. */

@@ -15,7 +15,9 @@ import {
   type ProcessedRecord,
 } from '../../shared/spectra/processing/processRecord.js'
 import { integrateRecord, recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
+import { recordProcessingSchema } from '../../shared/schemas/processing.js'
 import type { Db } from '../db/client.js'
+import { parseStored } from '../db/parseStored.js'
 import { records } from '../db/schema.js'
 import { badRequest } from '../httpError.js'
 import { newId } from '../ids.js'
@@ -196,4 +198,9 @@ export function createProcessedRecord(
 export function recordFourier(db: Db, firmId: string, recordId: string): FourierSpectrumBody {
   const { record, accelMPerS2 } = loadRecordSamples(db, firmId, recordId)
   return fourierBody(accelMPerS2, record.dtS)
+}
+
+/** records.processing as stored: null for a record as received. */
+export function decodeRecordProcessing(value: unknown): RecordProcessing | null {
+  return value == null ? null : parseStored(recordProcessingSchema, value, 'record processing')
 }

@@ -5,6 +5,12 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { auditLog, records } from '../../server/db/schema.js'
 import { decodeSamples, encodeSamples } from '../../server/services/sampleBlob.js'
 import { processRecord } from '../../shared/spectra/processing/processRecord.js'
+import { runOrdinatesCsv } from '../../server/exports/ordinatesCsv.js'
+import { buildRunSheetFromFacts } from '../../server/exports/runSheet.js'
+import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
+import { recordParameters } from '../../shared/spectra/recordParameters.js'
+import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
+import { demoRunFacts } from '../support/sheetFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -276,5 +282,51 @@ describe('GET /api/records/:id/samples', () => {
     expect(res.status).toBe(200)
     expect(res.body.accelMPerS2).toHaveLength(POINTS)
     expect(res.body.accelMPerS2).toEqual(Array.from(decodeSamples(storedSamples(parentId))))
+  })
+})
+
+describe('runs on a processed record', () => {
+  it('state the processing chain and the usable-band caution in the CSV header, the method block and the sheet', async () => {
+    const res = await engineer.post(`/api/records/${parentId}/processed`).send(SETTINGS)
+    expect(res.status).toBe(201)
+    const child = res.body
+    const accel = decodeSamples(storedSamples(child.id))
+    const periodsS = [0.1, 1, 2, 5, 8]
+    const computation = computeSpectrum(
+      { accelMPerS2: accel, dtS: DT_S },
+      { dampingRatios: [0.05], periodsS, method: 'newmark-average' },
+    )
+    const spectrum = toSpectrumJson(
+      { ...recordParameters(accel, DT_S), sourceUnits: 'm/s2' },
+      computation,
+      [],
+    )
+    const csv = runOrdinatesCsv({ about: [], records: [child], spectrum, gravityMPerS2: 9.80665 })
+    const parentSha = (await engineer.get(`/api/records/${parentId}`)).body.sha256
+    expect(csv).toMatch(
+      new RegExp(`# Processing: Processed by Ordinate from the original \\(SHA-256 ${parentSha}`),
+    )
+    expect(csv).toMatch(/Butterworth high-pass 0\.2 Hz order 4, then low-pass 20 Hz order 4 \(zero phase/)
+    expect(csv).toMatch(/zero pads of 15 s at each end kept with the record/)
+    // 1/(1.25·0.2 Hz) = 4 s; the run goes to 8 s.
+    expect(csv).toMatch(/# Warning: The record was high-pass filtered: ordinates at periods beyond 4 s/)
+
+    const facts = demoRunFacts()
+    facts.records = [{ ...facts.records[0]!, processing: child.processing }]
+    const sheet = buildRunSheetFromFacts(facts)
+    expect(sheet.method.find((f) => f.label === 'Record processing')?.value).toMatch(/high-pass 0\.2 Hz/)
+    expect(sheet.records[0]!.fields.find((f) => f.label === 'Processing')?.value).toMatch(
+      /least-squares baseline of order 1/,
+    )
+    expect(sheet.warnings.some((w) => /beyond 4 s/.test(w))).toBe(true)
+  })
+
+  it('say no baseline correction or filtering was applied to a record as received', () => {
+    const sheet = buildRunSheetFromFacts(demoRunFacts())
+    expect(sheet.records[0]!.fields.find((f) => f.label === 'Processing')?.value).toMatch(
+      /no baseline correction or filtering/,
+    )
+    expect(sheet.method.some((f) => f.label === 'Record processing')).toBe(false)
+    expect(sheet.warnings.some((w) => /usable band/.test(w))).toBe(false)
   })
 })

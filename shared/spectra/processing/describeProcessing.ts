@@ -65,3 +65,15 @@ export function usableBandCaution(
   if (usablePeriodMaxS == null || longestPeriodS <= usablePeriodMaxS) return null
   return `The record was high-pass filtered: ordinates at periods beyond ${num(usablePeriodMaxS)} s (1/(1.25·f_hp)) are outside its usable band and are not to be relied on.`
 }
+
+/** The usable-band caution for a run on these records (the tightest limit of any of them), or null. */
+export function usableBandCautionFor(
+  records: readonly { processing?: RecordProcessing | null }[],
+  periodsS: ArrayLike<number>,
+): string | null {
+  const limits = records.flatMap((r) =>
+    r.processing?.usablePeriodMaxS != null ? [r.processing.usablePeriodMaxS] : [],
+  )
+  if (limits.length === 0 || periodsS.length === 0) return null
+  return usableBandCaution(Math.min(...limits), Math.max(...Array.from(periodsS)))
+}
