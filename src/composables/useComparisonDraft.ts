@@ -1,9 +1,8 @@
-import { type Ref, computed, onScopeDispose, reactive, ref, watch } from 'vue'
+import { type Ref, computed, reactive, ref, watch } from 'vue'
 import { RUN_METHOD_NAMES } from '../../shared/charts/runSpectrumChartInput'
 import { dampingLabel } from '../../shared/charts/spectrumChart'
 import type { ScalingRule } from '../../shared/spectra/suite'
 import { COMBINATIONS, COMBINATION_LABELS } from '../../shared/vocabulary/combinations'
-import { ApiError } from '@/api/client'
 import * as comparisonsApi from '@/api/comparisons'
 import type {
   Combination,
@@ -14,7 +13,7 @@ import type {
   PreviewComparisonBody,
 } from '@/api/comparisons'
 import type { Run } from '@/api/runs'
-import { useErrorReporter } from '@/composables/useErrorReporter'
+import { useLivePreview } from '@/composables/useLivePreview'
 import { formatDateTime } from '@/formatDateTime'
 
 /** How long the inputs must rest before the preview is asked for again. */
@@ -51,7 +50,6 @@ function targetInputOf(stored: ComparisonSummary['target']): ComparisonTargetInp
  */
 export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boolean>; locked: Ref<boolean> }) {
   const { runs, ready, locked } = options
-  const { report } = useErrorReporter()
 
   const draft = reactive<ComparisonDraftInputs>({
     name: '',
@@ -68,8 +66,6 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
   })
 
   const drawing = ref<ComparisonDrawing | null>(null)
-  const previewing = ref(false)
-  const previewProblem = ref<string | null>(null)
 
   /** Puts a saved comparison's inputs in the fields. */
   function fill(c: ComparisonSummary) {
@@ -149,40 +145,18 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
     }
   })
 
-  let timer: ReturnType<typeof setTimeout> | undefined
-  let controller: AbortController | undefined
-  async function redraw() {
-    controller?.abort()
-    const request = body.value
-    previewProblem.value = null
-    if (!request) {
-      drawing.value = null
-      return
-    }
-    controller = new AbortController()
-    previewing.value = true
-    try {
-      drawing.value = await comparisonsApi.previewComparison(request, controller.signal)
-    } catch (err) {
-      if (err instanceof DOMException && err.name === 'AbortError') return
-      previewProblem.value = err instanceof ApiError ? err.message : report(err)
-    } finally {
-      previewing.value = false
-    }
-  }
+  const live = useLivePreview(PREVIEW_DELAY_MS)
   watch(
     body,
     () => {
       if (!ready.value || locked.value) return
-      clearTimeout(timer)
-      timer = setTimeout(redraw, PREVIEW_DELAY_MS)
+      live.schedule(async (signal) => {
+        const request = body.value
+        drawing.value = request ? await comparisonsApi.previewComparison(request, signal) : null
+      })
     },
     { deep: true },
   )
-  onScopeDispose(() => {
-    clearTimeout(timer)
-    controller?.abort()
-  })
 
   /** What the inputs leave to choose from, and the runs chosen. */
   const choices = reactive({
@@ -193,7 +167,7 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
     pairRuns,
   })
   /** The live drawing: null until there is something to draw. */
-  const preview = reactive({ drawing, busy: previewing, problem: previewProblem })
+  const preview = reactive({ drawing, busy: live.busy, problem: live.problem })
 
   return { draft, preview, choices, fill, body }
 }
