@@ -4,6 +4,14 @@
  *   npm run spectrum -- <file> [--units g|m/s2|cm/s2|in/s2] [--dt SECONDS]
  *       [--damping 0.02,0.05] [--periods MIN:MAX:COUNT | --periods-file FILE]
  *       [--method newmark-average|newmark-linear|piecewise-exact] [--format csv|json]
+ *       [--baseline N] [--taper S] [--highpass HZ[:ORDER]] [--lowpass HZ[:ORDER]]
+ *       [--phase zero|causal] [--pads keep|trim] [--fourier]
+ *
+ * The processing flags mean what they mean in the API (POST /api/records/:id/processed): a
+ * baseline polynomial of order N, a cosine taper of S seconds at each end, Butterworth filters
+ * (order 4 when not given), zero phase with kept pads by default. `--fourier` prints the Fourier
+ * amplitude spectrum (of the processed record, when processing is asked for) instead of the
+ * response spectrum.
  *
  * Prints only the result on stdout (JSON by default, SI units). Problems go to
  * stderr with the reason and the line, and the exit status is non-zero:
@@ -15,7 +23,15 @@ import { basename } from 'node:path'
 import { parseArgs } from 'node:util'
 import { runOrdinatesCsv } from '../server/exports/ordinatesCsv.js'
 import { ordinateVersion } from '../server/exports/sheetParts.js'
+import {
+  type ProcessingSettingsBody,
+  type RecordProcessing,
+  processingSettingsSchema,
+} from '../shared/schemas/processing.js'
 import { spectrumResultSchema } from '../shared/schemas/spectrum.js'
+import { usableBandCaution } from '../shared/spectra/processing/describeProcessing.js'
+import { type FourierSpectrum, fourierSpectrum } from '../shared/spectra/processing/fourierSpectrum.js'
+import { processRecord, processingIssues } from '../shared/spectra/processing/processRecord.js'
 import { MAX_DAMPING_RATIO, computeSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { SPECTRUM_METHODS, type SpectrumMethod } from '../shared/spectra/oscillatorRecurrence.js'
 import { RecordParseError, parseRecord } from '../shared/spectra/parseRecord.js'
@@ -27,7 +43,9 @@ import type { SpectrumResult } from '../shared/schemas/spectrum.js'
 
 const USAGE = `usage: npm run spectrum -- <file> [--units g|m/s2|cm/s2|in/s2] [--dt SECONDS]
     [--damping 0.02,0.05] [--periods MIN:MAX:COUNT | --periods-file FILE]
-    [--method newmark-average|newmark-linear|piecewise-exact] [--format csv|json]`
+    [--method newmark-average|newmark-linear|piecewise-exact] [--format csv|json]
+    [--baseline N] [--taper S] [--highpass HZ[:ORDER]] [--lowpass HZ[:ORDER]]
+    [--phase zero|causal] [--pads keep|trim] [--fourier]`
 
 /** A problem the user can fix; `exitCode` 2 means the command line itself. */
 class CliError extends Error {
@@ -101,6 +119,61 @@ interface Options {
   periodsS: number[]
   method: SpectrumMethod
   format: 'csv' | 'json'
+  /** null when no processing flag is given. */
+  processing: ProcessingSettingsBody | null
+  fourier: boolean
+}
+
+const DEFAULT_FILTER_ORDER = 4
+
+/** "HZ" or "HZ:ORDER" of --highpass and --lowpass. */
+function parseFilter(flag: string, text: string | undefined): { hz: number; order: number } | undefined {
+  if (text === undefined) return undefined
+  const [hz, order, ...rest] = text.split(':')
+  const filter = { hz: Number(hz), order: order === undefined ? DEFAULT_FILTER_ORDER : Number(order) }
+  if (
+    rest.length ||
+    hz === '' ||
+    order === '' ||
+    !Number.isFinite(filter.hz) ||
+    !Number.isFinite(filter.order)
+  )
+    throw usageError(`--${flag}: "${text}" should be HZ or HZ:ORDER, e.g. 0.1:4.`)
+  return filter
+}
+
+const FLAG_OF_FIELD: Record<string, string> = {
+  baseline: '--baseline',
+  taperS: '--taper',
+  highPass: '--highpass',
+  lowPass: '--lowpass',
+  phase: '--phase',
+  pads: '--pads',
+}
+
+/** The processing flags as the API's settings, checked by the same schema; null without any. */
+function readProcessing(values: Record<string, string | boolean | undefined>): ProcessingSettingsBody | null {
+  const given = ['baseline', 'taper', 'highpass', 'lowpass', 'phase', 'pads'].some(
+    (k) => values[k] !== undefined,
+  )
+  if (!given) return null
+  const num = (v: string | boolean | undefined) => (typeof v === 'string' ? Number(v) : undefined)
+  const body = {
+    ...(values.baseline !== undefined ? { baseline: { order: num(values.baseline) } } : {}),
+    ...(values.taper !== undefined ? { taperS: num(values.taper) } : {}),
+    ...(values.highpass !== undefined
+      ? { highPass: parseFilter('highpass', values.highpass as string) }
+      : {}),
+    ...(values.lowpass !== undefined ? { lowPass: parseFilter('lowpass', values.lowpass as string) } : {}),
+    ...(values.phase !== undefined ? { phase: values.phase } : {}),
+    ...(values.pads !== undefined ? { pads: values.pads } : {}),
+  }
+  const parsed = processingSettingsSchema.safeParse(body)
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0]!
+    throw usageError(`${FLAG_OF_FIELD[String(issue.path[0])] ?? 'processing'}: ${issue.message}`)
+  }
+  return parsed.data
 }
 
 function readOptions(argv: string[]): Options {
@@ -118,6 +191,13 @@ function readOptions(argv: string[]): Options {
         'periods-file': { type: 'string' },
         method: { type: 'string', default: 'newmark-average' },
         format: { type: 'string', default: 'json' },
+        baseline: { type: 'string' },
+        taper: { type: 'string' },
+        highpass: { type: 'string' },
+        lowpass: { type: 'string' },
+        phase: { type: 'string' },
+        pads: { type: 'string' },
+        fourier: { type: 'boolean', default: false },
       },
     })
   } catch (error) {
@@ -156,17 +236,24 @@ function readOptions(argv: string[]): Options {
     periodsS,
     method: values.method as SpectrumMethod,
     format: values.format,
+    processing: readProcessing(values),
+    fourier: values.fourier,
   }
 }
 
 /** The run CSV of the export and the API (server/exports/ordinatesCsv.ts), for one file. */
-function csvText(result: SpectrumResult, fileName: string, sha256: string): string {
+function csvText(
+  result: SpectrumResult,
+  fileName: string,
+  sha256: string,
+  processing: RecordProcessing | null,
+): string {
   return runOrdinatesCsv({
     about: [
       `Ordinate ${ordinateVersion()}`,
       `Elastic response spectrum of ${fileName}, computed on the command line`,
     ],
-    records: [{ name: fileName, sha256, sourceUnits: result.record.sourceUnits }],
+    records: [{ name: fileName, sha256, sourceUnits: result.record.sourceUnits, processing }],
     spectrum: result,
     gravityMPerS2: STANDARD_GRAVITY_M_PER_S2,
   })
@@ -187,20 +274,66 @@ function run(argv: string[]): string {
     }
     throw error
   }
-  const computation = computeSpectrum(parsed, {
-    dampingRatios: options.dampingRatios,
-    periodsS: options.periodsS,
-    method: options.method,
-  })
-  const parameters = { ...recordParameters(parsed.accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits }
+  const sha256 = createHash('sha256').update(text).digest('hex')
+  let accelMPerS2 = parsed.accelMPerS2
+  let processing: RecordProcessing | null = null
+  const processingWarnings: string[] = []
+  if (options.processing) {
+    const issues = processingIssues(options.processing, accelMPerS2.length, parsed.dtS)
+    if (issues.length > 0) {
+      const issue = issues[0]!
+      throw usageError(`${FLAG_OF_FIELD[issue.path[0]!] ?? 'processing'}: ${issue.message}`)
+    }
+    const processed = processRecord(accelMPerS2, parsed.dtS, options.processing)
+    accelMPerS2 = processed.accelMPerS2
+    const step = { ...processed.applied, sourceSha256: sha256 }
+    processing = {
+      ...step,
+      parentSha256: sha256,
+      usablePeriodMaxS: processed.usablePeriodMaxS,
+      chain: [step],
+    }
+    processingWarnings.push(...processed.warnings)
+  }
+  if (options.fourier) return fourierText(fourierSpectrum(accelMPerS2, parsed.dtS), options.format)
+  const computation = computeSpectrum(
+    { accelMPerS2, dtS: parsed.dtS },
+    { dampingRatios: options.dampingRatios, periodsS: options.periodsS, method: options.method },
+  )
+  const parameters = { ...recordParameters(accelMPerS2, parsed.dtS), sourceUnits: parsed.sourceUnits }
+  const band = usableBandCaution(processing?.usablePeriodMaxS, Math.max(...options.periodsS))
   const result = spectrumResultSchema.parse(
     toSpectrumJson(parameters, computation, [
       ...parsed.warnings,
-      ...recordWarnings(parsed.accelMPerS2, parsed.dtS),
+      ...processingWarnings,
+      ...recordWarnings(accelMPerS2, parsed.dtS),
+      ...(band ? [band] : []),
     ]),
   )
-  if (options.format === 'json') return JSON.stringify(result) + '\n'
-  return csvText(result, basename(options.file), createHash('sha256').update(text).digest('hex'))
+  if (options.format === 'json') return JSON.stringify(processing ? { ...result, processing } : result) + '\n'
+  return csvText(result, basename(options.file), sha256, processing)
+}
+
+/** --fourier: the Fourier amplitude spectrum as JSON, or as CSV with one row per frequency. */
+function fourierText(spectrum: FourierSpectrum, format: 'csv' | 'json'): string {
+  const { frequencyHz, rawMPerS, smoothedMPerS } = spectrum
+  if (format === 'json') {
+    return (
+      JSON.stringify({
+        frequencyHz: Array.from(frequencyHz),
+        rawMPerS: Array.from(rawMPerS),
+        smoothedMPerS: Array.from(smoothedMPerS),
+      }) + '\n'
+    )
+  }
+  const rows = Array.from(frequencyHz, (f, i) => `${f},${rawMPerS[i]},${smoothedMPerS[i]}`)
+  return (
+    [
+      '# Fourier amplitude spectrum Δt·|X(f)| in m/s: raw at the nearest FFT bin, smoothed with the Konno–Ohmachi window (b = 40)',
+      'frequency_hz,raw_m_per_s,smoothed_m_per_s',
+      ...rows,
+    ].join('\n') + '\n'
+  )
 }
 
 // A reader that stops early (`| head`) is not an error.
