@@ -161,6 +161,20 @@ describe('suites in the browser', () => {
     await page.locator('[data-test="quantity"]').getByText('SD', { exact: true }).click()
     await page.getByText('Ordinates: SD in in', { exact: true }).waitFor()
     await page.screenshot({ path: artifactPath('suites-us-units.png'), fullPage: true })
+
+    // The home page is the firm's workspace now that records exist.
+    await page.goto(env.server.url)
+    const workspace = page.locator('[data-test="workspace"]')
+    await workspace
+      .getByRole('region', { name: 'Your recent runs' })
+      .getByText('Pier station X')
+      .first()
+      .waitFor()
+    await workspace
+      .getByRole('region', { name: 'Recent batches' })
+      .getByText(/Batch of 2/)
+      .waitFor()
+    await page.screenshot({ path: artifactPath('suites-workspace.png'), fullPage: true })
     await page.close()
   })
 })
