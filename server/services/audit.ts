@@ -24,3 +24,21 @@ export function recordAudit(db: Tx, entry: AuditEntry): void {
     })
     .run()
 }
+
+/** A member's action on one subject of their firm: the audit row most services write. */
+export function auditAction(
+  db: Tx,
+  member: { firmId: string; userId: string },
+  action: string,
+  subject: { type: string; id: string },
+  detail?: Record<string, unknown>,
+): void {
+  recordAudit(db, {
+    firmId: member.firmId,
+    userId: member.userId,
+    action,
+    subjectType: subject.type,
+    subjectId: subject.id,
+    detail,
+  })
+}

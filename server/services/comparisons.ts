@@ -35,7 +35,7 @@ import { comparisons, recordPairs, records, runs, spectra, users } from '../db/s
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
-import { recordAudit } from './audit.js'
+import { auditAction } from './audit.js'
 import { resolveProject } from './projects.js'
 import { assertMayEdit, noteRevision, reviewStateOf, reviewStates } from './reviews.js'
 import { nullIfNaN, resolveComparisonTarget } from './targets.js'
@@ -430,14 +430,13 @@ export function createComparison(db: Db, member: Member, body: CreateInput): Com
           createdAt: now,
         })
         .run()
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'comparison.created',
-        subjectType: 'comparison',
-        subjectId: id,
-        detail: { name: body.name, runs: body.runIds.length, revisionOf: body.revisionOf ?? null },
-      })
+      auditAction(
+        tx,
+        member,
+        'comparison.created',
+        { type: 'comparison', id },
+        { name: body.name, runs: body.runIds.length, revisionOf: body.revisionOf ?? null },
+      )
     },
     { behavior: 'immediate' },
   )
@@ -477,14 +476,13 @@ export function updateComparison(db: Db, member: Member, id: string, body: Updat
         .where(and(eq(comparisons.firmId, member.firmId), eq(comparisons.id, id)))
         .run()
       if (revision !== current.revision) noteRevision(tx, member, subject, revision, Object.keys(body))
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'comparison.updated',
-        subjectType: 'comparison',
-        subjectId: id,
-        detail: { fields: Object.keys(body), revision },
-      })
+      auditAction(
+        tx,
+        member,
+        'comparison.updated',
+        { type: 'comparison', id },
+        { fields: Object.keys(body), revision },
+      )
     },
     { behavior: 'immediate' },
   )

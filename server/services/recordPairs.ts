@@ -6,7 +6,7 @@ import { recordPairs, runs } from '../db/schema.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
-import { recordAudit } from './audit.js'
+import { auditAction } from './audit.js'
 import { getRecord } from './records.js'
 
 /**
@@ -82,14 +82,13 @@ export function createRecordPair(
           createdBy: member.userId,
         })
         .run()
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'record_pair.created',
-        subjectType: 'record_pair',
-        subjectId: pair.id,
-        detail: { name: pair.name, recordIds: pair.recordIds },
-      })
+      auditAction(
+        tx,
+        member,
+        'record_pair.created',
+        { type: 'record_pair', id: pair.id },
+        { name: pair.name, recordIds: pair.recordIds },
+      )
     },
     { behavior: 'immediate' },
   )
@@ -135,14 +134,7 @@ export function removeRecordPair(db: Db, member: Pick<Member, 'userId' | 'firmId
         )
       }
       tx.delete(recordPairs).where(eq(recordPairs.id, id)).run()
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'record_pair.removed',
-        subjectType: 'record_pair',
-        subjectId: id,
-        detail: { name: pair.name },
-      })
+      auditAction(tx, member, 'record_pair.removed', { type: 'record_pair', id }, { name: pair.name })
     },
     { behavior: 'immediate' },
   )

@@ -18,7 +18,8 @@ import { projects, recordPairs, records, runs, users } from '../db/schema.js'
 import { badRequest, conflict, forbidden, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
-import { recordAudit } from './audit.js'
+import { recordSummaryColumns } from '../runs/recordSummaryColumns.js'
+import { auditAction } from './audit.js'
 import { decimateMinMax } from './decimateMinMax.js'
 import { removeOriginal, storeOriginal } from './originals.js'
 import { resolveProject } from './projects.js'
@@ -144,20 +145,19 @@ export function createRecord(
             synthetic: input.synthetic ?? false,
           })
           .run()
-        recordAudit(tx, {
-          firmId: member.firmId,
-          userId: member.userId,
-          action: 'record.uploaded',
-          subjectType: 'record',
-          subjectId: info.id,
-          detail: {
+        auditAction(
+          tx,
+          member,
+          'record.uploaded',
+          { type: 'record', id: info.id },
+          {
             name: info.name,
             sha256,
             fileName,
             points: info.points,
             synthetic: input.synthetic ?? false,
           },
-        })
+        )
       },
       { behavior: 'immediate' },
     )
@@ -178,21 +178,11 @@ const detailColumns = {
   id: records.id,
   name: records.name,
   projectId: records.projectId,
-  points: records.points,
-  dtS: records.dtS,
-  durationS: records.durationS,
-  sourceUnits: records.sourceUnits,
+  ...recordSummaryColumns,
   component: records.component,
-  pgaMPerS2: records.pgaMPerS2,
-  pgvMPerS: records.pgvMPerS,
-  pgdM: records.pgdM,
-  ariasMPerS: records.ariasMPerS,
-  d595S: records.d595S,
-  cavMPerS: records.cavMPerS,
   sha256: records.sha256,
   uploadedBy: records.uploadedBy,
   createdAt: records.createdAt,
-  warnings: records.warnings,
   projectName: projects.name,
   uploaderName: users.name,
   sourceFileName: records.sourceFileName,
@@ -375,24 +365,17 @@ export function removeRecord(db: Db, dataDir: string, member: Member, recordId: 
       }
       for (const pairId of pairIds) {
         tx.delete(recordPairs).where(eq(recordPairs.id, pairId)).run()
-        recordAudit(tx, {
-          firmId: member.firmId,
-          userId: member.userId,
-          action: 'record_pair.deleted',
-          subjectType: 'record_pair',
-          subjectId: pairId,
-          detail: { reason: 'record deleted', recordId },
-        })
+        auditAction(
+          tx,
+          member,
+          'record_pair.deleted',
+          { type: 'record_pair', id: pairId },
+          { reason: 'record deleted', recordId },
+        )
       }
       tx.delete(records).where(eq(records.id, recordId)).run()
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'record.deleted',
-        subjectType: 'record',
-        subjectId: recordId,
-        detail: { name: record.name, sha256: record.sha256 },
-      })
+      const deleted = { name: record.name, sha256: record.sha256 }
+      auditAction(tx, member, 'record.deleted', { type: 'record', id: recordId }, deleted)
     },
     { behavior: 'immediate' },
   )
@@ -416,14 +399,8 @@ export function renameRecord(
       if (!current) throw notFound('The record')
       if (current.name === input.name) return
       tx.update(records).set({ name: input.name }).where(eq(records.id, recordId)).run()
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'record.renamed',
-        subjectType: 'record',
-        subjectId: recordId,
-        detail: { from: current.name, to: input.name },
-      })
+      const renamed = { from: current.name, to: input.name }
+      auditAction(tx, member, 'record.renamed', { type: 'record', id: recordId }, renamed)
     },
     { behavior: 'immediate' },
   )

@@ -29,7 +29,7 @@ import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { appLink } from '../mail/links.js'
 import { type ReviewNotice, reviewNoticeMail } from '../mail/templates.js'
-import { recordAudit } from './audit.js'
+import { auditAction } from './audit.js'
 import { enqueueMail } from './mail.js'
 
 /** The work a review is about, as the review rules need it. */
@@ -45,20 +45,33 @@ interface Subject {
   ready: boolean
 }
 
+/** The firm's runs as review work: who made them, their state, revision and the name of what they ran. */
+function selectRuns(db: Tx, firmId: string, where: SQL) {
+  return db
+    .select({
+      id: runs.id,
+      createdBy: runs.createdBy,
+      status: runs.status,
+      revision: runs.revision,
+      name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
+    })
+    .from(runs)
+    .leftJoin(records, eq(records.id, runs.recordId))
+    .leftJoin(recordPairs, eq(recordPairs.id, runs.pairId))
+    .where(and(eq(runs.firmId, firmId), where))
+}
+
+/** The firm's comparisons as review work (whole rows: a comparison row is small). */
+function selectComparisons(db: Tx, firmId: string, where: SQL) {
+  return db
+    .select()
+    .from(comparisons)
+    .where(and(eq(comparisons.firmId, firmId), where))
+}
+
 function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string): Subject {
   if (type === 'run') {
-    const run = db
-      .select({
-        createdBy: runs.createdBy,
-        status: runs.status,
-        revision: runs.revision,
-        name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
-      })
-      .from(runs)
-      .leftJoin(records, eq(records.id, runs.recordId))
-      .leftJoin(recordPairs, eq(recordPairs.id, runs.pairId))
-      .where(and(eq(runs.firmId, firmId), eq(runs.id, id)))
-      .get()
+    const run = selectRuns(db, firmId, eq(runs.id, id)).get()
     if (!run) throw notFound('The run')
     return {
       type,
@@ -70,16 +83,7 @@ function loadSubject(db: Tx, firmId: string, type: ReviewSubjectType, id: string
       ready: run.status === 'succeeded',
     }
   }
-  const comparison = db
-    .select({
-      createdBy: comparisons.createdBy,
-      name: comparisons.name,
-      runIds: comparisons.runIds,
-      revision: comparisons.revision,
-    })
-    .from(comparisons)
-    .where(and(eq(comparisons.firmId, firmId), eq(comparisons.id, id)))
-    .get()
+  const comparison = selectComparisons(db, firmId, eq(comparisons.id, id)).get()
   if (!comparison) throw notFound('The comparison')
   const runAuthors =
     comparison.runIds.length === 0
@@ -224,28 +228,12 @@ function toReviews(db: Tx, firmId: string, rows: ReviewRow[]): Review[] {
   const comparisonIds = rows.filter((r) => r.subjectType === 'comparison').map((r) => r.subjectId)
   const subjects = new Map<string, { name: string; createdBy: string; revision: number }>()
   if (runIds.length > 0) {
-    db.select({
-      id: runs.id,
-      createdBy: runs.createdBy,
-      revision: runs.revision,
-      name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
-    })
-      .from(runs)
-      .leftJoin(records, eq(records.id, runs.recordId))
-      .leftJoin(recordPairs, eq(recordPairs.id, runs.pairId))
-      .where(and(eq(runs.firmId, firmId), inArray(runs.id, runIds)))
+    selectRuns(db, firmId, inArray(runs.id, runIds))
       .all()
       .forEach((s) => subjects.set(`run:${s.id}`, s))
   }
   if (comparisonIds.length > 0) {
-    db.select({
-      id: comparisons.id,
-      createdBy: comparisons.createdBy,
-      revision: comparisons.revision,
-      name: comparisons.name,
-    })
-      .from(comparisons)
-      .where(and(eq(comparisons.firmId, firmId), inArray(comparisons.id, comparisonIds)))
+    selectComparisons(db, firmId, inArray(comparisons.id, comparisonIds))
       .all()
       .forEach((s) => subjects.set(`comparison:${s.id}`, s))
   }
@@ -416,20 +404,19 @@ export function submitReview(
           })
           .run()
       }
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: existing ? 'review.resubmitted' : 'review.submitted',
-        subjectType: body.subjectType,
-        subjectId: body.subjectId,
-        detail: {
+      auditAction(
+        tx,
+        member,
+        existing ? 'review.resubmitted' : 'review.submitted',
+        { type: body.subjectType, id: body.subjectId },
+        {
           reviewId: id,
           from: existing?.state ?? 'draft',
           to: 'submitted',
           subjectName: subject.name,
           revision: subject.revision,
         },
-      })
+      )
       queueNotices(tx, member, subject, 'submitted', checkersOf(tx, member.firmId, member.userId), origin)
       return { reviewId: id, created: !existing }
     },
@@ -502,14 +489,13 @@ export function decideReview(
       const commentId = body.comment
         ? insertComment(tx, reviewId, member.userId, body.comment, now)
         : undefined
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: `review.${body.decision}`,
-        subjectType: review.subjectType,
-        subjectId: review.subjectId,
-        detail: { reviewId, from: 'submitted', to: body.decision, commentId, revision: subject.revision },
-      })
+      auditAction(
+        tx,
+        member,
+        `review.${body.decision}`,
+        { type: review.subjectType, id: review.subjectId },
+        { reviewId, from: 'submitted', to: body.decision, commentId, revision: subject.revision },
+      )
       const engineer = tx
         .select({ email: users.email, name: users.name })
         .from(users)
@@ -539,14 +525,13 @@ export function addReviewComment(
         .get()
       if (!review) throw notFound('The review')
       const commentId = insertComment(tx, reviewId, member.userId, body.body, at)
-      recordAudit(tx, {
-        firmId: member.firmId,
-        userId: member.userId,
-        action: 'review.commented',
-        subjectType: review.subjectType,
-        subjectId: review.subjectId,
-        detail: { reviewId, commentId },
-      })
+      auditAction(
+        tx,
+        member,
+        'review.commented',
+        { type: review.subjectType, id: review.subjectId },
+        { reviewId, commentId },
+      )
       return commentId
     },
     { behavior: 'immediate' },

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { namedIdSchema } from './common.js'
 
 export const roleSchema = z.enum(['engineer', 'checker', 'admin'])
 export type Role = z.infer<typeof roleSchema>
@@ -18,7 +19,7 @@ export const passwordSchema = z
 /** The answer of sign-in and of GET /api/me. */
 export const sessionInfoSchema = z.object({
   user: z.object({ id: z.string(), email: z.string(), name: z.string() }),
-  firm: z.object({ id: z.string(), name: z.string() }),
+  firm: namedIdSchema,
   roles: z.array(roleSchema),
 })
 export type SessionInfo = z.infer<typeof sessionInfoSchema>

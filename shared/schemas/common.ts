@@ -4,6 +4,9 @@ import { z } from 'zod'
 export const idSchema = z.uuid('Expected an id.')
 export const idParamsSchema = z.strictObject({ id: idSchema })
 
+/** Something the API names beside its id: a member who made or checked work, a firm. */
+export const namedIdSchema = z.object({ id: z.string(), name: z.string() })
+
 /** The one error shape of the whole API. */
 export const apiErrorSchema = z.object({
   error: z.object({

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { combinationSchema } from '../vocabulary/combinations.js'
-import { idSchema } from './common.js'
+import { idSchema, namedIdSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 import { targetDefinitionSchema, targetInputSchema } from './targets.js'
 
@@ -115,7 +115,7 @@ export const comparisonSummarySchema = z.object({
   revision: z.number().int(),
   revisionOf: z.string().nullable(),
   reviewState: reviewStateSchema,
-  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdBy: namedIdSchema,
   createdAt: z.number(),
   updatedAt: z.number().nullable(),
 })

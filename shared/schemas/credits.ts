@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { namedIdSchema } from './common.js'
 import { creditPackIds } from '../credits/creditPacks.js'
 
 export const ledgerKindSchema = z.enum(['grant', 'purchase', 'run_reserved', 'run_returned'])
@@ -67,7 +68,7 @@ export const purchaseSchema = z.object({
   chargeId: z.string().nullable(),
   failureCode: z.string().nullable(),
   failureMessage: z.string().nullable(),
-  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdBy: namedIdSchema,
   createdAt: z.number(),
   finishedAt: z.number().nullable(),
 })

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { REVIEW_DECISIONS, STORED_REVIEW_STATES } from '../vocabulary/reviewStates.js'
-import { idSchema } from './common.js'
+import { idSchema, namedIdSchema } from './common.js'
 
 export { reviewStateSchema, type ReviewState } from '../vocabulary/reviewStates.js'
 
@@ -50,11 +50,9 @@ export const reviewListQuerySchema = z.strictObject({
 })
 export type ReviewListQuery = z.infer<typeof reviewListQuerySchema>
 
-const person = z.object({ id: z.string(), name: z.string() })
-
 export const reviewCommentSchema = z.object({
   id: z.string(),
-  author: person,
+  author: namedIdSchema,
   body: z.string(),
   createdAt: z.number(),
 })
@@ -68,13 +66,13 @@ export const reviewSchema = z.object({
   /** The run's record or pair name, or the comparison's name. */
   subjectName: z.string(),
   /** Who made the work (ran the run or created the comparison). */
-  subjectAuthor: person,
+  subjectAuthor: namedIdSchema,
   /** The work's revision now: a change to returned work raises it, and the thread says so. */
   subjectRevision: z.number().int(),
   state: z.enum(STORED_REVIEW_STATES),
-  submittedBy: person,
+  submittedBy: namedIdSchema,
   submittedAt: z.number(),
-  decidedBy: person.nullable(),
+  decidedBy: namedIdSchema.nullable(),
   decidedAt: z.number().nullable(),
   commentCount: z.number().int(),
   createdAt: z.number(),

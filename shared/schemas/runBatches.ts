@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { COMBINATIONS } from '../vocabulary/combinations.js'
-import { idSchema } from './common.js'
+import { idSchema, namedIdSchema } from './common.js'
 import {
   runCombinationSchema,
   runProgressEventSchema,
@@ -108,7 +108,7 @@ export const runBatchSummarySchema = z.object({
   counts: runBatchCountsSchema,
   /** Every run has succeeded or failed. */
   finished: z.boolean(),
-  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdBy: namedIdSchema,
   createdAt: z.number(),
 })
 export type RunBatchSummary = z.infer<typeof runBatchSummarySchema>

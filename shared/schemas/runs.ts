@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { type Combination, combinationSchema } from '../vocabulary/combinations.js'
 import { runStatusSchema } from '../vocabulary/runStatuses.js'
-import { idSchema } from './common.js'
+import { idSchema, namedIdSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 
 /** Limits of a run's settings (runs issue): what one credit buys. */
@@ -193,7 +193,7 @@ export const runSchema = z.object({
   engineVersion: z.string().nullable(),
   /** Milliseconds: time queued, time computing in the worker, total. */
   timings: z.record(z.string(), z.number()).nullable(),
-  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdBy: namedIdSchema,
   createdAt: z.number(),
   startedAt: z.number().nullable(),
   finishedAt: z.number().nullable(),

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { idSchema } from './common.js'
+import { idSchema, namedIdSchema } from './common.js'
 
 /** At most this many periods in a preview or a user target. */
 export const MAX_TARGET_POINTS = 5000
@@ -142,7 +142,7 @@ export const targetSchema = z.object({
   name: z.string(),
   definition: targetDefinitionSchema,
   label: z.string(),
-  createdBy: z.object({ id: z.string(), name: z.string() }),
+  createdBy: namedIdSchema,
   createdAt: z.number(),
 })
 export type Target = z.infer<typeof targetSchema>
