@@ -53,5 +53,25 @@ export function useFieldErrors<F extends string>(fields: readonly F[]) {
     }
   }
 
-  return { errors, formMessage, clear, fromIssues, fromError }
+  /**
+   * A form that sets a password: the parse of its body (issues go beside their fields), then
+   * the repeated password, which must equal the first. Returns the body, or null when not valid.
+   */
+  function checkedWithRepeat<T>(
+    parsed: { success: true; data: T } | { success: false; error: { issues: readonly Issue[] } },
+    password: string,
+    repeat: string,
+  ): T | null {
+    if (!parsed.success) {
+      fromIssues(parsed.error.issues)
+      return null
+    }
+    if (repeat !== password) {
+      fromIssues([{ path: ['repeat'], message: 'The two passwords differ.' }])
+      return null
+    }
+    return parsed.data
+  }
+
+  return { errors, formMessage, clear, fromIssues, fromError, checkedWithRepeat }
 }
