@@ -16,7 +16,7 @@ export const METRES_PER_INCH = 0.0254
 export const SOURCE_UNIT_LABELS: Readonly<Record<SourceUnits, string>> = {
   g: 'g',
   'm/s2': 'm/s²',
-  'cm/s2': 'cm/s²',
+  'cm/s2': 'cm/s² (gal)',
   'in/s2': 'in/s²',
 }
 

@@ -1,4 +1,5 @@
 import type { ProcessingStep, RecordProcessing } from '../../schemas/processing.js'
+import { isSourceUnits, unitsStatement } from '../units.js'
 
 const num = (x: number) => Number(x.toPrecision(4)).toString()
 
@@ -36,10 +37,9 @@ export function describeProcessing(
   processing: RecordProcessing | null | undefined,
   sourceUnits: string,
 ): string {
-  const read =
-    sourceUnits === 'm/s2' || sourceUnits === 'm/s²'
-      ? 'read in m/s²'
-      : `read in ${sourceUnits} and converted to m/s² (g = 9.80665 m/s²)`
+  const units = sourceUnits === 'm/s²' ? 'm/s2' : sourceUnits
+  const stated = isSourceUnits(units) ? unitsStatement(units) : `Read in ${sourceUnits}`
+  const read = stated.charAt(0).toLowerCase() + stated.slice(1)
   if (!processing)
     return `Record as received: ${read}; no baseline correction or filtering applied by Ordinate.`
   const steps = processing.chain.map(

@@ -1,13 +1,8 @@
 import { formatSignificant } from '../../../shared/charts/units'
-import { STANDARD_GRAVITY_M_PER_S2, type SourceUnits } from '../../../shared/spectra/units'
+import { STANDARD_GRAVITY_M_PER_S2 } from '../../../shared/spectra/units'
 
-/** How each source unit is written on screen. */
-export const SOURCE_UNIT_LABELS: Readonly<Record<SourceUnits, string>> = {
-  g: 'g',
-  'm/s2': 'm/s²',
-  'cm/s2': 'cm/s² (gal)',
-  'in/s2': 'in/s²',
-}
+/** How each source unit is written, on screen as on sheets. */
+export { SOURCE_UNIT_LABELS } from '../../../shared/spectra/units'
 
 /** An acceleration in m/s² as a multiple of standard gravity (9.80665 m/s²). */
 export function toG(accelMPerS2: number): number {
