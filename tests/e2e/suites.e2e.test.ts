@@ -177,4 +177,23 @@ describe('suites in the browser', () => {
     await page.screenshot({ path: artifactPath('suites-workspace.png'), fullPage: true })
     await page.close()
   })
+
+  it('makes a personal API token shown once, which scripts use until it is revoked', async () => {
+    const page = await engineerOn('/account')
+    await page.locator('[data-test="token-name"] input').fill('Suite scripts')
+    await page.locator('[data-test="create-token"]').click()
+    const secret = (await page.locator('[data-test="token-secret"]').innerText()).trim()
+    expect(secret).toMatch(/^ordt_/)
+    await page.locator('[data-test="tokens-table"]').getByText('Suite scripts').waitFor()
+    expect(await page.locator('[data-test="tokens-table"]').innerText()).not.toContain(secret)
+
+    const asScript = () =>
+      page.request.get(`${env.server.url}/api/records`, { headers: { Authorization: `Bearer ${secret}` } })
+    expect((await asScript()).status()).toBe(200)
+    await page.locator('[data-test="revoke-token"]').first().click()
+    await page.getByRole('button', { name: 'Revoke', exact: true }).last().click()
+    await page.locator('[data-test="tokens-table"]').getByText('No tokens yet.').waitFor()
+    expect((await asScript()).status()).toBe(401)
+    await page.close()
+  })
 })
