@@ -37,7 +37,7 @@ describe('the record library in the browser', () => {
     await page.waitForURL(/\/records$/)
     const table = page.locator('[data-test="records-table"]')
     await table.getByText('Synthetic far-field noise').waitFor()
-    expect(await table.getByText('synthetic', { exact: true }).count()).toBe(3)
+    expect(await table.getByText('synthetic', { exact: true }).count()).toBe(5)
     await page.close()
   })
 
