@@ -374,10 +374,14 @@ export async function renderSheetPdf(sheetModel: Sheet): Promise<Buffer> {
   })
   writer.heading(++section, 'Method')
   writer.fields(sheet.method)
+  const svg = chartSvg(sheet.chart)
   const chartWidthPx = sheet.chart.options.widthPx ?? 720
-  const chartHeightPx = sheet.chart.options.heightPx ?? 440
+  // A long legend makes the chart taller than asked (shared/charts/spectrumChart.ts): use its own height.
+  const chartHeightPx = Number(
+    /viewBox="0 0 [\d.]+ ([\d.]+)"/.exec(svg)?.[1] ?? sheet.chart.options.heightPx ?? 440,
+  )
   writer.heading(++section, 'Spectrum', (WIDTH * chartHeightPx) / chartWidthPx)
-  writer.chart(chartSvg(sheet.chart), chartWidthPx, chartHeightPx)
+  writer.chart(svg, chartWidthPx, chartHeightPx)
   if (sheet.comparison) {
     writer.heading(++section, 'Target and scaling')
     writer.fields(sheet.comparison.target)

@@ -47,6 +47,23 @@ describe('layoutLegend', () => {
     expect(layout.entries[2]?.line).toBe(1 + (target?.lines.length ?? 0))
   })
 
+  it('gives an entry too long for its half a line of its own, keeping the others two to a line', () => {
+    const layout = layoutLegend(
+      ['Record A, ζ = 5%', 'Record B, ζ = 5%', TARGET, 'Mean', '90% of target'],
+      box,
+    )
+    expect(layout.columns).toBe(2)
+    expect(layout.entries.map((e) => [e.column, e.line])).toEqual([
+      [0, 0],
+      [1, 0],
+      [0, 1],
+      [0, 2],
+      [1, 2],
+    ])
+    expect(layout.entries[2]?.lines).toEqual([TARGET])
+    expect(layout.lineCount).toBe(3)
+  })
+
   it('keeps one column below the two-column width', () => {
     expect(layoutLegend(['a', 'b'], { ...box, widthPx: 500 }).columns).toBe(1)
   })

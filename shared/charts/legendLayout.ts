@@ -53,7 +53,7 @@ export function wrapText(text: string, widthPx: number, fontSizePx: number): str
 }
 
 export interface LegendPlacement {
-  /** Column of the entry, 0 or 1. */
+  /** Column of the entry: 0 (the left half, or the whole width for a wrapped entry) or 1. */
   column: number
   /** Line of the legend the entry's first line sits on, from 0. */
   line: number
@@ -61,6 +61,7 @@ export interface LegendPlacement {
 }
 
 export interface LegendLayout {
+  /** 2 when any entry sits in the right half. */
   columns: number
   /** How many lines the legend takes. */
   lineCount: number
@@ -68,34 +69,37 @@ export interface LegendLayout {
 }
 
 /**
- * Places legend texts in a box `widthPx` wide. Two columns when there is more than one entry
- * and each fits its half on one line; otherwise one column, each entry wrapped to its lines.
- * `indentPx` is the room each entry's swatch takes before its text.
+ * Places legend texts in a box `widthPx` wide, in order. Where the box is wide enough
+ * (`minTwoColumnWidthPx`), entries that fit half the width go two to a line; an entry too long
+ * for its half takes the whole width on a line of its own, wrapped onto as many lines as it
+ * needs. `indentPx` is the room each entry's swatch takes before its text.
  */
 export function layoutLegend(
   texts: string[],
   options: { widthPx: number; fontSizePx: number; indentPx: number; minTwoColumnWidthPx?: number },
 ): LegendLayout {
   const { widthPx, fontSizePx, indentPx } = options
+  const halves = texts.length > 1 && widthPx >= (options.minTwoColumnWidthPx ?? 0)
   const halfText = widthPx / 2 - indentPx - 10
-  const twoColumns =
-    texts.length > 1 &&
-    widthPx >= (options.minTwoColumnWidthPx ?? 0) &&
-    texts.every((t) => estimateTextWidthPx(t, fontSizePx) <= halfText)
-  if (twoColumns) {
-    return {
-      columns: 2,
-      lineCount: Math.ceil(texts.length / 2),
-      entries: texts.map((t, i) => ({ column: i % 2, line: Math.floor(i / 2), lines: [t] })),
-    }
-  }
-  const textWidth = Math.max(fontSizePx * 4, widthPx - indentPx)
+  const fullText = Math.max(fontSizePx * 4, widthPx - indentPx)
   let line = 0
-  const entries = texts.map((t) => {
-    const lines = wrapText(t, textWidth, fontSizePx)
-    const placed = { column: 0, line, lines }
-    line += lines.length
+  let column = 0
+  const entries = texts.map((text): LegendPlacement => {
+    if (halves && estimateTextWidthPx(text, fontSizePx) <= halfText) {
+      const placed = { column, line, lines: [text] }
+      if (column === 1) line++
+      column = 1 - column
+      return placed
+    }
+    if (column === 1) line++
+    column = 0
+    const placed = { column: 0, line, lines: wrapText(text, fullText, fontSizePx) }
+    line += placed.lines.length
     return placed
   })
-  return { columns: 1, lineCount: line, entries }
+  return {
+    columns: entries.some((e) => e.column === 1) ? 2 : 1,
+    lineCount: line + column,
+    entries,
+  }
 }

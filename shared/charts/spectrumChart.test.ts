@@ -146,6 +146,27 @@ describe('spectrumChartSvg', () => {
     expect(svg).toContain('stroke-dasharray="7 4"')
   })
 
+  it('grows the figure for a long legend rather than squeeze the plot below half of it', () => {
+    const series = Array.from({ length: 12 }, (_, i) => ({
+      label: `Synthetic record ${i + 1} of the Tidewater Library Annex suite, component H${(i % 2) + 1}`,
+      periodsS,
+      values: recordPsa,
+      role: 'record' as const,
+      dampingRatio: 0.05,
+    }))
+    const { svg, frame } = buildSpectrumChart({ series }, { quantity: 'PSA', widthPx: 560, heightPx: 342 })
+    expect(frame.heightPx).toBeGreaterThan(342)
+    expect(frame.plot.height).toBeGreaterThanOrEqual(342 / 2 - 14)
+    expect(svg).toContain(`viewBox="0 0 560 ${frame.heightPx}"`)
+    const lastY = Math.max(...[...svg.matchAll(/<text x="[\d.]+" y="([\d.]+)"/g)].map((m) => Number(m[1])))
+    expect(lastY).toBeLessThan(frame.heightPx)
+    expect(svg).toContain('component H2, ζ = 5%')
+  })
+
+  it('keeps the asked-for height when the legend fits', () => {
+    expect(buildSpectrumChart(demoData(), { quantity: 'PSA' }).frame.heightPx).toBe(440)
+  })
+
   it('prints damping ratios without binary noise', () => {
     const data: SpectrumChartData = {
       series: [{ label: 'r', periodsS: [0.1, 1], values: [1, 1], role: 'record', dampingRatio: 0.07 }],

@@ -197,7 +197,7 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   const xKind = options.xScale ?? 'log'
   const yKind = options.yScale ?? 'linear'
   const widthPx = options.widthPx ?? 720
-  const heightPx = options.heightPx ?? 440
+  const requestedHeightPx = options.heightPx ?? 440
   const id = safeId(options.id ?? 'ordinate-spectrum')
 
   if (data.shortfall) {
@@ -232,6 +232,8 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   )
   const noteLines = options.note ? wrapText(options.note, legendWidthPx, NOTE_FONT_SIZE_PX) : []
   const bottomPx = 44 + (legend.lineCount + noteLines.length) * LEGEND_ROW_PX + 8
+  // A long legend makes the figure taller rather than squeeze the plot below half of it.
+  const heightPx = Math.max(requestedHeightPx, Math.round(plot.top + requestedHeightPx / 2 + bottomPx))
   plot.width = Math.max(40, widthPx - plot.left - 20)
   plot.height = Math.max(40, heightPx - plot.top - bottomPx)
 
@@ -384,11 +386,10 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   }
 
   const legendTop = plot.top + plot.height + 52
-  const columnWidth = legendWidthPx / legend.columns
   legendEntries.forEach((entry, i) => {
     const placed = legend.entries[i]
     if (!placed) return
-    const lx = plot.left + placed.column * columnWidth
+    const lx = plot.left + (placed.column * legendWidthPx) / 2
     const ly = legendTop + placed.line * LEGEND_ROW_PX
     let swatch: string
     if (entry.kind === 'band') {
