@@ -74,7 +74,12 @@ export interface TripartiteChart extends SpectrumChart {
   units: TripartiteUnits
 }
 
-function toPsv(quantity: SpectrumQuantity, periodsS: ArrayLike<number>, values: ArrayLike<number>) {
+/** PSV (m/s) from values of `quantity` in SI at their periods; a RangeError for SA or SV. */
+export function toPsv(
+  quantity: SpectrumQuantity,
+  periodsS: ArrayLike<number>,
+  values: ArrayLike<number>,
+): number[] {
   const convert = PSV_FROM[quantity]
   if (!convert) throw new RangeError(`the four-way plot needs PSA, PSV or SD values, not ${quantity}`)
   return Array.from(values, (v, i) => convert(v, periodsS[i] ?? Number.NaN))
