@@ -6,7 +6,8 @@ import { eq } from 'drizzle-orm'
 import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { memberships } from '../../server/db/schema.js'
-import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
+import { binary, runFinished } from '../support/exportFiles.js'
 import { insertRecord, setCredits, userIdOf } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -17,30 +18,11 @@ let runId: string
 let comparisonId: string
 let scratch: string
 
-function finished(id: string): Promise<RunEvent> {
-  return new Promise((resolve) => {
-    const off = queue.subscribe(id, (event) => {
-      if (event.type === 'status' && (event.status === 'succeeded' || event.status === 'failed')) {
-        off()
-        resolve(event)
-      }
-    })
-  })
-}
-
 async function startRun(recordId: string): Promise<string> {
   const res = await engineer.post('/api/runs').send({ recordId, dampingRatios: [0.05] })
   expect(res.status).toBe(202)
-  await expect(finished(res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
+  await expect(runFinished(queue, res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
   return res.body.id as string
-}
-
-function binary(req: request.Test): request.Test {
-  return req.buffer(true).parse((res, done) => {
-    const chunks: Buffer[] = []
-    res.on('data', (c: Buffer) => chunks.push(c))
-    res.on('end', () => done(null, Buffer.concat(chunks)))
-  })
 }
 
 /** The SVG export as text (supertest does not buffer image/svg+xml as text). */
