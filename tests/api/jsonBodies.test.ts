@@ -69,7 +69,7 @@ describe.each(routeTable.filter((r) => r.body === 'json').map((r) => [routeKey(r
       { title: 'a list instead of an object', raw: () => '[]' },
       { title: 'a bare JSON string', raw: () => '"text"' },
       { title: 'text that is not JSON', raw: () => '{"name": ', message: () => /not valid JSON/ },
-      { title: 'an empty object (missing fields)', raw: () => '{}' },
+      ...(r.emptyBodyValid ? [] : [{ title: 'an empty object (missing fields)', raw: () => '{}' }]),
       {
         title: 'an unknown field beside valid ones',
         raw: () => JSON.stringify({ ...valid(), surplusField: 1 }),

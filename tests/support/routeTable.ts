@@ -50,6 +50,8 @@ export interface RouteSpec {
   token?: TokenKind
   /** The request body: a JSON object validated by a strict zod schema, or a multipart upload. */
   body?: 'json' | 'multipart'
+  /** Every field of the JSON body is optional, so `{}` is a valid request (a preview of no change). */
+  emptyBodyValid?: boolean
   /** A body the route accepts (for JSON bodies): the input sweeps change it one way at a time. */
   validBody?: (ids: WorldIds) => Record<string, unknown>
   /** The route parses a strict query schema (unknown parameters answer 400). */
@@ -175,6 +177,24 @@ export const routeTable: RouteSpec[] = [
     validBody: () => ({ name: 'Demo world H1, renamed' }),
   },
   { method: 'GET', path: '/records/:id/samples', access: 'member', id: 'record', query: true },
+  {
+    method: 'POST',
+    path: '/records/:id/processing/preview',
+    access: 'records.upload',
+    id: 'record',
+    body: 'json',
+    emptyBodyValid: true,
+    validBody: () => ({ baseline: { order: 0 } }),
+  },
+  {
+    method: 'POST',
+    path: '/records/:id/processed',
+    access: 'records.upload',
+    id: 'record',
+    body: 'json',
+    validBody: () => ({ baseline: { order: 0 }, name: 'Demo world H1, mean removed' }),
+  },
+  { method: 'GET', path: '/records/:id/fourier', access: 'member', id: 'record' },
   { method: 'DELETE', path: '/records/:id', access: 'member', id: 'record' },
   { method: 'GET', path: '/record-pairs', access: 'member' },
   {
@@ -221,9 +241,9 @@ export const routeTable: RouteSpec[] = [
   { method: 'GET', path: '/run-batches/:id/events', access: 'member', id: 'batch' },
   { method: 'GET', path: '/runs/:id', access: 'member', id: 'run' },
   { method: 'GET', path: '/runs/:id/spectrum', access: 'member', id: 'run' },
-  { method: 'GET', path: '/runs/:id/spectrum.csv', access: 'member', id: 'run' },
+  { method: 'GET', path: '/runs/:id/spectrum.csv', access: 'member', id: 'run', query: true },
   { method: 'GET', path: '/runs/:id/events', access: 'member', id: 'run' },
-  { method: 'GET', path: '/runs/:id/sheet', access: 'member', id: 'run' },
+  { method: 'GET', path: '/runs/:id/sheet', access: 'member', id: 'run', query: true },
   { method: 'GET', path: '/runs/:id/export.:format', access: 'member', id: 'run', query: true },
 
   { method: 'GET', path: '/credits', access: 'member' },
@@ -297,7 +317,7 @@ export const routeTable: RouteSpec[] = [
     body: 'json',
     validBody: () => ({ name: 'Suite A, revised' }),
   },
-  { method: 'GET', path: '/comparisons/:id/sheet', access: 'member', id: 'comparison' },
+  { method: 'GET', path: '/comparisons/:id/sheet', access: 'member', id: 'comparison', query: true },
   { method: 'GET', path: '/comparisons/:id/export.:format', access: 'member', id: 'comparison', query: true },
 
   {
