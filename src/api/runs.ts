@@ -10,6 +10,7 @@ import {
   runStatusEventSchema,
 } from '../../shared/schemas/runs'
 import { type SpectrumResult, spectrumResultSchema } from '../../shared/schemas/spectrum'
+import { isFinished } from '../../shared/vocabulary/runStatuses'
 import { apiRequest } from './client'
 
 export type { CreateRunBody, Run, RunMethod, RunSettings, RunStatus } from '../../shared/schemas/runs'
@@ -77,7 +78,7 @@ export function followRun(id: string, handlers: RunEventHandlers): () => void {
     const parsed = runStatusEventSchema.safeParse(read((event as MessageEvent<string>).data))
     if (!parsed.success) return
     handlers.onStatus(parsed.data)
-    if (parsed.data.status === 'succeeded' || parsed.data.status === 'failed') source.close()
+    if (isFinished(parsed.data.status)) source.close()
   })
   return () => source.close()
 }
