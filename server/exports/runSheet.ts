@@ -13,12 +13,14 @@ import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 import { dampingLabel } from '../../shared/charts/spectrumChart.js'
 import { FILE_UNITS, unitsStatement } from '../../shared/charts/unitSystems.js'
 import { type DisplayUnit, formatSignificant, fromSI } from '../../shared/charts/units.js'
+import { withUsableBand } from '../../shared/charts/withUsableBand.js'
 import type { RecordProcessing } from '../../shared/schemas/processing.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 import type { MethodStatement } from '../../shared/spectra/computeSpectrum.js'
 import {
   describeProcessing,
   usableBandCautionFor,
+  usablePeriodLimit,
 } from '../../shared/spectra/processing/describeProcessing.js'
 import { CAV_LABEL, type RecordParameters } from '../../shared/spectra/recordParameters.js'
 import { SOURCE_UNIT_LABELS, STANDARD_GRAVITY_M_PER_S2, isSourceUnits } from '../../shared/spectra/units.js'
@@ -287,7 +289,10 @@ export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
     ...dates,
     records: facts.records.map((r) => recordSection(r, false, facts.units)),
     method: methodFields(facts),
-    chart: runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
+    chart: withUsableBand(
+      runSpectrumChartInput(facts.spectrum, facts.subjectName, facts.view ?? DEFAULT_SPECTRUM_VIEW),
+      usablePeriodLimit(facts.records),
+    ),
     tables: [runOrdinateTable(facts.spectrum, single ? single.pgaMPerS2 : null)],
     comparison: null,
     warnings: [

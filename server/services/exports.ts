@@ -39,6 +39,8 @@ import { type ReviewFacts, ordinateVersion } from '../exports/sheetParts.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import type { Member } from '../middleware/auth.js'
 import { recordSummaryColumns } from '../runs/recordSummaryColumns.js'
+import { runSpectrumChartInputWithBand } from '../../shared/charts/withUsableBand.js'
+import { usablePeriodLimit } from '../../shared/spectra/processing/describeProcessing.js'
 import { recordAudit } from './audit.js'
 import { decodeRecordProcessing } from './recordProcessing.js'
 import { getComparisonView } from './comparisons.js'
@@ -298,7 +300,7 @@ function loadExport(
           gravityMPerS2: STANDARD_GRAVITY_M_PER_S2,
         }),
       chart: () =>
-        runSpectrumChartInput(spectrum, subjectName, {
+        runSpectrumChartInputWithBand(usablePeriodLimit(recordList), spectrum, subjectName, {
           quantity: query.quantity ?? DEFAULT_SPECTRUM_VIEW.quantity,
           // A quantity without a unit takes the quantity's default unit, as the chart does.
           unit: query.unit ?? (query.quantity ? undefined : DEFAULT_SPECTRUM_VIEW.unit),

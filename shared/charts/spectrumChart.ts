@@ -75,6 +75,8 @@ export interface SpectrumChartOptions {
   note?: string
   /** Vertical lines marking a period range, e.g. the scaling range 0.2T₁–2T₁. */
   periodRange?: { minS: number; maxS: number; label?: string }
+  /** Longest usable period of a high-pass filtered record, s: longer periods are shaded. */
+  usablePeriodMaxS?: number
   /** Fixes the period axis (s) instead of fitting the data. */
   xDomainS?: [number, number]
   /** Fixes the ordinate axis, in the display unit. */
@@ -283,6 +285,14 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
         `<rect x="${px(x(lo))}" y="${px(plot.top)}" width="${px(x(hi) - x(lo))}" height="${px(plot.height)}" fill="${palette.ochreSoft}" fill-opacity="0.7" data-role="period-range"/>`,
       )
     }
+  }
+  // Periods beyond the usable band of a filtered record, greyed under the grid and the curves.
+  if (options.usablePeriodMaxS !== undefined && options.usablePeriodMaxS < xDomainS[1]) {
+    const lo = Math.max(options.usablePeriodMaxS, xDomainS[0])
+    parts.push(
+      `<rect x="${px(x(lo))}" y="${px(plot.top)}" width="${px(x(xDomainS[1]) - x(lo))}" height="${px(plot.height)}" fill="${palette.gridMajor}" fill-opacity="0.45" data-role="outside-usable-band"/>`,
+      `<text x="${px(plot.left + plot.width - 4)}" y="${px(plot.top + plot.height - 6)}" text-anchor="end" fill="${palette.textMuted}">${escapeXml(`Beyond the usable band (T > ${Number(options.usablePeriodMaxS.toPrecision(3))} s)`)}</text>`,
+    )
   }
   parts.push(`<g>${xGridMarkup(x, xTicks, plot)}${yGridMarkup(y, yTicks, plot)}</g>`)
 

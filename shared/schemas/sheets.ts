@@ -52,6 +52,8 @@ export const spectrumChartInputSchema = z.object({
     title: z.string().optional(),
     note: z.string().optional(),
     periodRange: z.object({ minS: z.number(), maxS: z.number(), label: z.string().optional() }).optional(),
+    /** Longest usable period of a high-pass filtered record, s; longer periods are shaded. */
+    usablePeriodMaxS: z.number().optional(),
     xDomainS: z.tuple([z.number(), z.number()]).optional(),
     yDomain: z.tuple([z.number(), z.number()]).optional(),
     id: z.string().optional(),

@@ -7,6 +7,7 @@ import { decodeSamples, encodeSamples } from '../../server/services/sampleBlob.j
 import { processRecord } from '../../shared/spectra/processing/processRecord.js'
 import { runOrdinatesCsv } from '../../server/exports/ordinatesCsv.js'
 import { buildRunSheetFromFacts } from '../../server/exports/runSheet.js'
+import { buildSpectrumChart } from '../../shared/charts/spectrumChart.js'
 import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
 import { recordParameters } from '../../shared/spectra/recordParameters.js'
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
@@ -319,6 +320,11 @@ describe('runs on a processed record', () => {
       /least-squares baseline of order 1/,
     )
     expect(sheet.warnings.some((w) => /beyond 4 s/.test(w))).toBe(true)
+    // The chart shades the periods beyond the usable band.
+    expect(sheet.chart.options.usablePeriodMaxS).toBeCloseTo(4, 12)
+    expect(buildSpectrumChart(sheet.chart.data, sheet.chart.options).svg).toContain(
+      'data-role="outside-usable-band"',
+    )
   })
 
   it('say no baseline correction or filtering was applied to a record as received', () => {
@@ -328,5 +334,6 @@ describe('runs on a processed record', () => {
     )
     expect(sheet.method.some((f) => f.label === 'Record processing')).toBe(false)
     expect(sheet.warnings.some((w) => /usable band/.test(w))).toBe(false)
+    expect(sheet.chart.options.usablePeriodMaxS).toBeUndefined()
   })
 })

@@ -66,6 +66,16 @@ export function usableBandCaution(
   return `The record was high-pass filtered: ordinates at periods beyond ${num(usablePeriodMaxS)} s (1/(1.25·f_hp)) are outside its usable band and are not to be relied on.`
 }
 
+/** The tightest usable-band limit of these records, s; null when none was high-pass filtered. */
+export function usablePeriodLimit(
+  records: readonly { processing?: RecordProcessing | null }[],
+): number | null {
+  const limits = records.flatMap((r) =>
+    r.processing?.usablePeriodMaxS != null ? [r.processing.usablePeriodMaxS] : [],
+  )
+  return limits.length ? Math.min(...limits) : null
+}
+
 /** The usable-band caution for a run on these records (the tightest limit of any of them), or null. */
 export function usableBandCautionFor(
   records: readonly { processing?: RecordProcessing | null }[],
