@@ -222,4 +222,22 @@ describe('suites in the browser', () => {
     await page.screenshot({ path: artifactPath('suites-projects.png'), fullPage: true })
     await page.close()
   })
+
+  it('refuses a period outside 0.01–20 s as it is typed, keeping Start disabled, and clamps nothing', async () => {
+    const page = await engineerOn('/records')
+    const list = await page.request.get(`${env.server.url}/api/records`)
+    const recordId = ((await list.json()) as { items: Array<{ id: string }> }).items[0]?.id
+    await page.goto(`${env.server.url}/runs/new?recordId=${recordId}`)
+    await page.getByText('A log-spaced range').click()
+    const from = page.locator('[data-test="range-min"] input')
+    await from.fill('0.005')
+    await page.getByText('From must lie from 0.01 to 20 s.').waitFor()
+    expect(await page.locator('[data-test="start-run"]').isDisabled()).toBe(true)
+    await from.blur()
+    expect(await from.inputValue()).toBe('0.005')
+    await from.fill('0.05')
+    await page.getByText('From must lie from 0.01 to 20 s.').waitFor({ state: 'detached' })
+    expect(await page.locator('[data-test="start-run"]').isDisabled()).toBe(false)
+    await page.close()
+  })
 })
