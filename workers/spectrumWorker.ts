@@ -6,7 +6,6 @@
 import { parentPort } from 'node:worker_threads'
 import { workerRequestSchema, type WorkerReply } from '../shared/schemas/spectrumWorker.js'
 import { computeSpectrum } from '../shared/spectra/computeSpectrum.js'
-import { PAIR_COMBINATIONS, computeRotDSpectrum } from '../shared/spectra/rotd.js'
 
 /** Progress is posted in 1/PROGRESS_STEPS steps (5%), so a run sends at most 19 updates. */
 const PROGRESS_STEPS = 20
@@ -39,29 +38,15 @@ port.on('message', (message: unknown) => {
     post({ type: 'progress', runId, progress: steps / PROGRESS_STEPS })
   }
   try {
-    if (job.kind === 'pair') {
-      const computation = computeRotDSpectrum(
-        {
-          accel1MPerS2: new Float64Array(job.samples1),
-          accel2MPerS2: new Float64Array(job.samples2),
-          dtS: job.dtS,
-        },
-        { ...settings, combinations: settings.combinations ?? [...PAIR_COMBINATIONS], onProgress },
-      )
-      const buffers = [
-        computation.periodsS,
-        ...computation.curves.flatMap((c) => [c.sdM, c.svMPerS, c.saMPerS2, c.psvMPerS, c.psaMPerS2]),
-      ]
-      post(
-        { type: 'pair-result', runId, computation, computeMs: performance.now() - startedAt },
-        buffers.map((b) => b.buffer as ArrayBuffer),
-      )
-      return
-    }
-    const computation = computeSpectrum(
-      { accelMPerS2: new Float64Array(job.samples), dtS: job.dtS },
-      { ...settings, onProgress },
-    )
+    const subject =
+      job.kind === 'pair'
+        ? {
+            accel1MPerS2: new Float64Array(job.samples1),
+            accel2MPerS2: new Float64Array(job.samples2),
+            dtS: job.dtS,
+          }
+        : { accelMPerS2: new Float64Array(job.samples), dtS: job.dtS }
+    const computation = computeSpectrum(subject, { ...settings, onProgress })
     const buffers = new Set<ArrayBuffer>([computation.periodsS.buffer as ArrayBuffer])
     for (const curve of computation.curves) {
       for (const series of [
@@ -73,7 +58,7 @@ port.on('message', (message: unknown) => {
         curve.sdTimeS,
         curve.saTimeS,
       ]) {
-        buffers.add(series.buffer as ArrayBuffer)
+        if (series) buffers.add(series.buffer as ArrayBuffer)
       }
     }
     post({ type: 'result', runId, computation, computeMs: performance.now() - startedAt }, [...buffers])

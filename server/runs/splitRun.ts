@@ -1,5 +1,6 @@
 import type { SpectrumJob, WorkerReply } from '../../shared/schemas/spectrumWorker.js'
 import { planSpectrum } from '../../shared/spectra/computeSpectrum.js'
+import { mergeSpectrumWarnings } from '../../shared/spectra/warnings.js'
 import type { RunSettings } from '../../shared/schemas/runs.js'
 
 type RecordResult = Extract<WorkerReply, { type: 'result' }>
@@ -101,13 +102,9 @@ export function mergeRunParts(replies: RecordResult[]): RecordResult | undefined
   if (!first) return undefined
   if (replies.length === 1) return first
   const computations = replies.map((r) => r.computation)
-  const warnings: string[] = []
-  for (const { warnings: own } of computations) {
-    for (const warning of own) {
-      if (/sub-steps/.test(warning)) return undefined
-      if (!warnings.includes(warning)) warnings.push(warning)
-    }
-  }
+  const capped = (code: string) => code === 'sub-step-cap' || code === 'peak-bound-above-budget'
+  if (computations.some((c) => c.warnings.some((warning) => capped(warning.code)))) return undefined
+  const warnings = mergeSpectrumWarnings(computations.map((c) => c.warnings))
   const statement = first.computation.methodStatement
   return {
     type: 'result',
@@ -115,8 +112,8 @@ export function mergeRunParts(replies: RecordResult[]): RecordResult | undefined
     computation: {
       periodsS: concat(computations.map((c) => c.periodsS)),
       curves: first.computation.curves.map((curve, d) => {
-        const pick = (key: Exclude<keyof typeof curve, 'dampingRatio'>) =>
-          concat(computations.map((c) => c.curves[d]![key]))
+        const pick = (key: Exclude<keyof typeof curve, 'dampingRatio' | 'combination'>) =>
+          concat(computations.map((c) => c.curves[d]![key] ?? new Float64Array(0)))
         return {
           dampingRatio: curve.dampingRatio,
           sdM: pick('sdM'),

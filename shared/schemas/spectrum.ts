@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { SOURCE_UNITS } from '../spectra/units.js'
 import { combinationSchema } from '../vocabulary/combinations.js'
 import { runMethodSchema, runSettingsSchema } from './runs.js'
-import { methodStatementSchema } from './spectrumWorker.js'
+import { methodStatementSchema, spectrumWarningSchema } from './spectrumWorker.js'
 
 /**
  * The spectrum of a record as JSON, SI units: what `npm run spectrum` prints and
@@ -29,6 +29,14 @@ export const spectrumRecordSchema = z.object({
 })
 export type SpectrumRecordSummary = z.infer<typeof spectrumRecordSchema>
 
+/** A pair run's pair and its two components as read, each with its own source units. */
+export const spectrumPairSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  components: z.array(spectrumRecordSchema.extend({ name: z.string(), sha256: z.string() })),
+})
+export type SpectrumPair = z.infer<typeof spectrumPairSchema>
+
 /** One damping ratio's ordinates, in the order of `periodsS`. Peak times are given for single records. */
 export const spectrumCurveSchema = z.object({
   dampingRatio: z.number().min(0).lt(0.5),
@@ -51,10 +59,17 @@ export const spectrumResultSchema = z
     record: spectrumRecordSchema,
     method: runMethodSchema,
     methodStatement: methodStatementSchema,
-    /** Cautions about the record and the computation, none of them blocking. */
+    /** Cautions about the record and the computation, none of them blocking, worded for people. */
     warnings: z.array(z.string()),
+    /**
+     * The computation's warnings as codes and values, for code to act on (absent in spectra stored
+     * before warnings had codes, whose `warnings` are read as stored).
+     */
+    warningCodes: z.array(spectrumWarningSchema).optional(),
     periodsS: z.array(z.number().positive()).min(1),
     curves: z.array(spectrumCurveSchema).min(1),
+    /** Pair runs: the pair and both components (`record` holds the first component's parameters). */
+    pair: spectrumPairSchema.optional(),
     /** The run's settings, when the API answers. */
     settings: runSettingsSchema.optional(),
   })

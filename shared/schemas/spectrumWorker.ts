@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { combinationSchema } from '../vocabulary/combinations.js'
+import type { SpectrumWarning } from '../spectra/warnings.js'
 import { runMethodSchema } from './runs.js'
 
 /**
@@ -45,16 +46,18 @@ export const workerRequestSchema = z.discriminatedUnion('type', [
 ])
 export type WorkerRequest = z.infer<typeof workerRequestSchema>
 
-/** One damping ratio's peaks, in SI, in the order of the run's periods (the engine's SpectrumCurve). */
+/** One damping ratio's peaks (and, for a pair, one combination's), in SI, in the order of the run's periods (the engine's SpectrumCurve). */
 export const workerCurveSchema = z.object({
   dampingRatio: z.number(),
+  combination: combinationSchema.optional(),
   sdM: float64ArraySchema,
   svMPerS: float64ArraySchema,
   saMPerS2: float64ArraySchema,
   psvMPerS: float64ArraySchema,
   psaMPerS2: float64ArraySchema,
-  sdTimeS: float64ArraySchema,
-  saTimeS: float64ArraySchema,
+  /** Records only: when the peaks occur. */
+  sdTimeS: float64ArraySchema.optional(),
+  saTimeS: float64ArraySchema.optional(),
 })
 
 /** The engine's MethodStatement: what produced the numbers. */
@@ -76,32 +79,34 @@ export const methodStatementSchema = z.object({
   combinationRule: z.string().optional(),
 })
 
-/** The engine's SpectrumComputation, as the worker posts it (series as transferred buffers). */
+/** The engine's warnings as codes and values (shared/spectra/warnings.ts; worded by shared/warningMessages.ts). */
+export const spectrumWarningSchema = z.discriminatedUnion('code', [
+  z.object({ code: z.literal('periods-below-two-dt'), periods: z.number().int(), twoDtS: z.number() }),
+  z.object({
+    code: z.literal('damping-above-accuracy-limit'),
+    accuracyTarget: z.number(),
+    dampingLimit: z.number(),
+  }),
+  z.object({
+    code: z.literal('sub-step-cap'),
+    oscillators: z.number().int(),
+    maxSubSteps: z.number().int(),
+    errorEstimate: z.number(),
+  }),
+  z.object({
+    code: z.literal('peak-bound-above-budget'),
+    oscillators: z.number().int(),
+    maxSubSteps: z.number().int(),
+    budget: z.number(),
+  }),
+]) satisfies z.ZodType<SpectrumWarning>
+
+/** The engine's SpectrumComputation for a record or a pair, as the worker posts it (series as transferred buffers). */
 export const workerComputationSchema = z.object({
   periodsS: float64ArraySchema,
   curves: z.array(workerCurveSchema).min(1),
   methodStatement: methodStatementSchema,
-  warnings: z.array(z.string()),
-  oscillatorSteps: z.number(),
-})
-
-/** One damping ratio and combination of a pair run (shared/spectra/rotd.ts), series as buffers. */
-export const workerPairCurveSchema = z.object({
-  dampingRatio: z.number(),
-  combination: combinationSchema,
-  sdM: float64ArraySchema,
-  svMPerS: float64ArraySchema,
-  saMPerS2: float64ArraySchema,
-  psvMPerS: float64ArraySchema,
-  psaMPerS2: float64ArraySchema,
-})
-
-/** computeRotDSpectrum's result as the worker posts it. */
-export const workerPairComputationSchema = z.object({
-  periodsS: float64ArraySchema,
-  curves: z.array(workerPairCurveSchema).min(1),
-  methodStatement: methodStatementSchema.extend({ combinationRule: z.string() }),
-  warnings: z.array(z.string()),
+  warnings: z.array(spectrumWarningSchema),
   oscillatorSteps: z.number(),
 })
 
@@ -112,12 +117,6 @@ export const workerReplySchema = z.discriminatedUnion('type', [
     runId: z.string(),
     computation: workerComputationSchema,
     /** Wall time of the computation inside the worker. */
-    computeMs: z.number().nonnegative(),
-  }),
-  z.object({
-    type: z.literal('pair-result'),
-    runId: z.string(),
-    computation: workerPairComputationSchema,
     computeMs: z.number().nonnegative(),
   }),
   z.object({ type: z.literal('error'), runId: z.string(), message: z.string() }),

@@ -1,11 +1,14 @@
 import { describe, expect, it } from 'vitest'
 import { harmonicResponse, stepOvershootRatio } from './closedForms.js'
-import { type SpectrumMethod, computeSpectrum, planSpectrum } from './computeSpectrum.js'
-import { demoRecord } from './demo/demoRecords.js'
+import { type SpectrumMethod, computeSpectrum, planSpectrum, refineSweep } from './computeSpectrum.js'
+import { demoRecord, mulberry32 } from './demo/demoRecords.js'
 import { freeVibration } from './freeVibration.js'
 import { NEWMARK_LINEAR_STABILITY_LIMIT, SPECTRUM_METHODS } from './oscillatorRecurrence.js'
 import { parseRecord } from './parseRecord.js'
 import { defaultPeriodsS, logPeriodGrid } from './periods.js'
+import { PEAK_PICKING_BUDGET } from './subSteps.js'
+import type { OscillatorSpec } from './sweepOscillators.js'
+import { warningMessages } from '../warningMessages.js'
 import { recordParameters } from './recordParameters.js'
 
 /** The engine's accuracy target: every ordinate within 0.5% of the exact response. */
@@ -219,8 +222,11 @@ describe('computeSpectrum', () => {
       const periodsS = defaultPeriodsS()
       const plan = planSpectrum(8001, 0.02, { dampingRatios: [0, 0.3], periodsS, method: 'newmark-linear' })
       plan.subSteps.forEach((m, i) => {
+        // Where Newmark would need more than the cap, the exact recurrence runs instead (subSteps.ts).
+        if (plan.recurrences[i] !== 'newmark-linear') return
         expect(0.02 / m / periodsS[i % periodsS.length]!).toBeLessThanOrEqual(NEWMARK_LINEAR_STABILITY_LIMIT)
       })
+      expect(plan.recurrences.filter((r) => r === 'newmark-linear').length).toBeGreaterThan(periodsS.length)
     })
 
     it('needs no sub-steps for long periods and more for short ones', () => {
@@ -241,8 +247,59 @@ describe('computeSpectrum', () => {
       periodsS: [0.01, 0.05],
       method: 'piecewise-exact',
     })
-    expect(warnings.some((w) => w.includes('shorter than 2Δt'))).toBe(true)
-    expect(warnings.some((w) => w.includes('up to 30%'))).toBe(true)
+    expect(warnings).toEqual([
+      { code: 'periods-below-two-dt', periods: 1, twoDtS: 0.02 },
+      { code: 'damping-above-accuracy-limit', accuracyTarget: 0.005, dampingLimit: 0.3 },
+    ])
+    expect(warningMessages(warnings)).toEqual([
+      '1 period is shorter than 2Δt = 0.02 s, the shortest the record resolves; ordinates there follow the straight lines between samples.',
+      'The 0.5% accuracy target is demonstrated for damping up to 30%.',
+    ])
+  })
+
+  it('warns when refinement reaches the sub-step cap with the bound on peaks between steps still above budget', () => {
+    // White noise (a test signal) at ζ = 0 and T = Δt/16: the first pass already takes the cap. A
+    // pair, whose directional peaks are read at step ends; a record's are searched between steps.
+    const random = mulberry32(7)
+    const accelMPerS2 = Float64Array.from({ length: 400 }, () => random() - 0.5)
+    const settings = { dampingRatios: [0], periodsS: [0.01], method: 'piecewise-exact' as const }
+    const recordCodes = computeSpectrum({ accelMPerS2, dtS: 0.16 }, settings).warnings.map((w) => w.code)
+    expect(recordCodes).toEqual(['periods-below-two-dt'])
+    const { warnings } = computeSpectrum(
+      { accel1MPerS2: accelMPerS2, accel2MPerS2: accelMPerS2.map((a) => -0.5 * a), dtS: 0.16 },
+      { ...settings, combinations: ['rotd100'] },
+    )
+    expect(warnings).toContainEqual({
+      code: 'peak-bound-above-budget',
+      oscillators: 1,
+      maxSubSteps: 1024,
+      budget: 0.0025,
+    })
+  })
+
+  describe('the refinement driver', () => {
+    /** A stand-in solve whose bound falls only by half per solve, from `start` × the budget. */
+    function slowSolver(start: number) {
+      const oscillators: OscillatorSpec[] = [{ periodS: 1, dampingRatio: 0.05, subSteps: 1 }]
+      let solves = 0
+      const solver = {
+        solve: () => void solves++,
+        peakBound: () => (start * PEAK_PICKING_BUDGET) / 2 ** (solves - 1),
+      }
+      return { oscillators, solver, solves: () => solves }
+    }
+
+    it('re-checks the result of the last pass', () => {
+      // First pass, then three refinements: the bound goes 8, 4, 2, 1 × budget, the last at budget.
+      const settled = slowSolver(8)
+      expect(refineSweep(settled.oscillators, settled.solver, undefined)).toBe(0)
+      expect(settled.solves()).toBe(4)
+      // 16, 8, 4, 2 × budget: the last pass leaves it above budget, below the cap, and it is counted.
+      const above = slowSolver(16)
+      expect(refineSweep(above.oscillators, above.solver, undefined)).toBe(1)
+      expect(above.solves()).toBe(4)
+      expect(above.oscillators[0]!.subSteps).toBeLessThan(1024)
+    })
   })
 
   it('rejects invalid settings', () => {

@@ -1,33 +1,59 @@
 /**
- * Elastic response spectra of a ground-acceleration record: for each damping
- * ratio ζ and period T, the peaks of the unit-mass oscillator
+ * Elastic response spectra of a run's subject, a ground-acceleration record or a pair of
+ * horizontal components: for each damping ratio ζ and period T, the peaks of the unit-mass
+ * oscillator
  *   u'' + 2ζω u' + ω² u = −a_g(t),  ω = 2π/T,  at rest at the first sample,
- * with a_g interpolated linearly between samples and the ground still after
- * the last one:
+ * with a_g interpolated linearly between samples and the ground still after the last one:
  *   SD = max|u|, SV = max|u'| (relative), SA = max|u'' + a_g| = max|2ζωu' + ω²u|,
  *   PSV = ω·SD, PSA = ω²·SD.
- * Sub-steps are chosen per oscillator (see subSteps.ts) so that each ordinate
- * is within 0.5% of the exact response for T in 0.01–10 s and ζ in 0–30%.
- * Deterministic: the same input gives the same bits, with either kernel.
+ * For a pair, the same peaks are taken in every direction of the rotated motion and combined
+ * (rotd.ts). Sub-steps are chosen per oscillator (see subSteps.ts) and refined by one driver for
+ * both subjects, so that each reported ordinate is within 0.5% of the exact response for T in
+ * 0.01–10 s and ζ in 0–30%. Deterministic: the same input gives the same bits, with either kernel.
  */
-import { type KernelName, defaultKernel, jsKernel, wasmKernel } from './kernel/sweepKernel.js'
+import { COMBINATIONS, type Combination } from '../vocabulary/combinations.js'
+import {
+  type KernelName,
+  type SweepKernel,
+  defaultKernel,
+  jsKernel,
+  wasmKernel,
+} from './kernel/sweepKernel.js'
 import { NEWMARK_PARAMETERS, SPECTRUM_METHODS, type SpectrumMethod } from './oscillatorRecurrence.js'
 import {
+  type PairRecord,
+  PAIR_COMBINATION_STATEMENT,
+  type PairPeaks,
+  pairOrdinates,
+  solvePairOscillators,
+} from './rotd.js'
+import {
   ACCURACY_TARGET,
+  HERMITE_READING_BUDGET,
+  HERMITE_SOLVER_BUDGET,
   MAX_SUB_STEPS,
   PEAK_PICKING_BOUND,
   PEAK_PICKING_BUDGET,
   PEAK_SAMPLES_PER_PERIOD,
+  type PeakReading,
   SOLVER_ERROR_BUDGET,
   chooseSubSteps,
   freeAmplitudeBound,
   peakPickingBound,
+  peakReadingBudget,
   refinedSubSteps,
   slopeChanges,
 } from './subSteps.js'
-import { type OscillatorPeaks, type OscillatorSpec, sweepOscillators } from './sweepOscillators.js'
+import {
+  type OscillatorPeaks,
+  type OscillatorSpec,
+  oscillatorPeaks,
+  sweepOscillators,
+} from './sweepOscillators.js'
+import type { SpectrumWarning } from './warnings.js'
 
 export type { SpectrumMethod } from './oscillatorRecurrence.js'
+export type { PairRecord } from './rotd.js'
 
 /** Version of the numerical engine, stated with every result. */
 export const ENGINE_VERSION = 'ordinate-spectra 1.0.0'
@@ -41,23 +67,42 @@ export interface SpectrumRecord {
   dtS: number
 }
 
+/** What a run computes the spectrum of: one record, or the two horizontal components of a pair. */
+export type SpectrumSubject = SpectrumRecord | PairRecord
+
+export function isPairSubject(subject: SpectrumSubject): subject is PairRecord {
+  return 'accel1MPerS2' in subject
+}
+
 export interface SpectrumSettings {
   dampingRatios: number[]
   periodsS: number[]
   method: SpectrumMethod
+  /** Pairs only: the combinations to report, in this order for each damping ratio (default all). */
+  combinations?: Combination[]
   onProgress?: (fraction: number) => void
   /** Kernel to run; by default WebAssembly SIMD where available, else JavaScript. Both give the same bits. */
   kernel?: KernelName
 }
 
+/** One damping ratio's ordinates (and, for a pair, one combination's), in the order of the periods. */
 export interface SpectrumCurve {
   dampingRatio: number
+  /** How a pair's two components were combined; absent for a record. */
+  combination?: Combination
   sdM: Float64Array
   svMPerS: Float64Array
   saMPerS2: Float64Array
   psvMPerS: Float64Array
   psaMPerS2: Float64Array
-  /** Time of the SD peak from the first sample; after the record's end when the free vibration peaks higher. */
+  /** Records only: time of the SD peak from the first sample; after the record's end when the free vibration peaks higher. */
+  sdTimeS?: Float64Array
+  saTimeS?: Float64Array
+}
+
+/** A record's curves, which always carry the peak times. */
+export interface RecordSpectrumCurve extends SpectrumCurve {
+  combination?: undefined
   sdTimeS: Float64Array
   saTimeS: Float64Array
 }
@@ -77,15 +122,18 @@ export interface MethodStatement {
   accuracyTarget: string
   kernel: KernelName
   engineVersion: string
+  /** Pairs only: how the two components were combined. */
+  combinationRule?: string
 }
 
-export interface SpectrumComputation {
+export interface SpectrumComputation<Curve extends SpectrumCurve = SpectrumCurve> {
   periodsS: Float64Array
-  curves: SpectrumCurve[]
+  /** Damping-major; for a pair, then in the order of the combinations. */
+  curves: Curve[]
   methodStatement: MethodStatement
-  /** Non-blocking cautions about this computation. */
-  warnings: string[]
-  /** Oscillator-steps run, the measure of work. */
+  /** Non-blocking cautions about this computation, as codes and values (shared/warningMessages.ts words them). */
+  warnings: SpectrumWarning[]
+  /** Oscillator-steps run (for a pair, both components'), the measure of work. */
   oscillatorSteps: number
 }
 
@@ -99,6 +147,12 @@ export interface SpectrumPlan {
   oscillatorSteps: number
   /** Oscillators whose sub-steps hit the cap, with the rule's error estimate at the cap. */
   capped: { periodS: number; dampingRatio: number; errorEstimate: number }[]
+  /** The recurrence per oscillator (piecewise-exact where Newmark would need more than the cap; subSteps.ts). */
+  recurrences: SpectrumMethod[]
+  /** How many oscillators run on the piecewise-exact recurrence in place of Newmark. */
+  exactInstead: number
+  /** How peaks are read: searched between steps (records) or at step ends (pairs). */
+  reading: PeakReading
 }
 
 const SOLVER_TEXT: Record<SpectrumMethod, string> = {
@@ -109,6 +163,53 @@ const SOLVER_TEXT: Record<SpectrumMethod, string> = {
     'Piecewise-exact recurrence, exact at step ends for ground acceleration linear between samples (Nigam & Jennings 1969)',
 }
 
+const NEWMARK_SUMMARY =
+  `Sub-steps only as many as Newmark's period and decay error needs, with peaks between steps read from cubic ` +
+  `Hermite interpolants; both errors together are held to ${100 * ACCURACY_TARGET}%.`
+
+/** One or two sentences for pages: how a record's peaks are found, per method. */
+export const PEAK_SEARCH_SUMMARY: Record<SpectrumMethod, string> = {
+  'piecewise-exact':
+    'No sub-steps: every peak between samples is found from the exact solution of each interval, searched ' +
+    'wherever a rigorous bound cannot rule out a new peak.',
+  'newmark-average': NEWMARK_SUMMARY,
+  'newmark-linear': NEWMARK_SUMMARY,
+}
+
+const SEARCH_RULE =
+  `Steps where peaks may lie: within a step with the record linear, the exact response is a straight line plus ` +
+  `a damped sinusoid of amplitude W, so |u| cannot rise more than (ωh)²/8·W above its larger end value, nor above ` +
+  `the line's largest value plus W (likewise v with ωW and the absolute acceleration with ω²W); every step where ` +
+  `either bound reaches the running peak is searched, and no other step can hold a larger value.`
+
+/** The full rule for a record's sweep, per method, for the sheet and the JSON method statement. */
+function recordSubStepRule(method: SpectrumMethod, exactInstead: number): string {
+  if (method === 'piecewise-exact') {
+    return (
+      `${PEAK_SEARCH_SUMMARY[method]} ${SEARCH_RULE} In a searched step the extremes are the roots of u′ (SD), ` +
+      `u″ (SV) and d/dt(2ζωu′ + ω²u) (SA) of the closed-form solution, bracketed on pieces no longer than half a ` +
+      `damped period (between them the derivative is monotonic).`
+    )
+  }
+  const instead =
+    exactInstead > 0
+      ? ` For ${exactInstead} oscillator${exactInstead === 1 ? '' : 's'} that rule would need more than ` +
+        `${MAX_SUB_STEPS} sub-steps (low damping, periods near or below 2Δt); ${exactInstead === 1 ? 'it runs' : 'they run'} ` +
+        `on the piecewise-exact recurrence (Nigam & Jennings 1969) with its exact peak search instead, no sub-steps.`
+      : ''
+  return (
+    `${PEAK_SEARCH_SUMMARY[method]} Per oscillator, step h = Δt/m on the record interpolated linearly between ` +
+    `samples, with m the smallest count for which ε·(2 + ω·min(D/2, 1/(ζω))) ≤ ${100 * HERMITE_SOLVER_BUDGET}%, ε being ` +
+    `the relative error of the step's eigenvalue (period elongation and decay error) and D the duration; m is ` +
+    `rounded up to 1–8 or 8, 10, 12, 14 times a power of two. ${SEARCH_RULE} In a searched step the peaks are read ` +
+    `from cubic Hermite interpolants of (u, u′) for SD, (u′, u″) for SV and (A, A′) for SA, A = 2ζωu′ + ω²u, which ` +
+    `are within (ωh)⁴/384·W, ·ωW and ·ω²W of the exact extremes. After the first pass an oscillator is run again ` +
+    `with more sub-steps while that bound plus the solver error scaled by W over the ordinate (W bounded from its ` +
+    `peaks and the record's PGA, slopes or kinks) exceeds ${100 * HERMITE_READING_BUDGET}%.${instead}`
+  )
+}
+
+/** Peaks read at step ends (pairs). */
 const SUB_STEP_RULE =
   `Per oscillator, step h = Δt/m on the record interpolated linearly between samples. ` +
   `m gives at least ${PEAK_SAMPLES_PER_PERIOD} steps per period (a sinusoid's peak between steps is under-read by at ` +
@@ -120,13 +221,25 @@ const SUB_STEP_RULE =
   `eigenvalue (the period elongation and decay error) and D the duration. m is rounded up to 1–8 or 8, 10, 12, 14 ` +
   `times a power of two, at most ${MAX_SUB_STEPS}.`
 
+const PAIR_SUB_STEP_RULE =
+  `${SUB_STEP_RULE} For a pair, both components take the same m, and the bound is taken relative to each ` +
+  `combination reported: for the geometric mean, on each component with its own peaks, PGA, slopes and kinks; for ` +
+  `RotD100, on the maximum-direction peaks with the pair's resultant PGA, slopes and kinks; for RotD50, that bound ` +
+  `scaled by RotD100/RotD50.`
+
 const TAIL_TEXT =
   'Included: after the last sample the ground is still and the oscillator vibrates freely; the peaks of that ' +
   'free vibration are found in closed form, the same as for an unbounded tail.'
 
+const PAIR_TAIL_TEXT =
+  'Included: after the last sample the ground is still; the peaks of the free vibration are found in closed form ' +
+  'in every direction.'
+
 const ACCURACY_TEXT =
   `Each ordinate within ${100 * ACCURACY_TARGET}% of the exact response to the record interpolated linearly ` +
   `between samples, for periods 0.01–10 s and damping 0–${100 * ACCURACY_DAMPING_LIMIT}%.`
+
+const PAIR_SOLVER_SUFFIX = ', on each component'
 
 /** Throws a RangeError unless the method, damping ratios and periods are usable. */
 export function checkSpectrumSettings(
@@ -145,14 +258,33 @@ export function checkSpectrumSettings(
   }
 }
 
-function checkInputs(record: SpectrumRecord, settings: SpectrumSettings): void {
-  const { accelMPerS2, dtS } = record
-  if (!(Number.isFinite(dtS) && dtS > 0)) throw new RangeError('dtS must be a positive number of seconds')
-  if (accelMPerS2.length < 2) throw new RangeError('the record needs at least two samples')
-  for (const value of accelMPerS2) {
-    if (!Number.isFinite(value)) throw new RangeError('the record holds a value that is not a finite number')
+/** The subject's component series (one for a record, two for a pair). */
+function componentsOf(subject: SpectrumSubject): Float64Array[] {
+  return isPairSubject(subject) ? [subject.accel1MPerS2, subject.accel2MPerS2] : [subject.accelMPerS2]
+}
+
+function checkInputs(subject: SpectrumSubject, settings: SpectrumSettings): void {
+  if (!(Number.isFinite(subject.dtS) && subject.dtS > 0))
+    throw new RangeError('dtS must be a positive number of seconds')
+  const components = componentsOf(subject)
+  if (components[0]!.length < 2) throw new RangeError('the record needs at least two samples')
+  if (components.some((series) => series.length !== components[0]!.length))
+    throw new RangeError('the two components must have the same number of samples')
+  for (const series of components) {
+    for (const value of series) {
+      if (!Number.isFinite(value))
+        throw new RangeError('the record holds a value that is not a finite number')
+    }
   }
   checkSpectrumSettings(settings)
+  if (isPairSubject(subject)) {
+    const combinations = settings.combinations ?? COMBINATIONS
+    if (combinations.length === 0) throw new RangeError('give at least one combination')
+    for (const combination of combinations) {
+      if (!COMBINATIONS.includes(combination))
+        throw new RangeError(`unknown combination ${String(combination)}`)
+    }
+  }
 }
 
 /** Sub-steps and total work of a sweep, without running it (for estimates and limits). */
@@ -160,24 +292,29 @@ export function planSpectrum(
   points: number,
   dtS: number,
   settings: Pick<SpectrumSettings, 'dampingRatios' | 'periodsS' | 'method'>,
+  reading: PeakReading = 'between-steps',
 ): SpectrumPlan {
   const durationS = (points - 1) * dtS
   const periods = settings.periodsS.length
   const subSteps = new Int32Array(settings.dampingRatios.length * periods)
   const capped: SpectrumPlan['capped'] = []
+  const recurrences: SpectrumMethod[] = []
+  let exactInstead = 0
   let oscillatorSteps = 0
   settings.dampingRatios.forEach((dampingRatio, d) => {
     settings.periodsS.forEach((periodS, p) => {
-      const choice = chooseSubSteps(settings.method, periodS, dampingRatio, dtS, durationS)
+      const choice = chooseSubSteps(settings.method, periodS, dampingRatio, dtS, durationS, reading)
       subSteps[d * periods + p] = choice.subSteps
+      recurrences[d * periods + p] = choice.recurrence
+      if (choice.recurrence !== settings.method) exactInstead++
       oscillatorSteps += (points - 1) * choice.subSteps
       if (choice.capped) capped.push({ periodS, dampingRatio, errorEstimate: choice.errorEstimate })
     })
   })
-  return { subSteps, oscillatorSteps, capped }
+  return { subSteps, oscillatorSteps, capped, recurrences, exactInstead, reading }
 }
 
-function pickKernel(name: KernelName | undefined) {
+function pickKernel(name: KernelName | undefined): SweepKernel {
   if (name === 'js') return jsKernel()
   if (name === 'wasm-simd') {
     const kernel = wasmKernel()
@@ -188,166 +325,403 @@ function pickKernel(name: KernelName | undefined) {
 }
 
 function computationWarnings(
-  record: SpectrumRecord,
+  dtS: number,
   settings: SpectrumSettings,
   plan: SpectrumPlan,
   peakBoundAboveBudget: number,
-): string[] {
-  const warnings: string[] = []
-  const nyquistPeriodS = 2 * record.dtS
-  const below = settings.periodsS.filter((period) => period < nyquistPeriodS).length
-  if (below > 0) {
-    warnings.push(
-      `${below} period${below === 1 ? ' is' : 's are'} shorter than 2Δt = ${nyquistPeriodS} s, the shortest the record resolves; ordinates there follow the straight lines between samples.`,
-    )
-  }
+): SpectrumWarning[] {
+  const warnings: SpectrumWarning[] = []
+  const twoDtS = 2 * dtS
+  const below = settings.periodsS.filter((period) => period < twoDtS).length
+  if (below > 0) warnings.push({ code: 'periods-below-two-dt', periods: below, twoDtS })
   if (settings.dampingRatios.some((zeta) => zeta > ACCURACY_DAMPING_LIMIT)) {
-    warnings.push(
-      `The ${100 * ACCURACY_TARGET}% accuracy target is demonstrated for damping up to ${100 * ACCURACY_DAMPING_LIMIT}%.`,
-    )
+    warnings.push({
+      code: 'damping-above-accuracy-limit',
+      accuracyTarget: ACCURACY_TARGET,
+      dampingLimit: ACCURACY_DAMPING_LIMIT,
+    })
   }
   if (plan.capped.length > 0) {
-    const worst = Math.max(...plan.capped.map((entry) => entry.errorEstimate))
-    warnings.push(
-      `For ${plan.capped.length} oscillator${plan.capped.length === 1 ? '' : 's'} the cap of ${MAX_SUB_STEPS} sub-steps stopped short of the accuracy rule (error estimate up to ${(100 * worst).toPrecision(2)}%). The piecewise-exact method needs no extra sub-steps for accuracy.`,
-    )
+    warnings.push({
+      code: 'sub-step-cap',
+      oscillators: plan.capped.length,
+      maxSubSteps: MAX_SUB_STEPS,
+      errorEstimate: Math.max(...plan.capped.map((entry) => entry.errorEstimate)),
+    })
   }
   if (peakBoundAboveBudget > 0) {
-    warnings.push(
-      `For ${peakBoundAboveBudget} oscillator${peakBoundAboveBudget === 1 ? '' : 's'} the cap of ${MAX_SUB_STEPS} sub-steps left the bound on peaks between steps above ${(100 * PEAK_PICKING_BUDGET).toFixed(2)}%.`,
-    )
+    warnings.push({
+      code: 'peak-bound-above-budget',
+      oscillators: peakBoundAboveBudget,
+      maxSubSteps: MAX_SUB_STEPS,
+      budget: peakReadingBudget(plan.reading),
+    })
   }
   return warnings
 }
 
-/** PGA and the steepest slope max|Δa|/Δt of the record interpolated linearly. */
-function recordExtremes(record: SpectrumRecord): { pgaMPerS2: number; maxSlopeMPerS3: number } {
-  const a = record.accelMPerS2
-  let pga = 0
-  let slope = 0
-  for (let i = 0; i < a.length; i++) {
-    pga = Math.max(pga, Math.abs(a[i]!))
-    if (i > 0) slope = Math.max(slope, Math.abs(a[i]! - a[i - 1]!))
-  }
-  return { pgaMPerS2: pga, maxSlopeMPerS3: slope / record.dtS }
+/** What the bound on peaks between steps needs to know of a ground motion (one series, or a pair's resultant). */
+export interface ForcingBounds {
+  /** Peak ground acceleration. */
+  pgaMPerS2: number
+  /** Steepest slope between samples, max|Δa|/Δt. */
+  maxSlopeMPerS3: number
+  /** Bound on the free-vibration amplitude of an oscillator, from the motion's kinks (a pass over the record). */
+  freeAmplitudeM(periodS: number, dampingRatio: number): number
+  /** The motion's duration, (points − 1)·Δt. */
+  durationS: number
 }
 
+/** An oscillator's peaks as the bound reads them. */
+export interface OrdinatePeaks {
+  sdM: number
+  svMPerS: number
+  saMPerS2: number
+}
+
+/**
+ * The bound on how far an oscillator's peaks, read at step ends, can fall below the continuous
+ * peaks, relative to each (subSteps.ts rule 1): from the PGA and steepest slope first, and where
+ * that exceeds the budget, with the tighter free-vibration amplitude from the kinks.
+ */
+export function oscillatorPeakBound(
+  oscillator: OscillatorSpec,
+  dtS: number,
+  peaks: OrdinatePeaks,
+  forcing: ForcingBounds,
+): number {
+  const input = {
+    periodS: oscillator.periodS,
+    dampingRatio: oscillator.dampingRatio,
+    stepS: dtS / oscillator.subSteps,
+    ...peaks,
+    reading: oscillator.reading,
+    recurrence: oscillator.recurrence,
+    durationS: forcing.durationS,
+    pgaMPerS2: forcing.pgaMPerS2,
+    maxSlopeMPerS3: forcing.maxSlopeMPerS3,
+  }
+  const bound = peakPickingBound(input)
+  if (bound <= peakReadingBudget(oscillator.reading)) return bound
+  return peakPickingBound({
+    ...input,
+    freeAmplitudeM: forcing.freeAmplitudeM(oscillator.periodS, oscillator.dampingRatio),
+  })
+}
+
+/** A free-vibration amplitude bound per oscillator, computed once and only when asked for. */
+function memoised(compute: (periodS: number, dampingRatio: number) => number) {
+  const known = new Map<string, number>()
+  return (periodS: number, dampingRatio: number) => {
+    const key = `${periodS} ${dampingRatio}`
+    let value = known.get(key)
+    if (value === undefined) {
+      value = compute(periodS, dampingRatio)
+      known.set(key, value)
+    }
+    return value
+  }
+}
+
+/** PGA, steepest slope and kink bound of one series interpolated linearly. */
+export function seriesForcing(accelMPerS2: Float64Array, dtS: number): ForcingBounds {
+  let pga = 0
+  let slope = 0
+  for (let i = 0; i < accelMPerS2.length; i++) {
+    pga = Math.max(pga, Math.abs(accelMPerS2[i]!))
+    if (i > 0) slope = Math.max(slope, Math.abs(accelMPerS2[i]! - accelMPerS2[i - 1]!))
+  }
+  let changes: Float64Array | undefined
+  return {
+    pgaMPerS2: pga,
+    maxSlopeMPerS3: slope / dtS,
+    durationS: (accelMPerS2.length - 1) * dtS,
+    freeAmplitudeM: memoised((periodS, dampingRatio) => {
+      changes ??= slopeChanges(accelMPerS2, dtS)
+      return freeAmplitudeBound(accelMPerS2, changes, dtS, periodS, dampingRatio)
+    }),
+  }
+}
+
+/**
+ * Bounds that hold for the motion a₁cosθ + a₂sinθ in every direction θ: the largest resultant
+ * acceleration and slope, and a kink bound from the resultant kinks √(Δs₁² + Δs₂²) ≥ |Δs(θ)|. The
+ * amplitude at rest, linear in the first sample and slope, is at most the root sum of squares of
+ * the components' (Cauchy–Schwarz), and R(t) ≤ R₀e^(−ζωt) + kicks ≤ R₀ + the bound of the kicks alone.
+ */
+export function resultantForcing(pair: PairRecord): ForcingBounds {
+  const g1 = pair.accel1MPerS2
+  const g2 = pair.accel2MPerS2
+  const { dtS } = pair
+  let pga = 0
+  let slope = 0
+  for (let i = 0; i < g1.length; i++) {
+    pga = Math.max(pga, Math.hypot(g1[i]!, g2[i]!))
+    if (i > 0) slope = Math.max(slope, Math.hypot(g1[i]! - g1[i - 1]!, g2[i]! - g2[i - 1]!))
+  }
+  let changes: Float64Array | undefined
+  const atRest = new Float64Array(2)
+  const noKinks = new Float64Array(2)
+  return {
+    pgaMPerS2: pga,
+    maxSlopeMPerS3: slope / dtS,
+    durationS: (g1.length - 1) * dtS,
+    freeAmplitudeM: memoised((periodS, dampingRatio) => {
+      if (!changes) {
+        const c1 = slopeChanges(g1, dtS)
+        const c2 = slopeChanges(g2, dtS)
+        changes = c1.map((c, i) => Math.hypot(c, c2[i]!))
+      }
+      const start = (g: Float64Array) =>
+        freeAmplitudeBound(g.subarray(0, 2), noKinks, dtS, periodS, dampingRatio)
+      return (
+        Math.hypot(start(g1), start(g2)) + freeAmplitudeBound(atRest, changes, dtS, periodS, dampingRatio)
+      )
+    }),
+  }
+}
+
+/** A subject's oscillators as the refinement driver sees them. */
+export interface OscillatorSolver {
+  /** Solves the oscillators at these indices with their current sub-steps and keeps their peaks. */
+  solve(indices: readonly number[], onProgress?: (fraction: number) => void): void
+  /** The bound on peaks between steps of oscillator `index`'s last solve, relative to every ordinate reported. */
+  peakBound(index: number): number
+}
+
+/** Refinement passes after the first pass. */
 const MAX_REFINEMENTS = 3
 /** Share of the progress bar given to the first pass; refinement passes fill the rest. */
 const FIRST_PASS_SHARE = 0.9
 
 /**
- * Runs the first pass, then re-runs each oscillator whose peak-picking bound
- * exceeds the budget with more sub-steps, up to three times. Each decision
- * uses only that oscillator's own peaks, so results stay independent of the
- * rest of the sweep.
+ * The one refinement driver: runs the first pass, then re-runs each oscillator whose bound on
+ * peaks between steps exceeds the budget with more sub-steps, up to three times, and checks the
+ * result of the last pass too. Each decision uses only that oscillator's own peaks, so results
+ * stay independent of the rest of the sweep. Returns how many oscillators end above the budget
+ * (at the sub-step cap, or after the last pass).
  */
-function sweepWithRefinement(
-  record: SpectrumRecord,
+export function refineSweep(
   oscillators: OscillatorSpec[],
-  method: SpectrumMethod,
-  kernel: ReturnType<typeof pickKernel>,
+  solver: OscillatorSolver,
   onProgress: ((fraction: number) => void) | undefined,
-): { peaks: OscillatorPeaks; stillAbove: number } {
-  const peaks = sweepOscillators(record, oscillators, method, {
-    kernel,
-    onProgress: onProgress && ((fraction) => onProgress(FIRST_PASS_SHARE * fraction)),
-  })
-  const extremes = recordExtremes(record)
-  let changes: Float64Array | undefined
-  const freeAmplitudes = new Map<number, number>()
-  /** The kink bound costs a pass over the record, so it is found only where the first bound fails. */
-  const freeAmplitude = (index: number) => {
-    let amplitude = freeAmplitudes.get(index)
-    if (amplitude === undefined) {
-      changes ??= slopeChanges(record.accelMPerS2, record.dtS)
-      const { periodS, dampingRatio } = oscillators[index]!
-      amplitude = freeAmplitudeBound(record.accelMPerS2, changes, record.dtS, periodS, dampingRatio)
-      freeAmplitudes.set(index, amplitude)
-    }
-    return amplitude
-  }
+): number {
+  const all = oscillators.map((_, index) => index)
+  solver.solve(all, onProgress && ((fraction) => onProgress(FIRST_PASS_SHARE * fraction)))
   let stillAbove = 0
-  for (let pass = 0; pass < MAX_REFINEMENTS; pass++) {
+  for (let pass = 0; pass <= MAX_REFINEMENTS; pass++) {
     const again: number[] = []
     stillAbove = 0
     oscillators.forEach((oscillator, index) => {
-      const input = {
-        periodS: oscillator.periodS,
-        dampingRatio: oscillator.dampingRatio,
-        stepS: record.dtS / oscillator.subSteps,
-        sdM: peaks.sdM[index]!,
-        svMPerS: peaks.svMPerS[index]!,
-        saMPerS2: peaks.saMPerS2[index]!,
-        ...extremes,
-      }
-      let bound = peakPickingBound(input)
-      if (bound > PEAK_PICKING_BUDGET)
-        bound = peakPickingBound({ ...input, freeAmplitudeM: freeAmplitude(index) })
-      if (bound <= PEAK_PICKING_BUDGET) return
-      if (oscillator.subSteps >= MAX_SUB_STEPS) {
+      const bound = solver.peakBound(index)
+      if (bound <= peakReadingBudget(oscillator.reading)) return
+      if (pass === MAX_REFINEMENTS || oscillator.subSteps >= MAX_SUB_STEPS) {
         stillAbove++
         return
       }
-      oscillator.subSteps = refinedSubSteps(oscillator.subSteps, bound)
+      oscillator.subSteps = refinedSubSteps(oscillator.subSteps, bound, oscillator.reading)
       again.push(index)
     })
     if (again.length === 0) break
     const from = FIRST_PASS_SHARE + (1 - FIRST_PASS_SHARE) * (pass / MAX_REFINEMENTS)
     const share = (1 - FIRST_PASS_SHARE) / MAX_REFINEMENTS
-    const refined = sweepOscillators(
-      record,
-      again.map((index) => oscillators[index]!),
-      method,
-      { kernel, onProgress: onProgress && ((fraction) => onProgress(from + share * fraction)) },
-    )
-    again.forEach((index, slot) => {
-      for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const) {
-        peaks[key][index] = refined[key][slot]!
-      }
-    })
+    solver.solve(again, onProgress && ((fraction) => onProgress(from + share * fraction)))
   }
-  return { peaks, stillAbove }
+  return stillAbove
 }
 
-export function computeSpectrum(record: SpectrumRecord, settings: SpectrumSettings): SpectrumComputation {
-  checkInputs(record, settings)
+/** One record through the sweep kernel: the peaks of each oscillator, with their times. */
+function recordSolver(
+  record: SpectrumRecord,
+  oscillators: OscillatorSpec[],
+  method: SpectrumMethod,
+  kernel: SweepKernel,
+): OscillatorSolver & { peaks: OscillatorPeaks } {
+  const count = oscillators.length
+  const peaks = oscillatorPeaks(count)
+  const forcing = seriesForcing(record.accelMPerS2, record.dtS)
+  return {
+    peaks,
+    solve(indices, onProgress) {
+      const solved = sweepOscillators(
+        record,
+        indices.map((index) => oscillators[index]!),
+        method,
+        { kernel, onProgress },
+      )
+      indices.forEach((index, slot) => {
+        for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const) {
+          peaks[key][index] = solved[key][slot]!
+        }
+      })
+    },
+    peakBound(index) {
+      const peaks_ = {
+        sdM: peaks.sdM[index]!,
+        svMPerS: peaks.svMPerS[index]!,
+        saMPerS2: peaks.saMPerS2[index]!,
+      }
+      return oscillatorPeakBound(oscillators[index]!, record.dtS, peaks_, forcing)
+    },
+  }
+}
+
+/** Largest ratio of the maximum-direction peaks to RotD50's (how much smaller RotD50's ordinates are). */
+function rotD50Scale(maximum: OrdinatePeaks, median: OrdinatePeaks): number {
+  let scale = 1
+  for (const key of ['sdM', 'svMPerS', 'saMPerS2'] as const) {
+    if (median[key] > 0) scale = Math.max(scale, maximum[key] / median[key])
+  }
+  return scale
+}
+
+/**
+ * A pair's two components through the pair solve (rotd.ts), with the bound on peaks between steps
+ * taken relative to each reported combination (see PAIR_SUB_STEP_RULE): the geometric mean is
+ * within max(e₁, e₂) when each component's ordinate is within its own eᵢ, and a percentile over the
+ * directions is under-read by at most the largest under-read of any direction.
+ */
+function pairSolver(
+  pair: PairRecord,
+  oscillators: OscillatorSpec[],
+  method: SpectrumMethod,
+  kernel: SweepKernel,
+  combinations: readonly Combination[],
+): OscillatorSolver & { peaks: PairPeaks[] } {
+  const peaks: PairPeaks[] = []
+  const forcing1 = seriesForcing(pair.accel1MPerS2, pair.dtS)
+  const forcing2 = seriesForcing(pair.accel2MPerS2, pair.dtS)
+  const resultant = resultantForcing(pair)
+  const byComponent = combinations.includes('geomean')
+  const byDirection = combinations.includes('rotd50') || combinations.includes('rotd100')
+  const median = combinations.includes('rotd50')
+  return {
+    peaks,
+    solve(indices, onProgress) {
+      solvePairOscillators(
+        pair,
+        indices.map((index) => oscillators[index]!),
+        method,
+        kernel,
+        onProgress,
+      ).forEach((solved, slot) => {
+        peaks[indices[slot]!] = solved
+      })
+    },
+    peakBound(index) {
+      const oscillator = oscillators[index]!
+      const solved = peaks[index]!
+      let bound = 0
+      if (byComponent) {
+        const [first, second] = [pairOrdinates(solved, 'first'), pairOrdinates(solved, 'second')]
+        bound = Math.max(
+          oscillatorPeakBound(oscillator, pair.dtS, first, forcing1),
+          oscillatorPeakBound(oscillator, pair.dtS, second, forcing2),
+        )
+      }
+      if (byDirection) {
+        const maximum = pairOrdinates(solved, 'rotd100')
+        const scale = median ? rotD50Scale(maximum, pairOrdinates(solved, 'rotd50')) : 1
+        bound = Math.max(bound, scale * oscillatorPeakBound(oscillator, pair.dtS, maximum, resultant))
+      }
+      return bound
+    },
+  }
+}
+
+/** Each damping ratio's ordinates from its oscillators' peaks (damping-major, index = d·periods + p). */
+function curveOf(
+  dampingRatio: number,
+  periodsS: readonly number[],
+  ordinate: (p: number) => OrdinatePeaks,
+): Omit<SpectrumCurve, 'combination' | 'sdTimeS' | 'saTimeS'> {
+  const n = periodsS.length
+  const curve = {
+    dampingRatio,
+    sdM: new Float64Array(n),
+    svMPerS: new Float64Array(n),
+    saMPerS2: new Float64Array(n),
+    psvMPerS: new Float64Array(n),
+    psaMPerS2: new Float64Array(n),
+  }
+  periodsS.forEach((periodS, p) => {
+    const { sdM, svMPerS, saMPerS2 } = ordinate(p)
+    const omega = (2 * Math.PI) / periodS
+    curve.sdM[p] = sdM
+    curve.svMPerS[p] = svMPerS
+    curve.saMPerS2[p] = saMPerS2
+    curve.psvMPerS[p] = omega * sdM
+    curve.psaMPerS2[p] = omega * omega * sdM
+  })
+  return curve
+}
+
+/**
+ * The spectrum of a run's subject: a record (curves with peak times), or a pair of horizontal
+ * components (one curve per damping ratio and combination, see rotd.ts). Both go through one
+ * plan, one refinement driver and one result shape; only the per-oscillator solve differs.
+ */
+export function computeSpectrum(
+  record: SpectrumRecord,
+  settings: SpectrumSettings,
+): SpectrumComputation<RecordSpectrumCurve>
+export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSettings): SpectrumComputation
+export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSettings): SpectrumComputation {
+  checkInputs(subject, settings)
   const { dampingRatios, periodsS, method } = settings
-  const points = record.accelMPerS2.length
-  const plan = planSpectrum(points, record.dtS, settings)
+  const components = componentsOf(subject)
+  const points = components[0]!.length
+  const reading: PeakReading = isPairSubject(subject) ? 'step-ends' : 'between-steps'
+  const plan = planSpectrum(points, subject.dtS, settings, reading)
   const oscillators: OscillatorSpec[] = []
   dampingRatios.forEach((dampingRatio, d) => {
     periodsS.forEach((periodS, p) => {
-      oscillators.push({ periodS, dampingRatio, subSteps: plan.subSteps[d * periodsS.length + p]! })
+      const index = d * periodsS.length + p
+      const recurrence = plan.recurrences[index]!
+      oscillators.push({
+        periodS,
+        dampingRatio,
+        subSteps: plan.subSteps[index]!,
+        reading,
+        recurrence,
+      })
     })
   })
   const kernel = pickKernel(settings.kernel)
+  const combinations = settings.combinations ?? [...COMBINATIONS]
   settings.onProgress?.(0)
-  const { peaks, stillAbove } = sweepWithRefinement(record, oscillators, method, kernel, settings.onProgress)
-  settings.onProgress?.(1)
-
-  const curves = dampingRatios.map((dampingRatio, d): SpectrumCurve => {
-    const from = d * periodsS.length
-    const to = from + periodsS.length
-    const sdM = peaks.sdM.slice(from, to)
-    const psvMPerS = new Float64Array(periodsS.length)
-    const psaMPerS2 = new Float64Array(periodsS.length)
-    periodsS.forEach((periodS, p) => {
-      const omega = (2 * Math.PI) / periodS
-      psvMPerS[p] = omega * sdM[p]!
-      psaMPerS2[p] = omega * omega * sdM[p]!
+  let curves: SpectrumCurve[]
+  let stillAbove: number
+  if (isPairSubject(subject)) {
+    const solver = pairSolver(subject, oscillators, method, kernel, combinations)
+    stillAbove = refineSweep(oscillators, solver, settings.onProgress)
+    curves = dampingRatios.flatMap((dampingRatio, d) =>
+      combinations.map((combination) => ({
+        ...curveOf(dampingRatio, periodsS, (p) =>
+          pairOrdinates(solver.peaks[d * periodsS.length + p]!, combination),
+        ),
+        combination,
+      })),
+    )
+  } else {
+    const solver = recordSolver(subject, oscillators, method, kernel)
+    stillAbove = refineSweep(oscillators, solver, settings.onProgress)
+    const { peaks } = solver
+    curves = dampingRatios.map((dampingRatio, d): RecordSpectrumCurve => {
+      const from = d * periodsS.length
+      const to = from + periodsS.length
+      return {
+        ...curveOf(dampingRatio, periodsS, (p) => ({
+          sdM: peaks.sdM[from + p]!,
+          svMPerS: peaks.svMPerS[from + p]!,
+          saMPerS2: peaks.saMPerS2[from + p]!,
+        })),
+        sdTimeS: peaks.sdTimeS.slice(from, to),
+        saTimeS: peaks.saTimeS.slice(from, to),
+      }
     })
-    return {
-      dampingRatio,
-      sdM,
-      svMPerS: peaks.svMPerS.slice(from, to),
-      saMPerS2: peaks.saMPerS2.slice(from, to),
-      psvMPerS,
-      psaMPerS2,
-      sdTimeS: peaks.sdTimeS.slice(from, to),
-      saTimeS: peaks.saTimeS.slice(from, to),
-    }
-  })
+  }
+  settings.onProgress?.(1)
 
   let subStepsMin = Infinity
   let subStepsMax = 0
@@ -355,28 +729,30 @@ export function computeSpectrum(record: SpectrumRecord, settings: SpectrumSettin
   for (const { subSteps } of oscillators) {
     subStepsMin = Math.min(subStepsMin, subSteps)
     subStepsMax = Math.max(subStepsMax, subSteps)
-    oscillatorSteps += (points - 1) * subSteps
+    oscillatorSteps += components.length * (points - 1) * subSteps
   }
   const newmark = method === 'piecewise-exact' ? null : NEWMARK_PARAMETERS[method]
+  const pair = isPairSubject(subject)
   return {
     periodsS: Float64Array.from(periodsS),
     curves,
     methodStatement: {
       method,
-      solver: SOLVER_TEXT[method],
+      solver: pair ? `${SOLVER_TEXT[method]}${PAIR_SOLVER_SUFFIX}` : SOLVER_TEXT[method],
       newmarkGamma: newmark?.gamma ?? null,
       newmarkBeta: newmark?.beta ?? null,
-      recordDtS: record.dtS,
+      recordDtS: subject.dtS,
       initialConditions: 'At rest at the first sample.',
-      subStepRule: SUB_STEP_RULE,
+      subStepRule: pair ? PAIR_SUB_STEP_RULE : recordSubStepRule(method, plan.exactInstead),
       subStepsMin,
       subStepsMax,
-      freeVibrationTail: TAIL_TEXT,
+      freeVibrationTail: pair ? PAIR_TAIL_TEXT : TAIL_TEXT,
       accuracyTarget: ACCURACY_TEXT,
       kernel: kernel.name,
       engineVersion: ENGINE_VERSION,
+      ...(pair ? { combinationRule: PAIR_COMBINATION_STATEMENT } : {}),
     },
-    warnings: computationWarnings(record, settings, plan, stillAbove),
+    warnings: computationWarnings(subject.dtS, settings, plan, stillAbove),
     oscillatorSteps,
   }
 }

@@ -11,15 +11,13 @@
  * median convention is from memory).
  */
 
-import {
-  ENGINE_VERSION,
-  type MethodStatement,
-  checkSpectrumSettings,
-  planSpectrum,
-} from './computeSpectrum.js'
+import type { Combination } from '../vocabulary/combinations.js'
+import type { OrdinatePeaks } from './computeSpectrum.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
-import { NEWMARK_PARAMETERS, type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
-import { MAX_SUB_STEPS, PEAK_PICKING_BUDGET, peakPickingBound, refinedSubSteps } from './subSteps.js'
+import type { SweepKernel } from './kernel/sweepKernel.js'
+import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
+import { MAX_SUB_STEPS } from './subSteps.js'
+import type { OscillatorSpec } from './sweepOscillators.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
 export const ROTATION_ANGLE_COUNT = 180
@@ -355,45 +353,11 @@ export function geometricMeanOrdinate(s1: number, s2: number): number {
   return Math.sqrt(s1 * s2)
 }
 
-export type PairCombination = 'geomean' | 'rotd50' | 'rotd100'
-export const PAIR_COMBINATIONS: readonly PairCombination[] = ['geomean', 'rotd50', 'rotd100']
-
 export interface PairRecord {
   /** The two horizontal components (m/s²), same Δt and length. */
   accel1MPerS2: Float64Array
   accel2MPerS2: Float64Array
   dtS: number
-}
-
-export interface PairSpectrumSettings {
-  dampingRatios: number[]
-  periodsS: number[]
-  method: SpectrumMethod
-  combinations: PairCombination[]
-  onProgress?: (fraction: number) => void
-}
-
-export interface PairSpectrumCurve {
-  dampingRatio: number
-  combination: PairCombination
-  sdM: Float64Array
-  svMPerS: Float64Array
-  saMPerS2: Float64Array
-  psvMPerS: Float64Array
-  psaMPerS2: Float64Array
-}
-
-export interface PairSpectrumComputation {
-  periodsS: Float64Array
-  /** Damping-major, then in the order of `combinations`. */
-  curves: PairSpectrumCurve[]
-  /** What produced the numbers, in the single-record engine's shape, with the combination rule. */
-  methodStatement: MethodStatement & { combinationRule: string }
-  /** Non-blocking cautions about this computation. */
-  warnings: string[]
-  /** Sub-steps of each oscillator after refinement, damping-major (index = d·periods + p). */
-  subSteps: Int32Array
-  oscillatorSteps: number
 }
 
 /** Peaks in the 180 directions of relative displacement, relative velocity and absolute acceleration. */
@@ -528,239 +492,72 @@ function solvePairOscillator(
   }
 }
 
-interface DirectionalArrays {
+/** An oscillator's peaks in the 180 directions: relative displacement u, relative velocity v, absolute acceleration a. */
+export interface PairPeaks {
   u: Float64Array
   v: Float64Array
   a: Float64Array
 }
 
-/** Largest resultant ground acceleration and steepest resultant slope of the pair. */
-function pairExtremes(record: PairRecord): { pgaMPerS2: number; maxSlopeMPerS3: number } {
-  const g1 = record.accel1MPerS2
-  const g2 = record.accel2MPerS2
-  let pga = 0
-  let slope = 0
-  for (let i = 0; i < g1.length; i++) {
-    pga = Math.max(pga, Math.hypot(g1[i] as number, g2[i] as number))
-    if (i > 0)
-      slope = Math.max(
-        slope,
-        Math.hypot((g1[i] as number) - (g1[i - 1] as number), (g2[i] as number) - (g2[i - 1] as number)),
-      )
-  }
-  return { pgaMPerS2: pga, maxSlopeMPerS3: slope / record.dtS }
-}
-
-/** Refinement passes after the first, as in the single-record sweep. */
-const MAX_REFINEMENTS = 3
-
-function checkPair(record: PairRecord, settings: PairSpectrumSettings): void {
-  if (!(Number.isFinite(record.dtS) && record.dtS > 0))
-    throw new RangeError('dtS must be a positive number of seconds')
-  if (record.accel1MPerS2.length < 2) throw new RangeError('the record needs at least two samples')
-  checkSpectrumSettings(settings)
-  if (record.accel1MPerS2.length !== record.accel2MPerS2.length) {
-    throw new RangeError('the two components must have the same number of samples')
-  }
-  for (const series of [record.accel1MPerS2, record.accel2MPerS2]) {
-    for (const value of series)
-      if (!Number.isFinite(value))
-        throw new RangeError('a component holds a value that is not a finite number')
-  }
-  if (settings.combinations.length === 0) throw new RangeError('give at least one combination')
-  for (const c of settings.combinations) {
-    if (!PAIR_COMBINATIONS.includes(c)) throw new RangeError(`unknown combination ${String(c)}`)
-  }
-}
+/** Oscillator-steps of a pair's first pass between progress reports. */
+const STEPS_PER_REPORT = 3_000_000
 
 /**
- * Two-component spectra of a record pair: the geometric mean of the two components' spectra
- * (√(S₁·S₂)), and RotD50 and RotD100 (Boore 2010) over 0°–179° in 1° steps, for each damping
- * ratio and period, in SI.
- *
- * Each oscillator is solved once per component (twice in all) and the rotation is applied to
- * the response histories, u(θ,t) = u₁(t)cosθ + u₂(t)sinθ, likewise v and the absolute
- * acceleration (all linear in the ground motion). The peaks in each direction are exact over the
- * steps and the closed-form free-vibration tail; the components' own peaks are the 0° and 90°
- * directions. PSV and PSA follow from SD in each direction (ω·SD, ω²·SD), and percentiles commute
- * with that positive scaling.
- *
- * Sub-steps: the engine's first-pass rule (planSpectrum in computeSpectrum.ts), then up to three
- * refinements with its peak-picking bound (subSteps.ts), taken on the maximum-direction peaks and
- * the pair's resultant PGA and steepest resultant slope. For a linearly polarised pair this gives
- * the very sub-steps of the single-record sweep of the polarised motion.
+ * Solves each oscillator under both components of the pair (one solve per component, with its
+ * own sub-steps) and returns its peaks in every direction, in the order given.
  */
-export function computeRotDSpectrum(
-  record: PairRecord,
-  settings: PairSpectrumSettings,
-): PairSpectrumComputation {
-  checkPair(record, settings)
-  const { dampingRatios, periodsS, method } = settings
-  const points = record.accel1MPerS2.length
-  const plan = planSpectrum(points, record.dtS, settings)
-  const count = plan.subSteps.length
-  const subSteps = Int32Array.from(plan.subSteps)
-  // One set of trackers serves every oscillator; each one's peaks are copied out after its solve.
+export function solvePairOscillators(
+  pair: PairRecord,
+  oscillators: readonly OscillatorSpec[],
+  method: SpectrumMethod,
+  _kernel: SweepKernel,
+  onProgress?: (fraction: number) => void,
+): PairPeaks[] {
   const work: OscillatorDirections = {
     u: new DirectionalPeaks(),
     v: new DirectionalPeaks(),
     a: new DirectionalPeaks(),
   }
   const block = historyBlock()
-  const peaks = Array.from({ length: count }, () => ({
-    u: new Float64Array(ROTATION_ANGLE_COUNT),
-    v: new Float64Array(ROTATION_ANGLE_COUNT),
-    a: new Float64Array(ROTATION_ANGLE_COUNT),
-  }))
-  const solve = (index: number) => {
-    const { periodS, dampingRatio } = oscillator(index)
-    solvePairOscillator(record, method, periodS, dampingRatio, subSteps[index] as number, work, block)
-    const p = peaks[index] as DirectionalArrays
-    p.u.set(work.u.peaks)
-    p.v.set(work.v.peaks)
-    p.a.set(work.a.peaks)
-  }
-  const oscillator = (index: number) => ({
-    periodS: periodsS[index % periodsS.length] as number,
-    dampingRatio: dampingRatios[Math.floor(index / periodsS.length)] as number,
-  })
-  const intervals = points - 1
-  let firstPassSteps = 0
-  for (const m of subSteps) firstPassSteps += intervals * m
+  const intervals = pair.accel1MPerS2.length - 1
+  let total = 0
+  for (const { subSteps } of oscillators) total += intervals * subSteps
   let done = 0
-  settings.onProgress?.(0)
-  for (let index = 0; index < count; index++) {
-    solve(index)
-    done += intervals * (subSteps[index] as number)
-    settings.onProgress?.(0.9 * (done / Math.max(firstPassSteps, 1)))
-  }
-  const extremes = pairExtremes(record)
-  for (let pass = 0; pass < MAX_REFINEMENTS; pass++) {
-    const again: number[] = []
-    for (let index = 0; index < count; index++) {
-      const { periodS, dampingRatio } = oscillator(index)
-      const p = peaks[index] as DirectionalArrays
-      const m = subSteps[index] as number
-      const bound = peakPickingBound({
-        periodS,
-        dampingRatio,
-        stepS: record.dtS / m,
-        sdM: peakAbs(p.u),
-        svMPerS: peakAbs(p.v),
-        saMPerS2: peakAbs(p.a),
-        ...extremes,
-      })
-      if (bound <= PEAK_PICKING_BUDGET || m >= MAX_SUB_STEPS) continue
-      subSteps[index] = refinedSubSteps(m, bound)
-      again.push(index)
+  let reported = 0
+  return oscillators.map(({ periodS, dampingRatio, subSteps }) => {
+    solvePairOscillator(pair, method, periodS, dampingRatio, subSteps, work, block)
+    done += intervals * subSteps
+    if (onProgress && done - reported >= STEPS_PER_REPORT) {
+      reported = done
+      onProgress(done / total)
     }
-    for (const index of again) solve(index)
-    settings.onProgress?.(0.9 + (0.1 * (pass + 1)) / MAX_REFINEMENTS)
-    if (again.length === 0) break
-  }
-  settings.onProgress?.(1)
-
-  const scratch = new Float64Array(ROTATION_ANGLE_COUNT)
-  const curves: PairSpectrumCurve[] = []
-  dampingRatios.forEach((dampingRatio, d) => {
-    const made = new Map<PairCombination, PairSpectrumCurve>()
-    for (const combination of settings.combinations) {
-      made.set(combination, {
-        dampingRatio,
-        combination,
-        sdM: new Float64Array(periodsS.length),
-        svMPerS: new Float64Array(periodsS.length),
-        saMPerS2: new Float64Array(periodsS.length),
-        psvMPerS: new Float64Array(periodsS.length),
-        psaMPerS2: new Float64Array(periodsS.length),
-      })
-    }
-    periodsS.forEach((periodS, p) => {
-      const directional = peaks[d * periodsS.length + p] as DirectionalArrays
-      const u = rotDFromPeaks(directional.u, scratch)
-      const v = rotDFromPeaks(directional.v, scratch)
-      const a = rotDFromPeaks(directional.a, scratch)
-      const omega = (2 * Math.PI) / periodS
-      for (const [combination, curve] of made) {
-        let sd: number
-        let sv: number
-        let sa: number
-        if (combination === 'geomean') {
-          sd = geometricMeanOrdinate(directional.u[0] as number, directional.u[SECOND_COMPONENT] as number)
-          sv = geometricMeanOrdinate(directional.v[0] as number, directional.v[SECOND_COMPONENT] as number)
-          sa = geometricMeanOrdinate(directional.a[0] as number, directional.a[SECOND_COMPONENT] as number)
-        } else {
-          const key = combination === 'rotd50' ? 'rotD50' : 'rotD100'
-          sd = u[key]
-          sv = v[key]
-          sa = a[key]
-        }
-        curve.sdM[p] = sd
-        curve.svMPerS[p] = sv
-        curve.saMPerS2[p] = sa
-        curve.psvMPerS[p] = omega * sd
-        curve.psaMPerS2[p] = omega * omega * sd
-      }
-    })
-    curves.push(...made.values())
+    return { u: work.u.peaks.slice(), v: work.v.peaks.slice(), a: work.a.peaks.slice() }
   })
-  let oscillatorSteps = 0
-  let subStepsMin = Infinity
-  let subStepsMax = 0
-  for (const m of subSteps) {
-    oscillatorSteps += 2 * intervals * m
-    subStepsMin = Math.min(subStepsMin, m)
-    subStepsMax = Math.max(subStepsMax, m)
+}
+
+/** The components' own peaks: the 0° and 90° directions. */
+export type PairComponent = 'first' | 'second'
+
+/**
+ * One oscillator's ordinates for a combination (the geometric mean √(S₁·S₂) of the components
+ * as recorded, or RotD50 / RotD100 of the directional peaks), or one component's own.
+ */
+export function pairOrdinates(peaks: PairPeaks, of: Combination | PairComponent): OrdinatePeaks {
+  if (of === 'first' || of === 'second') {
+    const k = of === 'first' ? 0 : SECOND_COMPONENT
+    return { sdM: peaks.u[k]!, svMPerS: peaks.v[k]!, saMPerS2: peaks.a[k]! }
   }
-  const newmark = method === 'piecewise-exact' ? null : NEWMARK_PARAMETERS[method]
-  const warnings: string[] = []
-  const shortest = periodsS.filter((periodS) => periodS < 2 * record.dtS).length
-  if (shortest > 0) {
-    warnings.push(
-      `${shortest} period${shortest === 1 ? ' is' : 's are'} shorter than 2Δt = ${2 * record.dtS} s, the shortest the records resolve; ordinates there follow the straight lines between samples.`,
-    )
+  if (of === 'geomean') {
+    const mean = (p: Float64Array) => geometricMeanOrdinate(p[0]!, p[SECOND_COMPONENT]!)
+    return { sdM: mean(peaks.u), svMPerS: mean(peaks.v), saMPerS2: mean(peaks.a) }
   }
-  if (plan.capped.length > 0) {
-    warnings.push(
-      `For ${plan.capped.length} oscillator(s) the cap of ${MAX_SUB_STEPS} sub-steps stopped short of the solver-accuracy rule.`,
-    )
-  }
+  const key = of === 'rotd50' ? 'rotD50' : 'rotD100'
   return {
-    periodsS: Float64Array.from(periodsS),
-    curves,
-    methodStatement: {
-      method,
-      solver: PAIR_SOLVER_TEXT[method],
-      newmarkGamma: newmark?.gamma ?? null,
-      newmarkBeta: newmark?.beta ?? null,
-      recordDtS: record.dtS,
-      initialConditions: 'At rest at the first sample.',
-      subStepRule: PAIR_SUB_STEP_RULE,
-      subStepsMin,
-      subStepsMax,
-      freeVibrationTail:
-        'Included: after the last sample the ground is still; the peaks of the free vibration are found in closed form in every direction.',
-      accuracyTarget:
-        'Sub-steps as for a single record (0.5% target), refined on the maximum-direction peaks; rotated peaks are exact over the steps.',
-      kernel: 'js',
-      engineVersion: ENGINE_VERSION,
-      combinationRule: PAIR_COMBINATION_STATEMENT,
-    },
-    warnings,
-    subSteps,
-    oscillatorSteps,
+    sdM: rotDFromPeaks(peaks.u)[key],
+    svMPerS: rotDFromPeaks(peaks.v)[key],
+    saMPerS2: rotDFromPeaks(peaks.a)[key],
   }
 }
-
-const PAIR_SOLVER_TEXT: Record<SpectrumMethod, string> = {
-  'newmark-average': 'Newmark-β, average acceleration (γ = 1/2, β = 1/4), on each component (Newmark 1959)',
-  'newmark-linear': 'Newmark-β, linear acceleration (γ = 1/2, β = 1/6), on each component (Newmark 1959)',
-  'piecewise-exact': 'Piecewise-exact recurrence on each component (Nigam & Jennings 1969)',
-}
-
-const PAIR_SUB_STEP_RULE =
-  'Per oscillator, the single-record first-pass sub-steps (planSpectrum), then up to three refinements while the ' +
-  'peak-picking bound, from the maximum-direction peaks and the pair’s resultant PGA and steepest resultant slope, exceeds 0.25%.'
 
 export const PAIR_COMBINATION_STATEMENT =
   'Two components: each oscillator solved once per component; responses rotated as u(θ,t) = u₁(t)cosθ + u₂(t)sinθ ' +

@@ -37,6 +37,17 @@ export interface OscillatorPeaks {
   saTimeS: Float64Array
 }
 
+/** Zeroed peaks for `count` oscillators. */
+export function oscillatorPeaks(count: number): OscillatorPeaks {
+  return {
+    sdM: new Float64Array(count),
+    svMPerS: new Float64Array(count),
+    saMPerS2: new Float64Array(count),
+    sdTimeS: new Float64Array(count),
+    saTimeS: new Float64Array(count),
+  }
+}
+
 export interface SweepOptions {
   kernel?: SweepKernel
   onProgress?: (fraction: number) => void
@@ -63,13 +74,7 @@ export function sweepOscillators(
   const intervals = accel.length - 1
   const durationS = intervals * dtS
   const count = oscillators.length
-  const peaks: OscillatorPeaks = {
-    sdM: new Float64Array(count),
-    svMPerS: new Float64Array(count),
-    saMPerS2: new Float64Array(count),
-    sdTimeS: new Float64Array(count),
-    saTimeS: new Float64Array(count),
-  }
+  const peaks = oscillatorPeaks(count)
   const recurrenceOf = (index: number) => oscillators[index]!.recurrence ?? method
   const order = Array.from({ length: count }, (_, i) => i).sort(
     (a, b) =>

@@ -1,6 +1,6 @@
 import {
   type MethodStatement,
-  type SpectrumCurve,
+  type RecordSpectrumCurve,
   computeSpectrum,
 } from '../../shared/spectra/computeSpectrum.js'
 import { DEMO_RECORD_IDS, demoRecord } from '../../shared/spectra/demo/demoRecords.js'
@@ -12,6 +12,7 @@ import {
   recordParameters,
   recordWarnings,
 } from '../../shared/spectra/recordParameters.js'
+import { warningMessages } from '../../shared/warningMessages.js'
 
 export interface DemoSpectrumResult {
   record: { id: string; name: string; description: string; fileName: string; sourceUnits: string }
@@ -22,9 +23,9 @@ export interface DemoSpectrumResult {
   velMPerS: Float64Array
   dispM: Float64Array
   periodsS: Float64Array
-  curve: SpectrumCurve
+  curve: RecordSpectrumCurve
   methodStatement: MethodStatement
-  /** Cautions about this computation (periods below 2Δt, sub-step caps). */
+  /** Cautions about this computation (periods below 2Δt, sub-step caps), worded by the message table. */
   computationWarnings: string[]
   computeMs: number
 }
@@ -63,7 +64,7 @@ export function computeDemoSpectrum(dampingRatio: number): DemoSpectrumResult {
     periodsS: spectrum.periodsS,
     curve,
     methodStatement: spectrum.methodStatement,
-    computationWarnings: spectrum.warnings,
+    computationWarnings: warningMessages(spectrum.warnings),
     computeMs,
   }
 }

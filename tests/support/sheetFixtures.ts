@@ -4,6 +4,7 @@ import { DEMO_RECORD_IDS, demoRecord } from '../../shared/spectra/demo/demoRecor
 import { parseRecord } from '../../shared/spectra/parseRecord.js'
 import { defaultPeriodsS } from '../../shared/spectra/periods.js'
 import { recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
+import { warningMessages } from '../../shared/warningMessages.js'
 import { type RunSheetFacts, buildRunSheetFromFacts } from '../../server/exports/runSheet.js'
 import type { ReviewFacts } from '../../server/exports/sheetParts.js'
 
@@ -66,7 +67,7 @@ export function demoRunFacts(): RunSheetFacts {
     spectrumWarnings: [
       ...parsed.warnings,
       ...recordWarnings(parsed.accelMPerS2, parsed.dtS),
-      ...computation.warnings,
+      ...warningMessages(computation.warnings),
     ],
     review: null,
   }
