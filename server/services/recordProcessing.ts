@@ -23,7 +23,7 @@ import { badRequest } from '../httpError.js'
 import { newId } from '../ids.js'
 import { recordAudit } from './audit.js'
 import { decimateMinMax } from './decimateMinMax.js'
-import { getRecord, loadRecordSamples, type RecordUploader } from './records.js'
+import { getRecord, loadRecordSamples, parameterColumns, type RecordUploader } from './records.js'
 import { encodeSamples } from './sampleBlob.js'
 
 /**
@@ -162,15 +162,8 @@ export function createProcessedRecord(
           sha256,
           format: parent.format,
           sourceUnits: parent.sourceUnits,
-          points: parameters.points,
+          ...parameterColumns(parameters),
           dtS,
-          durationS: parameters.durationS,
-          pgaMPerS2: parameters.pgaMPerS2,
-          pgvMPerS: parameters.pgvMPerS,
-          pgdM: parameters.pgdM,
-          ariasMPerS: parameters.ariasMPerS,
-          d595S: parameters.d595S,
-          cavMPerS: parameters.cavMPerS,
           warnings: [...processed.warnings, ...recordWarnings(processed.accelMPerS2, dtS)],
           samples,
           synthetic: parent.synthetic,

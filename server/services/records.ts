@@ -3,7 +3,12 @@ import path from 'node:path'
 import { and, asc, count, desc, eq, inArray, isNotNull, or, type SQL } from 'drizzle-orm'
 import { may, refusalFor } from '../../shared/permissions.js'
 import { parseRecord, RecordParseError } from '../../shared/spectra/parseRecord.js'
-import { integrateRecord, recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
+import {
+  type RecordParameters,
+  integrateRecord,
+  recordParameters,
+  recordWarnings,
+} from '../../shared/spectra/recordParameters.js'
 import type { SourceUnits } from '../../shared/spectra/units.js'
 import { recordProcessingSchema } from '../../shared/schemas/processing.js'
 import type {
@@ -114,17 +119,9 @@ export function createRecord(
     id: newId(),
     name: input.name?.trim() || defaultName(fileName),
     projectId: project.id,
-    points: parameters.points,
-    dtS: parameters.dtS,
-    durationS: parameters.durationS,
+    ...parameterColumns(parameters),
     sourceUnits: parsed.sourceUnits,
     component: input.component?.trim() || null,
-    pgaMPerS2: parameters.pgaMPerS2,
-    pgvMPerS: parameters.pgvMPerS,
-    pgdM: parameters.pgdM,
-    ariasMPerS: parameters.ariasMPerS,
-    d595S: parameters.d595S,
-    cavMPerS: parameters.cavMPerS,
     sha256,
     uploadedBy: member.userId,
     createdAt: Date.now(),
@@ -294,6 +291,12 @@ export function recordSamplesForPlot(
     velMPerS: Array.from(vel),
     dispM: Array.from(disp),
   }
+}
+
+/** The record parameters a record row keeps, from the engine's full set. */
+export function parameterColumns(p: RecordParameters) {
+  const { points, dtS, durationS, pgaMPerS2, pgvMPerS, pgdM, ariasMPerS, d595S, cavMPerS } = p
+  return { points, dtS, durationS, pgaMPerS2, pgvMPerS, pgdM, ariasMPerS, d595S, cavMPerS }
 }
 
 /** The firm's record pairs that have the record as one of their components. */
