@@ -1,11 +1,11 @@
 import { eq } from 'drizzle-orm'
 import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { recordPairs, runs } from '../../server/db/schema.js'
+import { recordPairs, records, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
 import { creditBalance } from '../../server/services/credits.js'
-import { computeRotDSpectrum } from '../../shared/spectra/rotd.js'
+import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
 import { insertRecord, setCredits, syntheticMotion } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -138,7 +138,7 @@ describe('POST /api/runs with a record pair', () => {
       'Synthetic pair H2 (synthetic)',
     ])
     // The same inputs give the same numbers: the pair sweep called directly.
-    const direct = computeRotDSpectrum(
+    const direct = computeSpectrum(
       { accel1MPerS2: a1, accel2MPerS2: a2, dtS },
       {
         dampingRatios: [0.05],
@@ -224,5 +224,90 @@ describe('run revisions and review state in the runs list', () => {
     expect(mismatch.status).toBe(400)
     expect(mismatch.body.error.code).toBe('revision_subject_mismatch')
     expect((await engineer.post('/api/runs').send({ recordId, revisionOf: newId() })).status).toBe(404)
+  })
+})
+
+describe("a record's runs include the runs of its pairs (issue 12, defect 3)", () => {
+  it('GET /api/runs?recordId= lists the pair runs, as many as deleting the record reports', async () => {
+    const pair = ctx.db
+      .select({ record1Id: recordPairs.record1Id })
+      .from(recordPairs)
+      .where(eq(recordPairs.id, pairId))
+      .get()!
+    const pairRunIds = ctx.db
+      .select({ id: runs.id })
+      .from(runs)
+      .where(eq(runs.pairId, pairId))
+      .all()
+      .map((r) => r.id)
+    expect(pairRunIds.length).toBeGreaterThan(0)
+    const list = await engineer.get('/api/runs').query({ recordId: pair.record1Id })
+    expect(list.status).toBe(200)
+    const listed = list.body.items.map((r: { id: string }) => r.id)
+    expect([...listed].sort()).toEqual([...pairRunIds].sort())
+    expect(list.body.items.every((r: { pairId: string | null }) => r.pairId === pairId)).toBe(true)
+
+    const refused = await engineer.delete(`/api/records/${pair.record1Id}`)
+    expect(refused.status).toBe(409)
+    const count = listed.length === 1 ? 'a run' : `${listed.length} runs`
+    expect(refused.body.error.message).toContain(`used by ${count}`)
+  })
+
+  it("another firm's member sees none of them", async () => {
+    const pair = ctx.db
+      .select({ record1Id: recordPairs.record1Id })
+      .from(recordPairs)
+      .where(eq(recordPairs.id, pairId))
+      .get()!
+    const res = await outsider.get('/api/runs').query({ recordId: pair.record1Id })
+    expect(res.body.items).toEqual([])
+  })
+})
+
+describe('the paperwork of a pair whose components came in different units (issue 12, defect 3)', () => {
+  let runId: string
+
+  beforeAll(async () => {
+    const mixedPairId = insertPair('Synthetic mixed-units pair', a1, a2)
+    const pair = ctx.db.select().from(recordPairs).where(eq(recordPairs.id, mixedPairId)).get()!
+    // The samples are stored in SI either way; the second file is recorded as read in cm/s².
+    ctx.db.update(records).set({ sourceUnits: 'cm/s2' }).where(eq(records.id, pair.record2Id)).run()
+    const res = await engineer
+      .post('/api/runs')
+      .send({ pairId: mixedPairId, combinations: ['rotd50'], dampingRatios: [0.05], periodsS })
+    expect(res.status).toBe(202)
+    runId = res.body.id
+    expect(await finished(runId)).toBe('succeeded')
+  })
+
+  it('the method statement names no internal function (it once said "(planSpectrum)")', async () => {
+    const res = await engineer.get(`/api/runs/${runId}/spectrum`)
+    const text = Object.values(res.body.methodStatement).filter((v) => typeof v === 'string')
+    expect(text.length).toBeGreaterThan(0)
+    for (const line of text) expect(line).not.toMatch(/\b[a-z]+[A-Z][A-Za-z]*\b/)
+  })
+
+  it("the spectrum names each component's source units", async () => {
+    const res = await engineer.get(`/api/runs/${runId}/spectrum`)
+    expect(res.body.pair.components.map((c: { sourceUnits: string }) => c.sourceUnits)).toEqual([
+      'm/s2',
+      'cm/s2',
+    ])
+  })
+
+  it("the CSV and the sheet state each component's units, not one for both", async () => {
+    const csv = await engineer.get(`/api/runs/${runId}/export.csv`)
+    expect(csv.status).toBe(200)
+    expect(csv.text).toContain('Synthetic mixed-units pair H1 (synthetic) m/s2')
+    expect(csv.text).toContain('Synthetic mixed-units pair H2 (synthetic) cm/s2')
+    const sheet = await engineer.get(`/api/runs/${runId}/sheet`)
+    const processing = sheet.body.records.map(
+      (r: { fields: { label: string; value: string }[] }) =>
+        r.fields.find((f) => f.label === 'Processing')?.value,
+    )
+    expect(processing).toEqual([
+      expect.stringMatching(/read in m\/s²/),
+      expect.stringMatching(/Converted from cm\/s² \(gal\) to m\/s²/),
+    ])
   })
 })
