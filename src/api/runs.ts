@@ -46,11 +46,6 @@ export function getRunSpectrum(id: string, signal?: AbortSignal): Promise<Spectr
   return apiRequest(`/api/runs/${encodeURIComponent(id)}/spectrum`, spectrumResultSchema, { signal })
 }
 
-/** Where the browser downloads the run's CSV (a plain link: the server names the file). */
-export function runSpectrumCsvUrl(id: string): string {
-  return `/api/runs/${encodeURIComponent(id)}/spectrum.csv`
-}
-
 export interface RunEventHandlers {
   onProgress: (event: RunProgressEvent) => void
   onStatus: (event: RunStatusEvent) => void
