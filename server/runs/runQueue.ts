@@ -171,8 +171,7 @@ export class RunQueue {
         part.answered = true
         this.endRun(run, `The computation failed: ${reply.message}`)
         return
-      case 'result':
-      case 'pair-result': {
+      case 'result': {
         part.answered = true
         part.result = reply
         const outcome = run.outcome()

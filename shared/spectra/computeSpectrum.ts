@@ -748,7 +748,8 @@ export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSett
       subStepsMax,
       freeVibrationTail: pair ? PAIR_TAIL_TEXT : TAIL_TEXT,
       accuracyTarget: ACCURACY_TEXT,
-      kernel: kernel.name,
+      // A pair's histories run in JavaScript (rotd.ts pairHistories), whatever kernel a record would use.
+      kernel: pair ? 'js' : kernel.name,
       engineVersion: ENGINE_VERSION,
       ...(pair ? { combinationRule: PAIR_COMBINATION_STATEMENT } : {}),
     },
