@@ -48,13 +48,15 @@ describe('engine pins (code at commit 255106a)', () => {
         psaAt5PercentPeriod150: result.curves[1]!.psaMPerS2[150],
       }
       console.log(`standard record job (${kernel}):`, pin)
-      // As at 255106a; the one refinement driver alone keeps these bits. When the per-oscillator
-      // rules (subSteps.ts, betweenSteps.ts) move them, the commit that moves them refreshes this
-      // pin and says why, with accuracy shown by computeSpectrum.odex.test.ts.
+      // At 255106a: sha256 4ed40e8c…014b, 128,656,000 oscillator-steps, PSA 4.429485955041098; the
+      // one refinement driver alone kept those bits (checked before records opted in). They moved
+      // when records began to read peaks between steps (betweenSteps.ts: cubic Hermite
+      // interpolants for Newmark, with the solver rule of subSteps.ts), accuracy shown by
+      // computeSpectrum.odex.test.ts. A later change of those rules refreshes this pin and says why.
       expect(pin).toEqual({
-        sha256: '4ed40e8c5edee33cccc2470b8af88b82b0b28daaeed9c2c538adab09f066014b',
-        oscillatorSteps: 128_656_000,
-        psaAt5PercentPeriod150: 4.429485955041098,
+        sha256: '7cbbba92439562f4aa9e8b6aee90a6edf78bf119e20849c28feebbfc41878bbc',
+        oscillatorSteps: 158_720_000,
+        psaAt5PercentPeriod150: 4.429721502940282,
       })
     }
   })
