@@ -1,6 +1,7 @@
 import type { SpectrumJob, WorkerRequest } from '../../shared/schemas/spectrumWorker.js'
 import type { ClaimedRun, WorkerResult } from './runStore.js'
 import { mergeRunParts, planRunParts } from './splitRun.js'
+import { workerRequestFor } from './workerRequest.js'
 
 /** One part of a run: its periods, its share of the work, its progress and, once done, its result. */
 export interface Part {
@@ -47,19 +48,8 @@ export class ActiveRun {
     const job = this.job
     const copy: SpectrumJob =
       this.parts.length === 1 || job.kind !== 'record' ? job : { ...job, samples: job.samples.slice(0) }
-    const { method, dampingRatios, combinations } = this.claimed.settings
     return {
-      request: {
-        type: 'run',
-        runId: this.id,
-        job: copy,
-        settings: {
-          method,
-          dampingRatios,
-          periodsS: part.periodsS,
-          ...(combinations ? { combinations } : {}),
-        },
-      },
+      request: workerRequestFor(this.claimed, copy, part.periodsS),
       transfer: copy.kind === 'record' ? [copy.samples] : [copy.samples1, copy.samples2],
     }
   }
