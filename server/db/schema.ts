@@ -9,6 +9,7 @@ import {
   text,
   uniqueIndex,
 } from 'drizzle-orm/sqlite-core'
+import type { RunSettings } from '../../shared/schemas/runs.js'
 import { COMBINATIONS } from '../../shared/vocabulary/combinations.js'
 import { STORED_REVIEW_STATES } from '../../shared/vocabulary/reviewStates.js'
 import { RUN_STATUSES } from '../../shared/vocabulary/runStatuses.js'
@@ -216,7 +217,8 @@ export const runs = sqliteTable(
     status: text('status', { enum: RUN_STATUSES }).notNull(),
     progress: real('progress').notNull().default(0),
     error: text('error'),
-    settings: text('settings', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
+    /** Written from the run request, read back through decodeRunSettings (server/db/parseStored.ts). */
+    settings: text('settings', { mode: 'json' }).$type<RunSettings>().notNull(),
     creditsCharged: integer('credits_charged').notNull().default(0),
     recordSha256: text('record_sha256').notNull(),
     engineVersion: text('engine_version'),

@@ -593,7 +593,13 @@ describe('DELETE /api/records/:id', () => {
         recordId: fields.recordId ?? null,
         pairId: fields.pairId ?? null,
         status: 'succeeded',
-        settings: {},
+        settings: {
+          method: 'newmark-average',
+          dampingRatios: [0.05],
+          periodsS: [1],
+          periodChoice: 'list',
+          periodGrid: null,
+        },
         recordSha256: fields.sha256,
         createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
       })

@@ -9,6 +9,7 @@ import { planRunParts } from '../../server/runs/splitRun.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
 import { createRecord } from '../../server/services/records.js'
+import type { RunSettings } from '../../shared/schemas/runs.js'
 import { spectrumResultSchema } from '../../shared/schemas/spectrum.js'
 import { computeSpectrum, type SpectrumSettings } from '../../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../../shared/spectra/demo/demoRecords.js'
@@ -505,7 +506,7 @@ describe('GET /api/runs/:id/spectrum', () => {
         recordId: record.id,
         status: 'failed',
         error: 'test',
-        settings: smallRun.settings as Record<string, unknown>,
+        settings: smallRun.settings as RunSettings,
         recordSha256: record.sha256,
         createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
       })
@@ -651,7 +652,7 @@ describe('GET /api/runs/:id/events', () => {
         recordId: record.id,
         status: 'running',
         attempts: 1,
-        settings: smallRun.settings as Record<string, unknown>,
+        settings: smallRun.settings as RunSettings,
         recordSha256: record.sha256,
         createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
       })
