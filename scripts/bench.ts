@@ -8,8 +8,13 @@
  *    widest (-march=native) (best of 7 runs each, after warm-up).
  * 2. The standard job: the bundled synthetic far-field record (8,001 points at
  *    Δt = 0.005 s), the default period grid (301 periods, 0.01–10 s), damping 0.02,
- *    0.05, 0.10 and 0.20, the default method (newmark-average): total time (median of
- *    5 runs after warm-up) and ns per oscillator-step, both kernels.
+ *    0.05, 0.10 and 0.20, for each method: unrefined oscillator-steps (one step per
+ *    sample), the steps run, their ratio and the time (median of 5 runs after warm-up),
+ *    with the default (WebAssembly) kernel; then the same for the default method on the
+ *    JavaScript kernel.
+ * 3. Short periods against long ones, per method: the standard job's time over the time of
+ *    the same job on 301 periods in 1–10 s, measured in the same run (medians of 5,
+ *    alternating), so the machine's load cancels.
  */
 import { execFileSync } from 'node:child_process'
 import { mkdtempSync, writeFileSync } from 'node:fs'
@@ -25,7 +30,13 @@ import {
   jsKernel,
   wasmKernel,
 } from '../shared/spectra/kernel/sweepKernel.js'
-import { recurrenceCoefficients } from '../shared/spectra/oscillatorRecurrence.js'
+import { kernelCoefficients } from '../shared/spectra/betweenSteps.js'
+import { CANDIDATE_VALUES } from '../shared/spectra/kernel/sweepKernel.js'
+import {
+  SPECTRUM_METHODS,
+  type SpectrumMethod,
+  recurrenceCoefficients,
+} from '../shared/spectra/oscillatorRecurrence.js'
 import { parseRecord } from '../shared/spectra/parseRecord.js'
 import { defaultPeriodsS, logPeriodGrid } from '../shared/spectra/periods.js'
 
@@ -45,11 +56,20 @@ function longPeriodCoefficients(): { count: number; coeffs: Float64Array } {
   const periods = logPeriodGrid(1, 10, 200)
   const count = periods.length
   const coeffs = new Float64Array(COEFFICIENT_ARRAYS * count)
+  let pga = 0
+  let slope = 0
+  const a = record.accelMPerS2
+  for (let i = 0; i < a.length; i++) {
+    pga = Math.max(pga, Math.abs(a[i]!))
+    if (i > 0) slope = Math.max(slope, Math.abs(a[i]! - a[i - 1]!))
+  }
+  const bounds = { pgaMPerS2: pga, maxSlopeMPerS3: slope / record.dtS }
   periods.forEach((periodS, o) => {
     const omega = (2 * Math.PI) / periodS
     const c = recurrenceCoefficients('newmark-average', omega, 0.05, record.dtS)
-    const values = [c.a11, c.a12, c.b1, c.c1, c.a21, c.a22, c.b2, c.c2, 0.1 * omega, omega * omega]
-    values.forEach((value, q) => (coeffs[q * count + o] = value))
+    kernelCoefficients(c, omega, 0.05, record.dtS, bounds).forEach(
+      (value, q) => (coeffs[q * count + o] = value),
+    )
   })
   return { count, coeffs }
 }
@@ -58,12 +78,15 @@ function kernelNsPerStep(
   kernel: SweepKernel,
   count: number,
   coeffs: Float64Array,
-): { ns: number; firstPeak: number } {
+): { ns: number; firstPeak: number; candidates: number } {
   const out = new Float64Array(OUTPUT_ARRAYS * count)
+  const candidates = { values: new Float64Array(CANDIDATE_VALUES * 100_000), capacity: 100_000 }
   kernel.loadRecord(record.accelMPerS2)
-  for (let i = 0; i < 3; i++) kernel.sweep(count, 1, coeffs, out)
-  const times = Array.from({ length: 7 }, () => timeMs(() => kernel.sweep(count, 1, coeffs, out)))
-  return { ns: (Math.min(...times) * 1e6) / (count * (samples - 1)), firstPeak: out[0]! }
+  let found = 0
+  const sweep = () => (found = kernel.sweep(count, 1, record.dtS, coeffs, out, candidates))
+  for (let i = 0; i < 3; i++) sweep()
+  const times = Array.from({ length: 7 }, () => timeMs(sweep))
+  return { ns: (Math.min(...times) * 1e6) / (count * (samples - 1)), firstPeak: out[0]!, candidates: found }
 }
 
 /** The C reference built with extra gcc flags (none: SSE2, 128-bit vectors like WebAssembly SIMD). */
@@ -71,7 +94,7 @@ function cReference(
   count: number,
   coeffs: Float64Array,
   flags: string[],
-): { ns: number; firstPeak: number } | string {
+): { ns: number; firstPeak: number; candidates: number } | string {
   const source = fileURLToPath(new URL('./benchSweepKernel.c', import.meta.url))
   const dir = mkdtempSync(join(tmpdir(), 'ordinate-bench-'))
   const binary = join(dir, 'sweep')
@@ -82,29 +105,63 @@ function cReference(
   } catch {
     return 'skipped (gcc not available)'
   }
-  const input = Buffer.alloc(8 + 8 * (samples + coeffs.length))
+  const input = Buffer.alloc(16 + 8 * (samples + coeffs.length))
   input.writeInt32LE(samples, 0)
   input.writeInt32LE(count, 4)
-  Buffer.from(record.accelMPerS2.buffer, record.accelMPerS2.byteOffset, samples * 8).copy(input, 8)
-  Buffer.from(coeffs.buffer, coeffs.byteOffset, coeffs.byteLength).copy(input, 8 + 8 * samples)
+  input.writeDoubleLE(record.dtS, 8)
+  Buffer.from(record.accelMPerS2.buffer, record.accelMPerS2.byteOffset, samples * 8).copy(input, 16)
+  Buffer.from(coeffs.buffer, coeffs.byteOffset, coeffs.byteLength).copy(input, 16 + 8 * samples)
   const inputPath = join(dir, 'input.bin')
   writeFileSync(inputPath, input)
-  const [ns, peak] = execFileSync(binary, [inputPath], { encoding: 'utf8' }).trim().split(' ').map(Number)
-  return { ns: ns!, firstPeak: peak! }
+  const [ns, peak, found] = execFileSync(binary, [inputPath], { encoding: 'utf8' })
+    .trim()
+    .split(' ')
+    .map(Number)
+  return { ns: ns!, firstPeak: peak!, candidates: found! }
 }
 
-function standardJob(kernel: 'wasm-simd' | 'js'): { totalMs: number; steps: number; subSteps: string } {
-  const settings = {
-    dampingRatios: [0.02, 0.05, 0.1, 0.2],
-    periodsS: defaultPeriodsS(),
-    method: 'newmark-average' as const,
-    kernel,
-  }
+const STANDARD_DAMPING = [0.02, 0.05, 0.1, 0.2]
+
+interface JobTiming {
+  totalMs: number
+  steps: number
+  unrefinedSteps: number
+  subSteps: string
+}
+
+/** One run of the job, timed. */
+function runJob(method: SpectrumMethod, kernel: 'wasm-simd' | 'js', periodsS: number[]) {
+  const settings = { dampingRatios: STANDARD_DAMPING, periodsS, method, kernel }
   const job = { accelMPerS2: record.accelMPerS2, dtS: record.dtS }
   let result = computeSpectrum(job, settings)
-  const times = Array.from({ length: 5 }, () => timeMs(() => (result = computeSpectrum(job, settings))))
+  const ms = timeMs(() => (result = computeSpectrum(job, settings)))
+  return { ms, result }
+}
+
+function standardJob(method: SpectrumMethod, kernel: 'wasm-simd' | 'js'): JobTiming {
+  runJob(method, kernel, defaultPeriodsS())
+  const runs = Array.from({ length: 5 }, () => runJob(method, kernel, defaultPeriodsS()))
+  const { result } = runs[0]!
   const { subStepsMin, subStepsMax } = result.methodStatement
-  return { totalMs: median(times), steps: result.oscillatorSteps, subSteps: `${subStepsMin}–${subStepsMax}` }
+  return {
+    totalMs: median(runs.map((run) => run.ms)),
+    steps: result.oscillatorSteps,
+    unrefinedSteps: (samples - 1) * STANDARD_DAMPING.length * defaultPeriodsS().length,
+    subSteps: `${subStepsMin}–${subStepsMax}`,
+  }
+}
+
+/** The full grid's time over the long-period grid's (301 periods in 1–10 s), alternating runs, medians of 5. */
+function shortOverLong(method: SpectrumMethod): { full: number; long: number } {
+  const longPeriods = logPeriodGrid(1, 10, defaultPeriodsS().length)
+  runJob(method, 'wasm-simd', longPeriods)
+  const full: number[] = []
+  const long: number[] = []
+  for (let i = 0; i < 5; i++) {
+    full.push(runJob(method, 'wasm-simd', defaultPeriodsS()).ms)
+    long.push(runJob(method, 'wasm-simd', longPeriods).ms)
+  }
+  return { full: median(full), long: median(long) }
 }
 
 const { count, coeffs } = longPeriodCoefficients()
@@ -128,16 +185,37 @@ for (const [label, flags] of [
   const c = cReference(count, coeffs, [...flags])
   if (typeof c === 'string') rows.push(`   ${label} ${c}`)
   else {
-    const same = c.firstPeak === js.firstPeak ? 'same bits as the kernels' : 'differs from the kernels'
+    const same =
+      c.firstPeak === js.firstPeak && c.candidates === js.candidates
+        ? 'same bits and candidate steps as the kernels'
+        : 'differs from the kernels'
     rows.push(`   ${label} ${c.ns.toFixed(2)} ns per oscillator-step (vectorised reference, ${same})`)
   }
 }
 rows.forEach((row) => console.log(row))
 console.log('')
-console.log('2. Standard job (301 periods × damping 0.02, 0.05, 0.10, 0.20, newmark-average), median of 5:')
-for (const kernel of wasm ? (['wasm-simd', 'js'] as const) : (['js'] as const)) {
-  const job = standardJob(kernel)
+console.log(
+  `2. Standard job (${defaultPeriodsS().length} periods 0.01–10 s × damping ${STANDARD_DAMPING.join(', ')}), median of 5:`,
+)
+const jobs: [SpectrumMethod, 'wasm-simd' | 'js'][] = SPECTRUM_METHODS.map((method) => [
+  method,
+  wasm ? 'wasm-simd' : 'js',
+])
+if (wasm) jobs.push(['newmark-average', 'js'])
+for (const [method, kernel] of jobs) {
+  const job = standardJob(method, kernel)
   console.log(
-    `   ${kernel.padEnd(10)} ${job.totalMs.toFixed(0).padStart(6)} ms total, ${(job.steps / 1e6).toFixed(1)} M oscillator-steps (sub-steps ${job.subSteps}), ${((job.totalMs * 1e6) / job.steps).toFixed(2)} ns per oscillator-step overall`,
+    `   ${method.padEnd(16)} ${kernel.padEnd(9)} unrefined ${(job.unrefinedSteps / 1e6).toFixed(1)} M, run ` +
+      `${(job.steps / 1e6).toFixed(1)} M oscillator-steps (${(job.steps / job.unrefinedSteps).toFixed(2)}×, ` +
+      `sub-steps ${job.subSteps}), ${job.totalMs.toFixed(0)} ms, ` +
+      `${((job.totalMs * 1e6) / job.steps).toFixed(2)} ns per oscillator-step overall`,
+  )
+}
+console.log('')
+console.log('3. Full grid (0.01–10 s) against the same job on 301 periods in 1–10 s, same run, medians of 5:')
+for (const method of SPECTRUM_METHODS) {
+  const { full, long } = shortOverLong(method)
+  console.log(
+    `   ${method.padEnd(16)} ${full.toFixed(0)} ms / ${long.toFixed(0)} ms = ${(full / long).toFixed(2)}×`,
   )
 }
