@@ -9,9 +9,12 @@ import {
   usableBandCautionFor,
 } from '../../shared/spectra/processing/describeProcessing.js'
 import { CAUTION } from '../../shared/cautions.js'
+import { unitsStatement } from '../../shared/charts/unitSystems.js'
 import type { ComparisonView } from '../../shared/schemas/comparisons.js'
+import type { UnitSystem } from '../../shared/schemas/me.js'
 import type { Sheet } from '../../shared/schemas/sheets.js'
 import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
+import { METRES_PER_INCH } from '../../shared/spectra/units.js'
 import { COMBINATION_LABELS } from '../../shared/vocabulary/combinations.js'
 
 /**
@@ -44,13 +47,28 @@ function table(header: string[], rows: Array<Array<number | null | undefined>>):
 
 const finish = (lines: string[]) => `${lines.join('\r\n')}\r\n`
 
-const QUANTITIES = [
-  ['sd_m', 'sdM'],
-  ['sv_m_per_s', 'svMPerS'],
-  ['sa_m_per_s2', 'saMPerS2'],
-  ['psv_m_per_s', 'psvMPerS'],
-  ['psa_m_per_s2', 'psaMPerS2'],
-] as const
+type OrdinateKey = 'sdM' | 'svMPerS' | 'saMPerS2' | 'psvMPerS' | 'psaMPerS2'
+/** A column: its name (units in it), the spectrum's SI series, and how many SI units make one of the column's. */
+type Column = readonly [name: string, key: OrdinateKey, siPerUnit: number]
+
+/** SI files: every ordinate in SI, and PSA in g beside it. */
+const SI_QUANTITIES = (gravityMPerS2: number): Column[] => [
+  ['sd_m', 'sdM', 1],
+  ['sv_m_per_s', 'svMPerS', 1],
+  ['sa_m_per_s2', 'saMPerS2', 1],
+  ['psv_m_per_s', 'psvMPerS', 1],
+  ['psa_m_per_s2', 'psaMPerS2', 1],
+  ['psa_g', 'psaMPerS2', gravityMPerS2],
+]
+
+/** US customary files: SD in inches, SV and PSV in in/s, SA and PSA in g. */
+const US_QUANTITIES = (gravityMPerS2: number): Column[] => [
+  ['sd_in', 'sdM', METRES_PER_INCH],
+  ['sv_in_per_s', 'svMPerS', METRES_PER_INCH],
+  ['sa_g', 'saMPerS2', gravityMPerS2],
+  ['psv_in_per_s', 'psvMPerS', METRES_PER_INCH],
+  ['psa_g', 'psaMPerS2', gravityMPerS2],
+]
 
 /** The record of a run, or one component of a pair run, as its CSV names it. */
 export interface CsvRecord {
@@ -68,6 +86,8 @@ export interface RunCsvInput {
   records: CsvRecord[]
   spectrum: SpectrumResult
   gravityMPerS2: number
+  /** The member's units (or the request's ?units=): SI by default, or US customary. */
+  units?: UnitSystem
 }
 
 /** What produced the numbers, from the spectrum's method statement and warnings. */
@@ -88,25 +108,31 @@ function methodLines({ methodStatement: m, warnings }: SpectrumResult): string[]
 /**
  * The one CSV of a run: `#` lines saying what produced the numbers (the record or both
  * components with their SHA-256 and source units, the method, the warnings, the caution), a
- * header row, then one row per period (ascending) with SD, SV, SA, PSV and PSA in SI and PSA in g
- * for every curve. The export route, GET /api/runs/:id/spectrum.csv and the command line's
+ * header row, then one row per period (ascending) with SD, SV, SA, PSV and PSA for every curve:
+ * in SI with PSA in g beside it, or in US customary units (SD in in, SV and PSV in in/s, SA and
+ * PSA in g), the units named in every column and stated in a `#` line. The export route, GET /api/runs/:id/spectrum.csv and the command line's
  * `--format csv` all write it.
  */
-export function runOrdinatesCsv({ about, records, spectrum, gravityMPerS2 }: RunCsvInput): string {
+export function runOrdinatesCsv({
+  about,
+  records,
+  spectrum,
+  gravityMPerS2,
+  units: unitSystem = 'si',
+}: RunCsvInput): string {
   const periods = Array.from(spectrum.periodsS)
   const order = periods.map((_, i) => i).sort((a, b) => (periods[a] as number) - (periods[b] as number))
   const suffix = (c: SpectrumResult['curves'][number]) =>
     `_zeta${c.dampingRatio}${c.combination ? `_${COMBINATION_LABELS[c.combination]}` : ''}`
+  const columns = unitSystem === 'us' ? US_QUANTITIES(gravityMPerS2) : SI_QUANTITIES(gravityMPerS2)
   const header = ['period_s']
   for (const curve of spectrum.curves) {
-    for (const [name] of QUANTITIES) header.push(`${name}${suffix(curve)}`)
-    header.push(`psa_g${suffix(curve)}`)
+    for (const [name] of columns) header.push(`${name}${suffix(curve)}`)
   }
   const rows = order.map((i) => {
     const row: number[] = [periods[i] as number]
     for (const curve of spectrum.curves) {
-      for (const [, key] of QUANTITIES) row.push(curve[key][i] as number)
-      row.push((curve.psaMPerS2[i] as number) / gravityMPerS2)
+      for (const [, key, perUnit] of columns) row.push((curve[key][i] as number) / perUnit)
     }
     return row
   })
@@ -125,7 +151,7 @@ export function runOrdinatesCsv({ about, records, spectrum, gravityMPerS2 }: Run
       ),
       ...[usableBandCautionFor(records, spectrum.periodsS)].flatMap((c) => (c ? [`Warning: ${c}`] : [])),
       ...methodLines(spectrum),
-      `g = ${gravityMPerS2} m/s2; zeta is the damping ratio; SI units unless the column says g`,
+      `${unitsStatement(unitSystem)} zeta is the damping ratio.`,
       `Caution: ${CAUTION}`,
     ]),
     ...table(header, rows),

@@ -1,10 +1,12 @@
 import { Router } from 'express'
 import { z } from 'zod'
 import { idParamsSchema } from '../../shared/schemas/common.js'
+import { fileUnitsQuerySchema } from '../../shared/schemas/me.js'
 import { plotExportQuerySchema } from '../../shared/schemas/sheets.js'
 import type { AppDeps } from '../deps.js'
 import { memberOf, requireMember } from '../middleware/auth.js'
 import { type ExportSubject, buildComparisonSheet, buildRunSheet, exportSheet } from '../services/exports.js'
+import { fileUnits } from '../services/me.js'
 
 const exportParamsSchema = idParamsSchema.extend({
   format: z.enum(['pdf', 'png', 'svg', 'csv'], { error: 'Exports are .pdf, .png, .svg or .csv.' }),
@@ -22,9 +24,13 @@ export function exportsRouter(deps: AppDeps) {
   for (const { path, subject } of SUBJECTS) {
     router.get(`/${path}/:id/sheet`, requireMember, (req, res) => {
       const { id } = idParamsSchema.parse(req.params)
-      const firmId = memberOf(req).firmId
+      const { units } = fileUnitsQuerySchema.parse(req.query)
+      const member = memberOf(req)
+      // The sheet model is the print preview of the PDF, so it takes the file's units.
       res.json(
-        subject === 'run' ? buildRunSheet(deps.db, firmId, id) : buildComparisonSheet(deps.db, firmId, id),
+        subject === 'run'
+          ? buildRunSheet(deps.db, member.firmId, id, fileUnits(deps.db, member, units))
+          : buildComparisonSheet(deps.db, member.firmId, id),
       )
     })
 

@@ -1,4 +1,5 @@
 import { Router, type Response } from 'express'
+import { fileUnitsQuerySchema } from '../../shared/schemas/me.js'
 import { idParamsSchema } from '../../shared/schemas/common.js'
 import {
   isFinished,
@@ -49,7 +50,15 @@ export function runsRouter(deps: AppDeps) {
   /** The run's CSV: the same file as its CSV export (server/exports/ordinatesCsv.ts). */
   router.get('/runs/:id/spectrum.csv', requireMember, async (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
-    const file = await exportSheet(deps.db, memberOf(req), 'run', id, 'csv', plotExportQuerySchema.parse({}))
+    const { units } = fileUnitsQuerySchema.parse(req.query)
+    const file = await exportSheet(
+      deps.db,
+      memberOf(req),
+      'run',
+      id,
+      'csv',
+      plotExportQuerySchema.parse({ units }),
+    )
     res.type(file.contentType)
     res.attachment(file.fileName)
     res.set('cache-control', 'private, no-store')

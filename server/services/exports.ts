@@ -4,6 +4,8 @@
  * audit log, with a digest of the file handed out.
  */
 import { decodeRunSettings, decodeSpectrumResult, parseStored } from '../db/parseStored.js'
+import { fileUnitOf } from '../../shared/charts/unitSystems.js'
+import type { UnitSystem } from '../../shared/schemas/me.js'
 import { createHash } from 'node:crypto'
 import { aliasedTable, and, eq } from 'drizzle-orm'
 import { z } from 'zod'
@@ -19,17 +21,7 @@ import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { SpectrumResult } from '../../shared/schemas/spectrum.js'
 import type { PlotExportQuery, Sheet, SpectrumChartInput } from '../../shared/schemas/sheets.js'
 import type { Db } from '../db/client.js'
-import {
-  firms,
-  memberships,
-  projects,
-  recordPairs,
-  records,
-  reviews,
-  runs,
-  spectra,
-  users,
-} from '../db/schema.js'
+import { firms, projects, recordPairs, records, reviews, runs, spectra, users } from '../db/schema.js'
 import { renderChartPng } from '../exports/chartPng.js'
 import { buildComparisonSheetFromFacts } from '../exports/comparisonSheet.js'
 import { comparisonOrdinatesCsv, runOrdinatesCsv, sheetCsvAbout } from '../exports/ordinatesCsv.js'
@@ -43,6 +35,7 @@ import { runSpectrumChartInputWithBand } from '../../shared/charts/withUsableBan
 import { usablePeriodLimit } from '../../shared/spectra/processing/describeProcessing.js'
 import { recordAudit } from './audit.js'
 import { decodeRecordProcessing } from './recordProcessing.js'
+import { fileUnits } from './me.js'
 import { getComparisonView } from './comparisons.js'
 
 export type ExportFormat = 'pdf' | 'png' | 'svg' | 'csv'
@@ -101,6 +94,7 @@ function loadRunSheet(
   db: Db,
   firmId: string,
   runId: string,
+  units: UnitSystem = 'si',
 ): { sheet: Sheet; spectrum: SpectrumResult; subjectName: string; records: SheetRecordFacts[] } {
   const author = aliasedTable(users, 'author')
   const row = db
@@ -151,6 +145,7 @@ function loadRunSheet(
     methods: [spectrum.methodStatement],
     spectrumWarnings: spectrum.warnings,
     review: reviewFacts(db, 'run', row.id),
+    units,
   })
   return { sheet, spectrum, subjectName, records: recordList }
 }
@@ -180,8 +175,8 @@ function runRecords(
 }
 
 /** The sheet of one of the firm's runs; 404 for another firm's run, 409 before it succeeds. */
-export function buildRunSheet(db: Db, firmId: string, runId: string): Sheet {
-  return loadRunSheet(db, firmId, runId).sheet
+export function buildRunSheet(db: Db, firmId: string, runId: string, units: UnitSystem = 'si'): Sheet {
+  return loadRunSheet(db, firmId, runId, units).sheet
 }
 
 /** A comparison's sheet and the view it was built from. */
@@ -238,16 +233,6 @@ export function exportFileName(sheet: Sheet, format: ExportFormat): string {
   return `${sheet.reference}-rev${sheet.revision}${slug ? `-${slug}` : ''}.${format}`
 }
 
-/** The member's units preference, which labels the four-way plot's scales. */
-function memberUnitSystem(db: Db, member: Member): 'si' | 'us' {
-  const row = db
-    .select({ units: memberships.units })
-    .from(memberships)
-    .where(and(eq(memberships.firmId, member.firmId), eq(memberships.userId, member.userId)))
-    .get()
-  return row?.units ?? 'si'
-}
-
 /**
  * `?chart=tripartite`: the sheet and the plot files draw the four-way log plot of the same
  * curves (PSV for a run, the comparison's PSA for a comparison), its scales labelled in the
@@ -266,7 +251,7 @@ function loadTripartiteExport(
       'invalid_input',
     )
   }
-  const units = TRIPARTITE_UNITS[memberUnitSystem(db, member)]
+  const units = TRIPARTITE_UNITS[query.units ?? 'si']
   const base = loadExport(db, member.firmId, subject, id, {
     ...query,
     chart: undefined,
@@ -289,7 +274,8 @@ function loadExport(
 ): { sheet: Sheet; csv: () => string; chart: () => SpectrumChartInput } {
   if (subject === 'run') {
     if (query.scaled !== undefined) throw badRequest('scaled applies to comparisons only.', 'invalid_input')
-    const { sheet, spectrum, subjectName, records: recordList } = loadRunSheet(db, firmId, id)
+    const units = query.units ?? 'si'
+    const { sheet, spectrum, subjectName, records: recordList } = loadRunSheet(db, firmId, id, units)
     return {
       sheet,
       csv: () =>
@@ -298,12 +284,20 @@ function loadExport(
           records: recordList,
           spectrum,
           gravityMPerS2: STANDARD_GRAVITY_M_PER_S2,
+          units,
         }),
       chart: () =>
         runSpectrumChartInputWithBand(usablePeriodLimit(recordList), spectrum, subjectName, {
           quantity: query.quantity ?? DEFAULT_SPECTRUM_VIEW.quantity,
           // A quantity without a unit takes the quantity's default unit, as the chart does.
-          unit: query.unit ?? (query.quantity ? undefined : DEFAULT_SPECTRUM_VIEW.unit),
+          // US customary files draw SD in in and SV, PSV in in/s unless a unit is asked for.
+          unit:
+            query.unit ??
+            (query.quantity
+              ? units === 'us'
+                ? fileUnitOf(query.quantity, 'us')
+                : undefined
+              : DEFAULT_SPECTRUM_VIEW.unit),
           xScale: query.xScale ?? DEFAULT_SPECTRUM_VIEW.xScale,
           yScale: query.yScale ?? DEFAULT_SPECTRUM_VIEW.yScale,
         }),
@@ -335,10 +329,12 @@ export async function exportSheet(
   format: ExportFormat,
   query: PlotExportQuery,
 ): Promise<ExportFile> {
+  // Files follow the member's units unless the request names them (?units=si|us).
+  const withUnits = { ...query, units: fileUnits(db, member, query.units) }
   const { sheet, csv, chart } =
     query.chart === 'tripartite'
-      ? loadTripartiteExport(db, member, subject, id, query)
-      : loadExport(db, member.firmId, subject, id, query)
+      ? loadTripartiteExport(db, member, subject, id, withUnits)
+      : loadExport(db, member.firmId, subject, id, withUnits)
   let file: Omit<ExportFile, 'fileName'>
   switch (format) {
     case 'pdf':

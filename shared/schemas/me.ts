@@ -21,3 +21,6 @@ export type UpdateMeBody = z.infer<typeof updateMeBodySchema>
  * download. Spread into a route's strict query schema.
  */
 export const fileUnitsQueryShape = { units: unitSystemSchema.optional() }
+
+/** The query of a file route that takes nothing but `?units=`. */
+export const fileUnitsQuerySchema = z.strictObject(fileUnitsQueryShape)

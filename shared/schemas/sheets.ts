@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { unitSystemSchema } from './me.js'
 import { type DisplayUnit, type SpectrumQuantity, displayUnits, spectrumQuantities } from '../charts/units.js'
 import { reviewStateSchema } from '../vocabulary/reviewStates.js'
 
@@ -147,6 +148,8 @@ export const plotExportQuerySchema = z
     yScale: scaleSchema.optional(),
     /** The four-way log plot (PSV with SD and PSA diagonals) instead of the spectrum chart. */
     chart: z.enum(['spectrum', 'tripartite'], { error: 'chart is spectrum or tripartite.' }).optional(),
+    /** The units of the file: the member's preference unless given (JSON answers stay SI). */
+    units: unitSystemSchema.optional(),
     /** Comparisons: draw the records as scaled (the default) or as recorded. */
     scaled: z
       .enum(['true', 'false'], { error: 'scaled is true or false.' })

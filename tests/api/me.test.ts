@@ -1,6 +1,8 @@
 import { and, eq } from 'drizzle-orm'
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { auditLog } from '../../server/db/schema.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
+import { insertRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -69,5 +71,95 @@ describe('PATCH /api/me', () => {
       const agent = await ctx.signIn('engineer@ordinate.test')
       expect((await agent.patch('/api/me').send({ units: 'si', roles: ['admin'] })).status).toBe(400)
     })
+  })
+})
+
+describe('files in the member’s units', () => {
+  let runId: string
+
+  beforeAll(async () => {
+    const queue = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 1000 })
+    ctx.deps.runQueue = queue
+    queue.start()
+    const record = insertRecord(ctx.db, {
+      firmId: ctx.seed.firmIds[0]!,
+      projectId: ctx.seed.projectIds[0]!,
+      uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
+    })
+    const agent = await ctx.signIn('engineer@ordinate.test')
+    const res = await agent.post('/api/runs').send({ recordId: record.id, periodsS: [0.1, 0.5, 1, 2] })
+    expect(res.status).toBe(202)
+    runId = res.body.id
+    await vi.waitFor(
+      async () => {
+        const run = await agent.get(`/api/runs/${runId}`)
+        if (run.body.status !== 'succeeded') throw new Error(run.body.status)
+      },
+      { timeout: 30_000, interval: 50 },
+    )
+    await queue.stop(0)
+  })
+
+  /** The CSV's `#` lines and its table as numbers by column name. */
+  function readCsv(text: string) {
+    const lines = text.trim().split('\r\n')
+    const comments = lines.filter((l) => l.startsWith('#'))
+    const [header, ...rows] = lines.filter((l) => !l.startsWith('#'))
+    const names = header!.split(',')
+    const column = (name: string) => rows.map((r) => Number(r.split(',')[names.indexOf(name)]))
+    return { comments, names, column }
+  }
+
+  it('writes CSV in US customary units for a member who chose them, and says so', async () => {
+    // The engineer chose US customary units in the tests above.
+    const agent = await ctx.signIn('engineer@ordinate.test')
+    const us = readCsv((await agent.get(`/api/runs/${runId}/spectrum.csv`)).text)
+    const si = readCsv((await agent.get(`/api/runs/${runId}/spectrum.csv?units=si`)).text)
+    expect(us.names.slice(1)).toEqual([
+      'sd_in_zeta0.05',
+      'sv_in_per_s_zeta0.05',
+      'sa_g_zeta0.05',
+      'psv_in_per_s_zeta0.05',
+      'psa_g_zeta0.05',
+    ])
+    expect(si.names).toContain('sd_m_zeta0.05')
+    expect(us.comments.join('\n')).toMatch(
+      /Units: US customary: SD in in, SV and PSV in in\/s, SA and PSA in g/,
+    )
+    expect(si.comments.join('\n')).toMatch(/Units: SI/)
+    // 1 in = 0.0254 m exactly (international yard and pound agreement, 1959); g = 9.80665 m/s².
+    const sdM = si.column('sd_m_zeta0.05')
+    us.column('sd_in_zeta0.05').forEach((sdIn, i) => expect(sdIn).toBeCloseTo(sdM[i]! / 0.0254, 12))
+    const psvM = si.column('psv_m_per_s_zeta0.05')
+    us.column('psv_in_per_s_zeta0.05').forEach((v, i) => expect(v).toBeCloseTo(psvM[i]! / 0.0254, 12))
+    const saM = si.column('sa_m_per_s2_zeta0.05')
+    us.column('sa_g_zeta0.05').forEach((v, i) => expect(v).toBeCloseTo(saM[i]! / 9.80665, 12))
+    expect(us.column('psa_g_zeta0.05')).toEqual(si.column('psa_g_zeta0.05'))
+  })
+
+  it('keeps SI for a member on SI unless the request asks for US units', async () => {
+    const checker = await ctx.signIn('checker@ordinate.test')
+    expect(readCsv((await checker.get(`/api/runs/${runId}/export.csv`)).text).names).toContain(
+      'sd_m_zeta0.05',
+    )
+    const asked = readCsv((await checker.get(`/api/runs/${runId}/export.csv?units=us`)).text)
+    expect(asked.names).toContain('sd_in_zeta0.05')
+    expect((await checker.get(`/api/runs/${runId}/spectrum.csv?units=metric`)).status).toBe(400)
+  })
+
+  it('states the units on the sheet and gives PGV and PGD in in/s and in for US customary', async () => {
+    const agent = await ctx.signIn('engineer@ordinate.test')
+    const us = (await agent.get(`/api/runs/${runId}/sheet`)).body
+    const field = (sheet: { method: { label: string; value: string }[] }, label: string) =>
+      sheet.method.find((f) => f.label === label)?.value
+    expect(field(us, 'Units')).toMatch(/^Units: US customary/)
+    const recordFields = us.records[0].fields as { label: string; value: string }[]
+    expect(recordFields.find((f) => f.label === 'PGV')?.value).toMatch(/ in\/s$/)
+    expect(recordFields.find((f) => f.label === 'PGD')?.value).toMatch(/ in$/)
+    const si = (await agent.get(`/api/runs/${runId}/sheet?units=si`)).body
+    expect(field(si, 'Units')).toMatch(/^Units: SI/)
+    expect(
+      (si.records[0].fields as { label: string; value: string }[]).find((f) => f.label === 'PGV')?.value,
+    ).toMatch(/ m\/s$/)
   })
 })
