@@ -81,7 +81,7 @@ export function createApp(deps: AppDeps) {
     unlessBearer(csrfGuard(() => (deps.config.publicUrl ? [new URL(deps.config.publicUrl).origin] : []))),
   )
 
-  api.use(healthRouter())
+  api.use(healthRouter(deps))
   api.use(authRouter(deps, signInLimiters(deps.config.rateLimits)))
   api.use(passwordResetsRouter(deps, passwordResetLimiters(deps.config.rateLimits)))
   api.use(meRouter(deps))

@@ -2,7 +2,7 @@ import type { Config } from './config.js'
 import type { Db } from './db/client.js'
 import type { SmtpSink } from './mail/smtpSink.js'
 import type { Payments } from './payments/payments.js'
-import type { RunQueue } from './runs/runQueue.js'
+import type { RunScheduler } from './runs/runScheduler.js'
 import type { MailDispatcher } from './services/mail.js'
 
 /**
@@ -21,6 +21,6 @@ export interface AppDeps {
   devMailbox?: SmtpSink
   /** Card payments through the Stripe SDK (to Stripe, or to a mock server); without it the purchase routes answer 503. */
   payments?: Payments
-  /** Computes queued runs on worker threads and streams their progress; without it runs stay queued. */
-  runQueue?: RunQueue
+  /** Computes queued runs (here on worker threads, or through Redis on compute nodes) and streams their progress; without it runs stay queued. */
+  runQueue?: RunScheduler
 }

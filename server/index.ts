@@ -5,7 +5,7 @@ import { migrateDb, openDb } from './db/client.js'
 import type { AppDeps } from './deps.js'
 import { startMail } from './mail/startMail.js'
 import { createPayments } from './payments/payments.js'
-import { RunQueue } from './runs/runQueue.js'
+import { createRunScheduler } from './runs/runScheduler.js'
 import { seedDemoData } from './services/demoData.js'
 import { resolveSessionSecret } from './sessionSecret.js'
 
@@ -22,14 +22,13 @@ async function main() {
   const mail = await startMail(db, config, log)
   const payments = await createPayments(config.stripe, { log })
   log(`Payments: ${payments.mode} mode, through ${payments.endpoint}.`)
-  const runQueue = new RunQueue({
-    db,
-    workerCount: config.workerThreads,
-    runTimeLimitS: config.runTimeLimitS,
-    log,
-  })
+  const runQueue = createRunScheduler(config, db, log)
   runQueue.start()
-  log(`Run queue: up to ${runQueue.workerCount} worker thread(s).`)
+  log(
+    config.redisUrl
+      ? `Run queue: BullMQ on Redis, ${runQueue.workerCount} worker thread(s) in this process.`
+      : `Run queue: up to ${runQueue.workerCount} worker thread(s).`,
+  )
   const deps: AppDeps = {
     db,
     config,
