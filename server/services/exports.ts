@@ -13,7 +13,7 @@ import {
   DEFAULT_COMPARISON_CHART_VIEW,
   comparisonChartInput,
 } from '../../shared/charts/comparisonChartInput.js'
-import { DEFAULT_SPECTRUM_VIEW, runSpectrumChartInput } from '../../shared/charts/runSpectrumChartInput.js'
+import { DEFAULT_SPECTRUM_VIEW } from '../../shared/charts/runSpectrumChartInput.js'
 import { asTripartite, chartSvg } from '../../shared/charts/chartSvg.js'
 import { TRIPARTITE_UNITS } from '../../shared/charts/tripartiteChart.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
