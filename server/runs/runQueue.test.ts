@@ -130,7 +130,7 @@ async function withOwnQueue(
   body: (own: RunQueue) => Promise<void>,
 ) {
   await queue.stop(0)
-  const own = new RunQueue({ db: ctx.db, runTimeLimitS: 60, idleMs: 5000, ...options })
+  const own = new RunQueue({ db: ctx.db, runTimeLimitS: 170, idleMs: 5000, ...options })
   try {
     await body(own)
   } finally {
@@ -256,7 +256,7 @@ describe('RunQueue', () => {
 
   describe('a run split over threads', () => {
     /** Large enough to be split on two threads (planRunParts), with no oscillator at the sub-step cap. */
-    const SPLIT = { dampingRatios: [0.02, 0.05], periodGrid: { minS: 0.01, maxS: 20, count: 1000 } }
+    const SPLIT = { dampingRatios: [0.02, 0.05], periodGrid: { minS: 0.01, maxS: 20, count: 400 } }
 
     /** Every thread seen computing each run, collected at its progress events. */
     function watchThreads(q: RunQueue, ids: string[]): Map<string, Set<number>> {

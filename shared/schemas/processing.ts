@@ -42,9 +42,14 @@ export const processingSettingsSchema = z.strictObject({
 export type ProcessingSettingsBody = z.infer<typeof processingSettingsSchema>
 
 /** POST /api/records/:id/processed: the settings and, optionally, the new record's name. */
-export const createProcessedRecordSchema = processingSettingsSchema.extend({
-  name: z.string().trim().min(1, 'Enter a name.').max(200, 'Use at most 200 characters.').optional(),
-})
+export const createProcessedRecordSchema = processingSettingsSchema
+  .extend({
+    name: z.string().trim().min(1, 'Enter a name.').max(200, 'Use at most 200 characters.').optional(),
+  })
+  .refine((body) => Boolean(body.baseline || body.taperS || body.highPass || body.lowPass), {
+    message: 'Choose at least one processing step: a baseline, a taper, a high-pass or a low-pass filter.',
+    path: ['baseline'],
+  })
 export type CreateProcessedRecordBody = z.infer<typeof createProcessedRecordSchema>
 
 const appliedFilterSchema = z.object({ hz: z.number(), order: z.number().int() })

@@ -526,8 +526,14 @@ describe('GET /api/records/:id/samples', () => {
     expect(res.body.accelMPerS2).toHaveLength(res.body.timeS.length)
     expect(Math.max(...res.body.accelMPerS2)).toBeCloseTo(0.8 * G, 9)
     expect(Math.min(...res.body.accelMPerS2)).toBeCloseTo(-0.6 * G, 9)
-    expect(Math.max(...res.body.velMPerS.map(Math.abs))).toBeCloseTo(up.body.pgvMPerS, 9)
-    expect(Math.max(...res.body.dispM.map(Math.abs))).toBeCloseTo(up.body.pgdM, 9)
+    // PGV and PGD are the extremes of the interpolated record's velocity and displacement
+    // between samples, so the sampled histories reach them from below, to within J·Δt²/8.
+    const sampledPgv = Math.max(...res.body.velMPerS.map(Math.abs))
+    const sampledPgd = Math.max(...res.body.dispM.map(Math.abs))
+    expect(sampledPgv).toBeLessThanOrEqual(up.body.pgvMPerS)
+    expect(sampledPgv).toBeCloseTo(up.body.pgvMPerS, 6)
+    expect(sampledPgd).toBeLessThanOrEqual(up.body.pgdM)
+    expect(sampledPgd).toBeCloseTo(up.body.pgdM, 6)
   })
 
   it('refuses maxPoints below 100 with 400', async () => {

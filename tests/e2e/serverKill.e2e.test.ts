@@ -122,5 +122,5 @@ describe('the server killed with runs queued and running, then restarted', () =>
     } finally {
       db.$client.close()
     }
-  })
+  }, 240_000)
 })
