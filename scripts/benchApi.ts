@@ -14,13 +14,12 @@
  * Prints the figures; asserts nothing (speed belongs here, not in tests).
  */
 import { once } from 'node:events'
-import { mkdtempSync, rmSync } from 'node:fs'
-import { availableParallelism, loadavg, tmpdir } from 'node:os'
+import { availableParallelism, loadavg } from 'node:os'
 import path from 'node:path'
 import { pathToFileURL } from 'node:url'
 import { Worker } from 'node:worker_threads'
-import Database from 'better-sqlite3'
-import { repoRoot, startServer } from '../tests/e2e/harness.js'
+import { repoRoot } from '../tests/e2e/harness.js'
+import { startBenchServer } from '../tests/support/benchServer.js'
 
 const RUNS_LATENCY = Number(process.env.BENCH_RUNS ?? 21)
 const WARM_UP = 2
@@ -82,30 +81,16 @@ async function untilFinished(s: Session, runId: string): Promise<string> {
 }
 
 async function withServer<T>(workerThreads: number | undefined, fn: (s: Session) => Promise<T>): Promise<T> {
-  const dir = mkdtempSync(path.join(tmpdir(), 'ordinate-bench-'))
-  const databasePath = path.join(dir, 'ordinate.sqlite')
-  const env: Record<string, string> = {
-    NODE_ENV: 'production',
-    DEMO_DATA: '1',
-    DATA_DIR: dir,
-    DATABASE_PATH: databasePath,
-  }
-  if (workerThreads !== undefined) env.WORKER_THREADS = String(workerThreads)
-  const server = await startServer(env)
+  const bench = await startBenchServer(
+    workerThreads === undefined ? {} : { WORKER_THREADS: String(workerThreads) },
+  )
   try {
-    const session = await signIn(server.url)
+    const session = await signIn(bench.server.url)
     // Enough credits for the whole bench: one grant row in the firm's ledger.
-    const db = new Database(databasePath)
-    db.pragma('busy_timeout = 5000')
-    db.prepare(
-      `insert into credit_ledger (firm_id, delta, kind, note, created_at)
-       select firm_id, 1000, 'grant', 'benchmark', ? from records where id = ?`,
-    ).run(Date.now(), session.recordId)
-    db.close()
+    bench.grantCredits(session.recordId, 1000)
     return await fn(session)
   } finally {
-    await server.stop()
-    rmSync(dir, { recursive: true, force: true })
+    await bench.stop()
   }
 }
 

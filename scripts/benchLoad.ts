@@ -11,13 +11,11 @@
  *
  *   LOAD_MEMBERS=20 LOAD_DURATION_S=60 npm run bench:load
  */
-import { mkdtempSync, rmSync } from 'node:fs'
-import { availableParallelism, tmpdir } from 'node:os'
-import path from 'node:path'
+import { availableParallelism } from 'node:os'
 import Database from 'better-sqlite3'
 import { hashPassword } from '../server/services/auth.js'
 import { newId } from '../server/ids.js'
-import { startServer } from '../tests/e2e/harness.js'
+import { startBenchServer } from '../tests/support/benchServer.js'
 
 const MEMBERS = Number(process.env.LOAD_MEMBERS ?? 20)
 const DURATION_S = Number(process.env.LOAD_DURATION_S ?? 60)
@@ -241,14 +239,8 @@ function checkLedger(databasePath: string, startBalance: number, purchasedCredit
 }
 
 async function main() {
-  const dir = mkdtempSync(path.join(tmpdir(), 'ordinate-load-'))
-  const databasePath = path.join(dir, 'ordinate.sqlite')
-  const server = await startServer({
-    NODE_ENV: 'production',
-    DEMO_DATA: '1',
-    DATA_DIR: dir,
-    DATABASE_PATH: databasePath,
-  })
+  const bench = await startBenchServer()
+  const { server, databasePath } = bench
   const stats: Stats = { reads: [], runCompletions: [], uploads: 0, runs: 0, errors: [] }
   let exitCode = 0
   try {
@@ -303,8 +295,7 @@ async function main() {
     for (const p of ledger.problems.slice(0, 10)) console.log(`    ${p}`)
     if (stats.errors.length > 0 || ledger.problems.length > 0 || stats.runs === 0) exitCode = 1
   } finally {
-    await server.stop()
-    rmSync(dir, { recursive: true, force: true })
+    await bench.stop()
   }
   process.exit(exitCode)
 }

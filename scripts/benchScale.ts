@@ -9,11 +9,8 @@
  * Figures are reported as runs per second and as ratios to the embedded queue in the same run;
  * there is no target on a 2-core machine, where two nodes compete with the web process.
  */
-import { mkdtempSync, rmSync } from 'node:fs'
-import { availableParallelism, loadavg, tmpdir } from 'node:os'
-import path from 'node:path'
-import Database from 'better-sqlite3'
-import { startServer } from '../tests/e2e/harness.js'
+import { availableParallelism, loadavg } from 'node:os'
+import { startBenchServer } from '../tests/support/benchServer.js'
 import { startComputeNode, type RunningComputeNode } from '../tests/support/computeNode.js'
 import { signInHttp } from '../tests/support/httpApi.js'
 import { startRedisServer, type RedisServer } from '../tests/support/redisServer.js'
@@ -28,28 +25,14 @@ interface Body {
 
 /** Posts the burst to a server on a fresh database and answers the seconds until all succeeded. */
 async function burst(env: Record<string, string>): Promise<number> {
-  const dir = mkdtempSync(path.join(tmpdir(), 'ordinate-bench-scale-'))
-  const databasePath = path.join(dir, 'ordinate.sqlite')
-  const server = await startServer({
-    NODE_ENV: 'production',
-    DEMO_DATA: '1',
-    DATA_DIR: dir,
-    DATABASE_PATH: databasePath,
-    ...env,
-  })
+  const bench = await startBenchServer(env)
   try {
-    const api = await signInHttp<Body>(server.url, 'engineer@ordinate.test')
+    const api = await signInHttp<Body>(bench.server.url, 'engineer@ordinate.test')
     const standard = (await api('GET', '/records')).body.items.find(
       (r) => r.points === 8001 && r.dtS === 0.005,
     )
     if (!standard) throw new Error('the 8,001-point demo record is not in the demo data')
-    const db = new Database(databasePath)
-    db.pragma('busy_timeout = 5000')
-    db.prepare(
-      `insert into credit_ledger (firm_id, delta, kind, note, created_at)
-       select firm_id, ?, 'grant', 'benchmark', ? from records where id = ?`,
-    ).run(BURST, Date.now(), standard.id)
-    db.close()
+    bench.grantCredits(standard.id, BURST)
     const t0 = performance.now()
     const posted = await Promise.all(
       Array.from({ length: BURST }, () => api('POST', '/runs', { recordId: standard.id, ...STANDARD_JOB })),
@@ -64,8 +47,7 @@ async function burst(env: Record<string, string>): Promise<number> {
     }
     return (performance.now() - t0) / 1000
   } finally {
-    await server.stop()
-    rmSync(dir, { recursive: true, force: true })
+    await bench.stop()
   }
 }
 
