@@ -258,7 +258,7 @@ export class RedisRunQueue implements RunScheduler {
       if (outcome === 'queued') {
         this.log(`Run ${run.id}: attempt ${run.attempt} was lost (${why}); queued again.`)
         this.publish({ type: 'status', runId: run.id, status: 'queued', progress: 0, error: null })
-        this.again = true
+        this.kick()
       } else if (outcome === 'failed') {
         this.publish({
           type: 'status',

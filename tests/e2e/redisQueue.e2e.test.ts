@@ -115,6 +115,17 @@ async function allSucceeded(api: HttpApi<Body>, ids: string[], timeout = 180_000
   )
 }
 
+/** Waits until the queue is under way: at least one run has succeeded (others still wait). */
+async function firstSucceeded(api: HttpApi<Body>) {
+  await vi.waitFor(
+    async () => {
+      const list = (await api('GET', '/runs')).body.items
+      expect(list.filter((r) => r.status === 'succeeded').length).toBeGreaterThan(0)
+    },
+    { timeout: 30_000, interval: 100 },
+  )
+}
+
 /** Stops the web server (its SQLite file stays) and audits the ledger. */
 async function auditAfterStop(server: RunningServer, databasePath: string) {
   await server.stop()
@@ -176,13 +187,7 @@ describe('runs through BullMQ on Redis', () => {
       const answers = await postRuns(api, await demoRecordId(api), 12)
       const ids = answers.map((a) => a.body.id)
       expect(answers.every((a) => a.status === 202)).toBe(true)
-      await vi.waitFor(
-        async () => {
-          const list = (await api('GET', '/runs')).body.items
-          expect(list.filter((r) => r.status === 'succeeded').length).toBeGreaterThan(0)
-        },
-        { timeout: 30_000, interval: 100 },
-      )
+      await firstSucceeded(api)
       await victim.kill()
       await allSucceeded(api, ids)
       const credits = (await api('GET', '/credits')).body
@@ -223,13 +228,7 @@ describe('runs through BullMQ on Redis', () => {
       await computeNode()
       const answers = await postRuns(api, await demoRecordId(api), 10)
       const ids = answers.map((a) => a.body.id)
-      await vi.waitFor(
-        async () => {
-          const list = (await api('GET', '/runs')).body.items
-          expect(list.filter((r) => r.status === 'succeeded').length).toBeGreaterThan(0)
-        },
-        { timeout: 30_000, interval: 100 },
-      )
+      await firstSucceeded(api)
       process.kill(-first.pid, 'SIGKILL')
       await first.stop()
       servers.splice(servers.indexOf(first), 1)
