@@ -119,9 +119,43 @@ export interface Extreme {
 
 const NONE: Extreme = { value: 0, tauS: 0 }
 
-/** (P, Q) of the derivative of e^(−στ)(P cos ω_Dτ + Q sin ω_Dτ). */
-function derive(p: number, q: number, sigma: number, omegaD: number): [number, number] {
-  return [-sigma * p + omegaD * q, -sigma * q - omegaD * p]
+/** e^(−στ)(a cos ω_Dτ + b sin ω_Dτ). Plain functions, not closures, keep the hot path free of allocation. */
+function dampedSine(tau: number, a: number, b: number, sigma: number, omegaD: number): number {
+  return Math.exp(-sigma * tau) * (a * Math.cos(omegaD * tau) + b * Math.sin(omegaD * tau))
+}
+
+/**
+ * Root of the monotonic slope F'(τ) = l1 + g'(τ) on [lo, hi], where it changes sign, by Newton
+ * steps (F'' = g'') kept inside the bracket.
+ */
+function slopeRoot(
+  l1: number,
+  p1: number,
+  q1: number,
+  p2: number,
+  q2: number,
+  sigma: number,
+  omegaD: number,
+  lo: number,
+  hi: number,
+  fLo: number,
+): number {
+  let a = lo
+  let b = hi
+  const rising = fLo < 0
+  let x = 0.5 * (a + b)
+  for (let i = 0; i < 60; i++) {
+    const fx = l1 + dampedSine(x, p1, q1, sigma, omegaD)
+    if (fx === 0) return x
+    if (fx < 0 === rising) a = x
+    else b = x
+    const d = dampedSine(x, p2, q2, sigma, omegaD)
+    let next = d !== 0 ? x - fx / d : 0.5 * (a + b)
+    if (!(next > a && next < b)) next = 0.5 * (a + b)
+    if (Math.abs(next - x) <= 1e-14 * (b - lo + lo)) return next
+    x = next
+  }
+  return x
 }
 
 /**
@@ -138,62 +172,36 @@ function interiorExtreme(
   omegaD: number,
   h: number,
 ): Extreme {
-  const [p1, q1] = derive(p, q, sigma, omegaD)
-  const [p2, q2] = derive(p1, q1, sigma, omegaD)
+  const p1 = -sigma * p + omegaD * q
+  const q1 = -sigma * q - omegaD * p
+  const p2 = -sigma * p1 + omegaD * q1
+  const q2 = -sigma * q1 - omegaD * p1
   if (p2 === 0 && q2 === 0) return NONE
-  const at = (tau: number, a: number, b: number) => {
-    const decay = Math.exp(-sigma * tau)
-    return decay * (a * Math.cos(omegaD * tau) + b * Math.sin(omegaD * tau))
-  }
-  const slope = (tau: number) => l1 + at(tau, p1, q1)
-  const curvature = (tau: number) => at(tau, p2, q2)
   let theta = Math.atan2(-p2, q2)
   if (theta < 0) theta += Math.PI
   const half = Math.PI / omegaD
-  let best = NONE
+  let bestValue = 0
+  let bestTau = 0
   let lo = 0
-  let slopeLo = slope(0)
+  let slopeLo = l1 + p1
   for (let zero = theta / omegaD; lo < h; zero += half) {
     const hi = Math.min(zero, h)
     if (hi <= lo) continue
-    const slopeHi = slope(hi)
+    const slopeHi = l1 + dampedSine(hi, p1, q1, sigma, omegaD)
     if ((slopeLo <= 0 && slopeHi >= 0) || (slopeLo >= 0 && slopeHi <= 0)) {
-      const tau = monotoneRoot(slope, curvature, lo, hi, slopeLo)
+      const tau = slopeRoot(l1, p1, q1, p2, q2, sigma, omegaD, lo, hi, slopeLo)
       if (tau > 0 && tau < h) {
-        const value = Math.abs(l0 + l1 * tau + at(tau, p, q))
-        if (value > best.value) best = { value, tauS: tau }
+        const value = Math.abs(l0 + l1 * tau + dampedSine(tau, p, q, sigma, omegaD))
+        if (value > bestValue) {
+          bestValue = value
+          bestTau = tau
+        }
       }
     }
     lo = hi
     slopeLo = slopeHi
   }
-  return best
-}
-
-/** Root of a monotonic f on [lo, hi] with a sign change, by Newton steps kept inside the bracket. */
-function monotoneRoot(
-  f: (x: number) => number,
-  df: (x: number) => number,
-  lo: number,
-  hi: number,
-  fLo: number,
-): number {
-  let a = lo
-  let b = hi
-  const rising = fLo < 0
-  let x = 0.5 * (a + b)
-  for (let i = 0; i < 60; i++) {
-    const fx = f(x)
-    if (fx === 0) return x
-    if (fx < 0 === rising) a = x
-    else b = x
-    const d = df(x)
-    let next = d !== 0 ? x - fx / d : 0.5 * (a + b)
-    if (!(next > a && next < b)) next = 0.5 * (a + b)
-    if (Math.abs(next - x) <= 1e-14 * (b - lo + lo)) return next
-    x = next
-  }
-  return x
+  return bestValue > 0 ? { value: bestValue, tauS: bestTau } : NONE
 }
 
 /** Interior extremes of |u|, |v| and |A| in one step of the exact solution (closed form above). */
@@ -207,8 +215,10 @@ export function exactStepExtremes(state: StepState): { u: Extreme; v: Extreme; a
   const up0 = -(f0 - (c * s) / k) / k
   const p = u0 - up0
   const q = (v0 + s / k + sigma * p) / omegaD
-  const [p1, q1] = derive(p, q, sigma, omegaD)
-  const [p2, q2] = derive(p1, q1, sigma, omegaD)
+  const p1 = -sigma * p + omegaD * q
+  const q1 = -sigma * q - omegaD * p
+  const p2 = -sigma * p1 + omegaD * q1
+  const q2 = -sigma * q1 - omegaD * p1
   return {
     u: interiorExtreme(up0, -s / k, p, q, sigma, omegaD, h),
     v: interiorExtreme(-s / k, 0, p1, q1, sigma, omegaD, h),
@@ -226,32 +236,34 @@ export function hermiteExtreme(x0: number, d0: number, x1: number, d1: number, h
   const alpha = 6 * x0 + 3 * m0 - 6 * x1 + 3 * m1
   const beta = -6 * x0 - 4 * m0 + 6 * x1 - 2 * m1
   const gamma = m0
-  const value = (t: number) => {
-    const t2 = t * t
-    const t3 = t2 * t
-    return Math.abs(
-      x0 * (2 * t3 - 3 * t2 + 1) + m0 * (t3 - 2 * t2 + t) + x1 * (-2 * t3 + 3 * t2) + m1 * (t3 - t2),
-    )
-  }
-  const roots: number[] = []
+  // Up to two roots of H' in t; NaN stands for none.
+  let first = NaN
+  let second = NaN
   if (Math.abs(alpha) <= 1e-14 * (Math.abs(beta) + Math.abs(gamma))) {
-    if (beta !== 0) roots.push(-gamma / beta)
+    if (beta !== 0) first = -gamma / beta
   } else {
     const disc = beta * beta - 4 * alpha * gamma
     if (disc >= 0) {
       const root = -0.5 * (beta + Math.sign(beta || 1) * Math.sqrt(disc))
-      if (root !== 0) roots.push(root / alpha, gamma / root)
-      else roots.push(0)
+      if (root !== 0) {
+        first = root / alpha
+        second = gamma / root
+      }
     }
   }
-  let best = NONE
-  for (const t of roots) {
-    if (t > 0 && t < 1) {
-      const v = value(t)
-      if (v > best.value) best = { value: v, tauS: t * h }
-    }
-  }
-  return best
+  const atFirst = first > 0 && first < 1 ? hermiteValue(x0, m0, x1, m1, first) : 0
+  const atSecond = second > 0 && second < 1 ? hermiteValue(x0, m0, x1, m1, second) : 0
+  if (atFirst === 0 && atSecond === 0) return NONE
+  return atSecond > atFirst ? { value: atSecond, tauS: second * h } : { value: atFirst, tauS: first * h }
+}
+
+/** |H(t)| of the cubic Hermite interpolant with end values x0, x1 and scaled slopes m0, m1. */
+function hermiteValue(x0: number, m0: number, x1: number, m1: number, t: number): number {
+  const t2 = t * t
+  const t3 = t2 * t
+  return Math.abs(
+    x0 * (2 * t3 - 3 * t2 + 1) + m0 * (t3 - 2 * t2 + t) + x1 * (-2 * t3 + 3 * t2) + m1 * (t3 - t2),
+  )
 }
 
 /** Interior extremes of the Newmark step from (u0, v0) to (u1, v1), read from Hermite interpolants. */
