@@ -167,6 +167,38 @@ export function artifactPath(name: string): string {
 }
 
 /**
+ * Waits for the sign-in form. On a loaded machine a page has been seen not to draw it within
+ * 30 s once (CI, 2 cores); then what the page shows is printed to stderr and it is loaded once
+ * more, so a second stall fails with the page's state in the message instead of a bare timeout.
+ */
+async function waitForSignInForm(page: Page): Promise<void> {
+  const field = page.getByLabel('E-mail')
+  try {
+    await field.waitFor({ timeout: 20_000 })
+    return
+  } catch {
+    const shown = await page
+      .locator('body')
+      .innerText({ timeout: 5_000 })
+      .catch(() => '(no body)')
+    process.stderr.write(`sign-in form not drawn within 20 s at ${page.url()}; the page showed:\n${shown}\n`)
+    await page.screenshot({ path: artifactPath('sign-in-stall.png') }).catch(() => undefined)
+  }
+  await page.reload()
+  try {
+    await field.waitFor({ timeout: 40_000 })
+  } catch (err) {
+    const shown = await page
+      .locator('body')
+      .innerText({ timeout: 5_000 })
+      .catch(() => '(no body)')
+    throw new Error(`sign-in form not drawn after a reload at ${page.url()}; the page showed: ${shown}`, {
+      cause: err,
+    })
+  }
+}
+
+/**
  * Signs in through the form, as a person would, and waits for the app shell.
  * Pages of one browser share cookies, so any earlier session is dropped first.
  */
@@ -178,6 +210,7 @@ export async function signInThroughForm(
 ) {
   await page.context().clearCookies()
   await page.goto(`${baseUrl}/sign-in`)
+  await waitForSignInForm(page)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()
