@@ -14,21 +14,57 @@ import { COMBINATIONS } from '../../shared/vocabulary/combinations.js'
 import { STORED_REVIEW_STATES } from '../../shared/vocabulary/reviewStates.js'
 import { RUN_STATUSES } from '../../shared/vocabulary/runStatuses.js'
 
-// Times are stored as integer milliseconds since the epoch (UTC).
+// Times are stored as integer milliseconds since the epoch (UTC); null until it happens
+// unless `.notNull()`.
+const time = (name: string) => integer(name, { mode: 'number' })
+
 const createdAt = () =>
-  integer('created_at', { mode: 'number' })
+  time('created_at')
     .notNull()
     .default(sql`(CAST(unixepoch('subsec') * 1000 AS INTEGER))`)
 
+/** A JSON document kept as text. */
+const json = <T>(name: string) => text(name, { mode: 'json' }).$type<T>()
+
+/** The text id most tables are keyed by. */
+const id = () => text('id').primaryKey()
+
+/** The firm a row belongs to. */
+const firmId = () =>
+  text('firm_id')
+    .notNull()
+    .references(() => firms.id)
+
+/** The project a row belongs to. */
+const projectId = () =>
+  text('project_id')
+    .notNull()
+    .references(() => projects.id)
+
+/** A user who acted on the row (created, uploaded, invited, submitted, wrote). */
+const userId = (name: string) =>
+  text(name)
+    .notNull()
+    .references(() => users.id)
+
+/** The member who made the row, and when. */
+const creation = () => ({ createdBy: userId('created_by'), createdAt: createdAt() })
+
+/** A row that can be revised once its predecessor was checked and locked. */
+const revisions = () => ({
+  revisionOf: text('revision_of'),
+  revision: integer('revision').notNull().default(1),
+})
+
 export const firms = sqliteTable('firms', {
-  id: text('id').primaryKey(),
+  id: id(),
   name: text('name').notNull(),
   stripeCustomerId: text('stripe_customer_id'),
   createdAt: createdAt(),
 })
 
 export const users = sqliteTable('users', {
-  id: text('id').primaryKey(),
+  id: id(),
   email: text('email').notNull().unique(),
   name: text('name').notNull(),
   passwordHash: text('password_hash').notNull(),
@@ -39,14 +75,10 @@ export const users = sqliteTable('users', {
 export const memberships = sqliteTable(
   'memberships',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
-    userId: text('user_id')
-      .notNull()
-      .references(() => users.id),
-    roles: text('roles', { mode: 'json' }).$type<string[]>().notNull(),
+    id: id(),
+    firmId: firmId(),
+    userId: userId('user_id'),
+    roles: json<string[]>('roles').notNull(),
     /** The member's units for pages and files: 'si', or 'us' (US customary). JSON stays SI. */
     units: text('units', { enum: ['si', 'us'] })
       .notNull()
@@ -59,33 +91,27 @@ export const memberships = sqliteTable(
 export const sessions = sqliteTable('sessions', {
   sid: text('sid').primaryKey(),
   data: text('data').notNull(),
-  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
+  expiresAt: time('expires_at').notNull(),
 })
 
 export const invitations = sqliteTable('invitations', {
-  id: text('id').primaryKey(),
-  firmId: text('firm_id')
-    .notNull()
-    .references(() => firms.id),
+  id: id(),
+  firmId: firmId(),
   email: text('email').notNull(),
-  roles: text('roles', { mode: 'json' }).$type<string[]>().notNull(),
+  roles: json<string[]>('roles').notNull(),
   tokenHash: text('token_hash').notNull().unique(),
-  invitedBy: text('invited_by')
-    .notNull()
-    .references(() => users.id),
-  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
-  acceptedAt: integer('accepted_at', { mode: 'number' }),
+  invitedBy: userId('invited_by'),
+  expiresAt: time('expires_at').notNull(),
+  acceptedAt: time('accepted_at'),
   createdAt: createdAt(),
 })
 
 export const passwordResets = sqliteTable('password_resets', {
-  id: text('id').primaryKey(),
-  userId: text('user_id')
-    .notNull()
-    .references(() => users.id),
+  id: id(),
+  userId: userId('user_id'),
   tokenHash: text('token_hash').notNull().unique(),
-  expiresAt: integer('expires_at', { mode: 'number' }).notNull(),
-  usedAt: integer('used_at', { mode: 'number' }),
+  expiresAt: time('expires_at').notNull(),
+  usedAt: time('used_at'),
   createdAt: createdAt(),
 })
 
@@ -99,7 +125,7 @@ export const auditLog = sqliteTable(
     action: text('action').notNull(),
     subjectType: text('subject_type'),
     subjectId: text('subject_id'),
-    detail: text('detail', { mode: 'json' }).$type<Record<string, unknown>>(),
+    detail: json<Record<string, unknown>>('detail'),
     createdAt: createdAt(),
   },
   (t) => [index('audit_log_firm_idx').on(t.firmId, t.createdAt)],
@@ -107,7 +133,7 @@ export const auditLog = sqliteTable(
 
 /** Outgoing mail is queued here first, so a mail server that is down never fails the action. */
 export const mailOutbox = sqliteTable('mail_outbox', {
-  id: text('id').primaryKey(),
+  id: id(),
   toAddress: text('to_address').notNull(),
   subject: text('subject').notNull(),
   textBody: text('text_body').notNull(),
@@ -117,23 +143,21 @@ export const mailOutbox = sqliteTable('mail_outbox', {
     .default('queued'),
   attempts: integer('attempts').notNull().default(0),
   lastError: text('last_error'),
-  nextAttemptAt: integer('next_attempt_at', { mode: 'number' }).notNull(),
-  sentAt: integer('sent_at', { mode: 'number' }),
+  nextAttemptAt: time('next_attempt_at').notNull(),
+  sentAt: time('sent_at'),
   createdAt: createdAt(),
 })
 
 export const projects = sqliteTable(
   'projects',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
+    id: id(),
+    firmId: firmId(),
     name: text('name').notNull(),
     description: text('description').notNull().default(''),
     isDefault: integer('is_default', { mode: 'boolean' }).notNull().default(false),
     /** When the project was archived; null while it is active. */
-    archivedAt: integer('archived_at', { mode: 'number' }),
+    archivedAt: time('archived_at'),
     createdBy: text('created_by').references(() => users.id),
     createdAt: createdAt(),
   },
@@ -143,13 +167,9 @@ export const projects = sqliteTable(
 export const records = sqliteTable(
   'records',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
-    projectId: text('project_id')
-      .notNull()
-      .references(() => projects.id),
+    id: id(),
+    firmId: firmId(),
+    projectId: projectId(),
     name: text('name').notNull(),
     component: text('component'),
     sourceFileName: text('source_file_name').notNull(),
@@ -165,30 +185,24 @@ export const records = sqliteTable(
     ariasMPerS: real('arias_m_per_s').notNull(),
     d595S: real('d595_s').notNull(),
     cavMPerS: real('cav_m_per_s').notNull(),
-    warnings: text('warnings', { mode: 'json' }).$type<string[]>().notNull(),
+    warnings: json<string[]>('warnings').notNull(),
     /** Parsed samples in m/s², little-endian Float64. */
     samples: blob('samples', { mode: 'buffer' }).notNull(),
     synthetic: integer('synthetic', { mode: 'boolean' }).notNull().default(false),
     /** The record this one was processed from; null for a record as received. */
     parentId: text('parent_id').references((): AnySQLiteColumn => records.id),
     /** A processed record's processing as applied, with its chain (shared/schemas/processing.ts). */
-    processing: text('processing', { mode: 'json' }).$type<Record<string, unknown>>(),
-    uploadedBy: text('uploaded_by')
-      .notNull()
-      .references(() => users.id),
+    processing: json<Record<string, unknown>>('processing'),
+    uploadedBy: userId('uploaded_by'),
     createdAt: createdAt(),
   },
   (t) => [index('records_firm_idx').on(t.firmId, t.projectId), index('records_parent_idx').on(t.parentId)],
 )
 
 export const recordPairs = sqliteTable('record_pairs', {
-  id: text('id').primaryKey(),
-  firmId: text('firm_id')
-    .notNull()
-    .references(() => firms.id),
-  projectId: text('project_id')
-    .notNull()
-    .references(() => projects.id),
+  id: id(),
+  firmId: firmId(),
+  projectId: projectId(),
   name: text('name').notNull(),
   record1Id: text('record1_id')
     .notNull()
@@ -196,43 +210,32 @@ export const recordPairs = sqliteTable('record_pairs', {
   record2Id: text('record2_id')
     .notNull()
     .references(() => records.id),
-  createdBy: text('created_by')
-    .notNull()
-    .references(() => users.id),
-  createdAt: createdAt(),
+  ...creation(),
 })
 
 export const runs = sqliteTable(
   'runs',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
-    projectId: text('project_id')
-      .notNull()
-      .references(() => projects.id),
+    id: id(),
+    firmId: firmId(),
+    projectId: projectId(),
     recordId: text('record_id').references(() => records.id),
     pairId: text('pair_id').references(() => recordPairs.id),
     status: text('status', { enum: RUN_STATUSES }).notNull(),
     progress: real('progress').notNull().default(0),
     error: text('error'),
     /** Written from the run request, read back through decodeRunSettings (server/db/parseStored.ts). */
-    settings: text('settings', { mode: 'json' }).$type<RunSettings>().notNull(),
+    settings: json<RunSettings>('settings').notNull(),
     creditsCharged: integer('credits_charged').notNull().default(0),
     recordSha256: text('record_sha256').notNull(),
     engineVersion: text('engine_version'),
-    timings: text('timings', { mode: 'json' }).$type<Record<string, number>>(),
+    timings: json<Record<string, number>>('timings'),
     attempts: integer('attempts').notNull().default(0),
     /** The run this one re-runs after its predecessor was checked and locked. */
-    revisionOf: text('revision_of'),
-    revision: integer('revision').notNull().default(1),
-    createdBy: text('created_by')
-      .notNull()
-      .references(() => users.id),
-    createdAt: createdAt(),
-    startedAt: integer('started_at', { mode: 'number' }),
-    finishedAt: integer('finished_at', { mode: 'number' }),
+    ...revisions(),
+    ...creation(),
+    startedAt: time('started_at'),
+    finishedAt: time('finished_at'),
   },
   (t) => [
     index('runs_firm_idx').on(t.firmId, t.createdAt),
@@ -245,7 +248,7 @@ export const spectra = sqliteTable('spectra', {
   runId: text('run_id')
     .primaryKey()
     .references(() => runs.id),
-  result: text('result', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
+  result: json<Record<string, unknown>>('result').notNull(),
   createdAt: createdAt(),
 })
 
@@ -254,9 +257,7 @@ export const creditLedger = sqliteTable(
   'credit_ledger',
   {
     id: integer('id').primaryKey({ autoIncrement: true }),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
+    firmId: firmId(),
     delta: integer('delta').notNull(),
     kind: text('kind', {
       enum: ['grant', 'purchase', 'run_reserved', 'run_returned'],
@@ -273,10 +274,8 @@ export const creditLedger = sqliteTable(
 export const purchases = sqliteTable(
   'purchases',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
+    id: id(),
+    firmId: firmId(),
     /** The client-generated idempotency id. */
     clientPurchaseId: text('client_purchase_id').notNull(),
     packId: text('pack_id').notNull(),
@@ -287,44 +286,30 @@ export const purchases = sqliteTable(
     stripeChargeId: text('stripe_charge_id'),
     failureCode: text('failure_code'),
     failureMessage: text('failure_message'),
-    createdBy: text('created_by')
-      .notNull()
-      .references(() => users.id),
-    createdAt: createdAt(),
-    finishedAt: integer('finished_at', { mode: 'number' }),
+    ...creation(),
+    finishedAt: time('finished_at'),
   },
   (t) => [uniqueIndex('purchases_client_id_unique').on(t.firmId, t.clientPurchaseId)],
 )
 
 export const targets = sqliteTable('targets', {
-  id: text('id').primaryKey(),
-  firmId: text('firm_id')
-    .notNull()
-    .references(() => firms.id),
-  projectId: text('project_id')
-    .notNull()
-    .references(() => projects.id),
+  id: id(),
+  firmId: firmId(),
+  projectId: projectId(),
   name: text('name').notNull(),
-  definition: text('definition', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
-  createdBy: text('created_by')
-    .notNull()
-    .references(() => users.id),
-  createdAt: createdAt(),
+  definition: json<Record<string, unknown>>('definition').notNull(),
+  ...creation(),
 })
 
 export const comparisons = sqliteTable('comparisons', {
-  id: text('id').primaryKey(),
-  firmId: text('firm_id')
-    .notNull()
-    .references(() => firms.id),
-  projectId: text('project_id')
-    .notNull()
-    .references(() => projects.id),
+  id: id(),
+  firmId: firmId(),
+  projectId: projectId(),
   name: text('name').notNull(),
-  runIds: text('run_ids', { mode: 'json' }).$type<string[]>().notNull(),
+  runIds: json<string[]>('run_ids').notNull(),
   dampingRatio: real('damping_ratio').notNull(),
-  target: text('target', { mode: 'json' }).$type<Record<string, unknown>>(),
-  scaling: text('scaling', { mode: 'json' }).$type<Record<string, unknown>>(),
+  target: json<Record<string, unknown>>('target'),
+  scaling: json<Record<string, unknown>>('scaling'),
   /** 'arithmetic' or 'geometric': the suite mean drawn and checked against the target. */
   meanKind: text('mean_kind', { enum: ['arithmetic', 'geometric'] })
     .notNull()
@@ -332,44 +317,34 @@ export const comparisons = sqliteTable('comparisons', {
   /** For runs of record pairs: which combination of the two components is compared. */
   combination: text('combination', { enum: COMBINATIONS }),
   /** The comparison this one revises after its predecessor was checked and locked. */
-  revisionOf: text('revision_of'),
-  revision: integer('revision').notNull().default(1),
-  createdBy: text('created_by')
-    .notNull()
-    .references(() => users.id),
-  createdAt: createdAt(),
-  updatedAt: integer('updated_at', { mode: 'number' }),
+  ...revisions(),
+  ...creation(),
+  updatedAt: time('updated_at'),
 })
 
 export const reviews = sqliteTable(
   'reviews',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
+    id: id(),
+    firmId: firmId(),
     subjectType: text('subject_type', { enum: ['run', 'comparison'] }).notNull(),
     subjectId: text('subject_id').notNull(),
     state: text('state', { enum: STORED_REVIEW_STATES }).notNull(),
-    submittedBy: text('submitted_by')
-      .notNull()
-      .references(() => users.id),
-    submittedAt: integer('submitted_at', { mode: 'number' }).notNull(),
+    submittedBy: userId('submitted_by'),
+    submittedAt: time('submitted_at').notNull(),
     decidedBy: text('decided_by').references(() => users.id),
-    decidedAt: integer('decided_at', { mode: 'number' }),
+    decidedAt: time('decided_at'),
     createdAt: createdAt(),
   },
   (t) => [uniqueIndex('reviews_subject_unique').on(t.subjectType, t.subjectId)],
 )
 
 export const reviewComments = sqliteTable('review_comments', {
-  id: text('id').primaryKey(),
+  id: id(),
   reviewId: text('review_id')
     .notNull()
     .references(() => reviews.id),
-  authorId: text('author_id')
-    .notNull()
-    .references(() => users.id),
+  authorId: userId('author_id'),
   body: text('body').notNull(),
   createdAt: createdAt(),
 })
@@ -378,17 +353,12 @@ export const reviewComments = sqliteTable('review_comments', {
 export const runBatches = sqliteTable(
   'run_batches',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
+    id: id(),
+    firmId: firmId(),
     /** The project of its subjects, or null when they span several. */
     projectId: text('project_id').references(() => projects.id),
-    settings: text('settings', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
-    createdBy: text('created_by')
-      .notNull()
-      .references(() => users.id),
-    createdAt: createdAt(),
+    settings: json<Record<string, unknown>>('settings').notNull(),
+    ...creation(),
   },
   (t) => [index('run_batches_firm_idx').on(t.firmId, t.createdAt)],
 )
@@ -418,24 +388,20 @@ export const runBatchRuns = sqliteTable(
 export const apiTokens = sqliteTable(
   'api_tokens',
   {
-    id: text('id').primaryKey(),
-    firmId: text('firm_id')
-      .notNull()
-      .references(() => firms.id),
-    userId: text('user_id')
-      .notNull()
-      .references(() => users.id),
+    id: id(),
+    firmId: firmId(),
+    userId: userId('user_id'),
     /** The membership it was made under (no foreign key: removing a member deletes the row, and the token dies with it). */
     membershipId: text('membership_id').notNull(),
     name: text('name').notNull(),
     /** At most the member's roles when made; in use, also cut to the member's current roles. */
-    roles: text('roles', { mode: 'json' }).$type<string[]>().notNull(),
+    roles: json<string[]>('roles').notNull(),
     tokenHash: text('token_hash').notNull().unique(),
     /** The first characters of the secret, to tell tokens apart in lists. */
     hint: text('hint').notNull(),
-    expiresAt: integer('expires_at', { mode: 'number' }),
-    lastUsedAt: integer('last_used_at', { mode: 'number' }),
-    revokedAt: integer('revoked_at', { mode: 'number' }),
+    expiresAt: time('expires_at'),
+    lastUsedAt: time('last_used_at'),
+    revokedAt: time('revoked_at'),
     revokedBy: text('revoked_by').references(() => users.id),
     createdAt: createdAt(),
   },
