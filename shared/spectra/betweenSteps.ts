@@ -90,24 +90,65 @@ export interface StepState {
   zeta: number
 }
 
+/**
+ * W = √(P² + Q²), the amplitude of the step's damped sinusoid (see above), from the start state
+ * and the forcing f0 + sτ; k = ω², c = 2ζω.
+ */
+function sinusoidAmplitude(
+  u0: number,
+  v0: number,
+  f0: number,
+  s: number,
+  omega: number,
+  zeta: number,
+): number {
+  const k = omega * omega
+  const c = 2 * zeta * omega
+  const p = u0 + f0 / k - (c * s) / (k * k)
+  const r = (v0 + s / k + zeta * omega * p) / (omega * Math.sqrt(1 - zeta * zeta))
+  return Math.sqrt(p * p + r * r)
+}
+
 /** Upper bounds on max|u|, max|v| and max|A| inside a step, given the larger end values (see above). */
 export function stepBounds(
   state: StepState,
   ends: { u: number; v: number; a: number },
 ): { u: number; v: number; a: number } {
   const { u0, v0, f0, f1, stepS, omega, zeta } = state
+  const s = (f1 - f0) / stepS
+  const w = sinusoidAmplitude(u0, v0, f0, s, omega, zeta)
+  return boundsFrom(
+    ends.u,
+    ends.v,
+    ends.a,
+    w,
+    Math.max(Math.abs(f0), Math.abs(f1)),
+    Math.abs(s),
+    stepS,
+    omega,
+    zeta,
+  )
+}
+
+/** The three bounds of stepBounds from the larger end values, W, max|f| and |s| over the step. */
+function boundsFrom(
+  eu: number,
+  ev: number,
+  ea: number,
+  w: number,
+  fm: number,
+  as: number,
+  h: number,
+  omega: number,
+  zeta: number,
+): { u: number; v: number; a: number } {
   const k = omega * omega
   const c = 2 * zeta * omega
-  const s = (f1 - f0) / stepS
-  const p = u0 + f0 / k - (c * s) / (k * k)
-  const r = (v0 + s / k + zeta * omega * p) / (omega * Math.sqrt(1 - zeta * zeta))
-  const w = Math.hypot(p, r)
-  const q = ((omega * stepS) ** 2 / 8) * MARGIN_RAISE
-  const fm = Math.max(Math.abs(f0), Math.abs(f1))
+  const q = ((omega * h) ** 2 / 8) * MARGIN_RAISE
   return {
-    u: Math.min(ends.u + q * w, fm / k + (c * Math.abs(s)) / (k * k) + w),
-    v: Math.min(ends.v + q * omega * w, Math.abs(s) / k + omega * w),
-    a: Math.min(ends.a + q * k * w, fm + k * w),
+    u: Math.min(eu + q * w, fm / k + (c * as) / (k * k) + w),
+    v: Math.min(ev + q * omega * w, as / k + omega * w),
+    a: Math.min(ea + q * k * w, fm + k * w),
   }
 }
 
@@ -302,11 +343,28 @@ export interface CandidateOscillator {
   zeta: number
 }
 
+/** Raises SD (with its time) when an interior extreme beats it; an equal value keeps the earlier time. */
+function raiseSd(target: MutablePeaks, value: number, timeS: number): void {
+  if (value > target.sd || (value === target.sd && timeS < target.sdTimeS)) {
+    target.sd = value
+    target.sdTimeS = timeS
+  }
+}
+
+/** Raises SA (with its time) when an interior extreme beats it; an equal value keeps the earlier time. */
+function raiseSa(target: MutablePeaks, value: number, timeS: number): void {
+  if (value > target.sa || (value === target.sa && timeS < target.saTimeS)) {
+    target.sa = value
+    target.saTimeS = timeS
+  }
+}
+
 /**
  * Resolves the kernel's candidate steps for a call: for each listed step, the interior
  * extremes (closed form or Hermite, by method) raise that oscillator's peaks. `values` holds
  * `found` entries (oscillator slot, step, u₀, v₀); the steps are re-derived from the record
- * exactly as the kernels interpolate it. The result does not depend on the order of entries.
+ * exactly as the kernels interpolate it. A slot whose `peaks` entry is null (peaks read at step
+ * ends, or padding) is skipped. The result does not depend on the order of entries.
  */
 export function raisePeaksBetweenSteps(
   record: Float64Array,
@@ -314,13 +372,16 @@ export function raisePeaksBetweenSteps(
   stepS: number,
   values: Float64Array,
   found: number,
-  oscillators: (slot: number) => CandidateOscillator,
-  peaks: (slot: number) => MutablePeaks,
+  oscillators: readonly CandidateOscillator[],
+  peaks: readonly (MutablePeaks | null)[],
 ): void {
   const m = subSteps
+  const h = stepS
   for (let e = 0; e < found; e++) {
     const at = CANDIDATE_VALUES * e
-    const slot = values[at]!
+    const slot = values[at]! | 0
+    const target = peaks[slot]
+    if (!target) continue
     const step = values[at + 1]!
     const u0 = values[at + 2]!
     const v0 = values[at + 3]!
@@ -331,32 +392,73 @@ export function raisePeaksBetweenSteps(
     const slope = (end - start) / m
     const f0 = j === 0 ? start : start + slope * j
     const f1 = j + 1 === m ? end : start + slope * (j + 1)
-    const oscillator = oscillators(slot)
-    const state: StepState = { u0, v0, f0, f1, stepS, omega: oscillator.omega, zeta: oscillator.zeta }
-    let extremes
-    if (oscillator.method === 'piecewise-exact') extremes = exactStepExtremes(state)
-    else {
-      const { a11, a12, b1, c1, a21, a22, b2, c2 } = oscillator.coefficients
-      const u1 = a11 * u0 + a12 * v0 + b1 * f0 + c1 * f1
-      const v1 = a21 * u0 + a22 * v0 + b2 * f0 + c2 * f1
-      extremes = hermiteStepExtremes(state, u1, v1)
+    const oscillator = oscillators[slot]!
+    const startS = (step - 1) * h
+    const { omega, zeta } = oscillator
+    const { a11, a12, b1, c1, a21, a22, b2, c2 } = oscillator.coefficients
+    const u1 = a11 * u0 + a12 * v0 + b1 * f0 + c1 * f1
+    const v1 = a21 * u0 + a22 * v0 + b2 * f0 + c2 * f1
+    const k = omega * omega
+    const c = 2 * zeta * omega
+    const a0 = c * v0 + k * u0
+    const a1 = c * v1 + k * u1
+    // The kernel listed the step against the running peaks; the same bounds (stepBounds) held
+    // against the peaks of the whole record, per quantity, leave out what cannot beat them.
+    const slopeS = (f1 - f0) / h
+    const bound = boundsFrom(
+      Math.max(Math.abs(u0), Math.abs(u1)),
+      Math.max(Math.abs(v0), Math.abs(v1)),
+      Math.max(Math.abs(a0), Math.abs(a1)),
+      sinusoidAmplitude(u0, v0, f0, slopeS, omega, zeta),
+      Math.max(Math.abs(f0), Math.abs(f1)),
+      Math.abs(slopeS),
+      h,
+      omega,
+      zeta,
+    )
+    const needU = bound.u >= target.sd
+    const needV = bound.v >= target.sv
+    const needA = bound.a >= target.sa
+    if (!(needU || needV || needA)) continue
+    if (oscillator.method === 'piecewise-exact') {
+      // exactStepExtremes, inlined, for the quantities that need it.
+      const sigma = zeta * omega
+      const omegaD = omega * Math.sqrt(1 - zeta * zeta)
+      const up0 = -(f0 - (c * slopeS) / k) / k
+      const p0 = u0 - up0
+      const q0 = (v0 + slopeS / k + sigma * p0) / omegaD
+      const p1 = -sigma * p0 + omegaD * q0
+      const q1 = -sigma * q0 - omegaD * p0
+      if (needU) {
+        const u = interiorExtreme(up0, -slopeS / k, p0, q0, sigma, omegaD, h)
+        raiseSd(target, u.value, startS + u.tauS)
+      }
+      if (needV) {
+        const v = interiorExtreme(-slopeS / k, 0, p1, q1, sigma, omegaD, h)
+        if (v.value > target.sv) target.sv = v.value
+      }
+      if (needA) {
+        const p2 = -sigma * p1 + omegaD * q1
+        const q2 = -sigma * q1 - omegaD * p1
+        const a = interiorExtreme(-f0, -slopeS, -p2, -q2, sigma, omegaD, h)
+        raiseSa(target, a.value, startS + a.tauS)
+      }
+      continue
     }
-    const target = peaks(slot)
-    const startS = (step - 1) * stepS
-    if (
-      extremes.u.value > target.sd ||
-      (extremes.u.value === target.sd && startS + extremes.u.tauS < target.sdTimeS)
-    ) {
-      target.sd = extremes.u.value
-      target.sdTimeS = startS + extremes.u.tauS
+    // hermiteStepExtremes, inlined: (u, u'), (v, v') and (A, A') at both ends.
+    const r0 = -f0 - a0
+    const r1 = -f1 - a1
+    if (needU) {
+      const u = hermiteExtreme(u0, v0, u1, v1, h)
+      raiseSd(target, u.value, startS + u.tauS)
     }
-    if (extremes.v.value > target.sv) target.sv = extremes.v.value
-    if (
-      extremes.a.value > target.sa ||
-      (extremes.a.value === target.sa && startS + extremes.a.tauS < target.saTimeS)
-    ) {
-      target.sa = extremes.a.value
-      target.saTimeS = startS + extremes.a.tauS
+    if (needV) {
+      const v = hermiteExtreme(v0, r0, v1, r1, h)
+      if (v.value > target.sv) target.sv = v.value
+    }
+    if (needA) {
+      const a = hermiteExtreme(a0, c * r0 + k * v0, a1, c * r1 + k * v1, h)
+      raiseSa(target, a.value, startS + a.tauS)
     }
   }
 }

@@ -55,9 +55,6 @@ export interface SweepOptions {
   freeVibrationTail?: boolean
 }
 
-/** A sink for the candidates of padding slots and of oscillators read at step ends. */
-const IGNORED = { sd: Infinity, sdTimeS: 0, sv: Infinity, sa: Infinity, saTimeS: 0 }
-
 /** Oscillator-steps per kernel call, about 10 ms of work, so progress moves often. */
 const STEPS_PER_CHUNK = 3_000_000
 const MAX_CHUNK = 256
@@ -142,15 +139,16 @@ export function sweepOscillators(
         sa: out[2 * padded + slot]!,
         saTimeS: out[4 * padded + slot]! * stepS,
       }))
-      const between = (slot: number) => oscillators[members[slot]!]!.reading === 'between-steps'
       raisePeaksBetweenSteps(
         accel,
         subSteps,
         stepS,
         candidates.values,
         found,
-        (slot) => solved[slot]!,
-        (slot) => (slot < members.length && between(slot) ? chunkPeaks[slot]! : { ...IGNORED }),
+        solved,
+        chunkPeaks.map((chunkPeak, slot) =>
+          oscillators[members[slot]!]!.reading === 'between-steps' ? chunkPeak : null,
+        ),
       )
       members.forEach((index, slot) => {
         const oscillator = oscillators[index]!
