@@ -227,55 +227,67 @@ const DECLINE_REASONS: Record<string, string> = {
   card_velocity_exceeded: 'the card’s limit was exceeded',
 }
 
+/** A purchase that did not go through: what happened, that no credits moved, and what to do next. */
+function notCharged(
+  status: 'declined' | 'failed',
+  code: string,
+  problem: string,
+  advice?: string,
+): ChargeOutcome {
+  return { status, code, message: `${problem}. No credits were added${advice ? `; ${advice}` : ''}.` }
+}
+
 /** Maps an SDK error to a purchase outcome; anything that is not a Stripe error is rethrown. */
 export function classifyStripeError(err: unknown): ChargeOutcome {
   if (err instanceof Stripe.errors.StripeCardError) {
     const reason = DECLINE_REASONS[err.decline_code ?? ''] ?? DECLINE_REASONS[err.code ?? ''] ?? err.message
-    return {
-      status: 'declined',
-      code: err.decline_code ?? err.code ?? 'card_declined',
-      message: `The card was declined: ${reason}. No credits were added.`,
-    }
+    return notCharged(
+      'declined',
+      err.decline_code ?? err.code ?? 'card_declined',
+      `The card was declined: ${reason}`,
+    )
   }
   if (err instanceof Stripe.errors.StripeRateLimitError) {
-    return {
-      status: 'failed',
-      code: 'payment_service_busy',
-      message:
-        'The payment service kept answering “too many requests”. No credits were added; try again in a minute.',
-    }
+    return notCharged(
+      'failed',
+      'payment_service_busy',
+      'The payment service kept answering “too many requests”',
+      'try again in a minute',
+    )
   }
   if (err instanceof Stripe.errors.StripeConnectionError) {
-    return {
-      status: 'failed',
-      code: 'payment_service_unreachable',
-      message: 'The payment service could not be reached. No credits were added; try again in a moment.',
-    }
+    return notCharged(
+      'failed',
+      'payment_service_unreachable',
+      'The payment service could not be reached',
+      'try again in a moment',
+    )
   }
   if (err instanceof Stripe.errors.StripeAPIError) {
-    return {
-      status: 'failed',
-      code: 'payment_service_error',
-      message: `The payment service had an internal error (${err.message}). No credits were added; try again in a moment.`,
-    }
+    return notCharged(
+      'failed',
+      'payment_service_error',
+      `The payment service had an internal error (${err.message})`,
+      'try again in a moment',
+    )
   }
   if (
     err instanceof Stripe.errors.StripeAuthenticationError ||
     err instanceof Stripe.errors.StripePermissionError
   ) {
-    return {
-      status: 'failed',
-      code: 'payment_service_misconfigured',
-      message:
-        'The payment service refused Ordinate’s API key. No credits were added; ask the operator to check STRIPE_SECRET_KEY.',
-    }
+    return notCharged(
+      'failed',
+      'payment_service_misconfigured',
+      'The payment service refused Ordinate’s API key',
+      'ask the operator to check STRIPE_SECRET_KEY',
+    )
   }
   if (err instanceof Stripe.errors.StripeError) {
-    return {
-      status: 'failed',
-      code: 'payment_rejected',
-      message: `The payment service refused the payment (${err.message}). No credits were added.`,
-    }
+    return notCharged(
+      'failed',
+      'payment_rejected',
+      `The payment service refused the payment (${err.message})`,
+    )
   }
   throw err
 }

@@ -1,10 +1,9 @@
 import { Router } from 'express'
 import { idParamsSchema } from '../../shared/schemas/common.js'
 import { createRunBatchBodySchema, runBatchListQuerySchema } from '../../shared/schemas/runBatches.js'
-import { isFinished } from '../../shared/schemas/runs.js'
 import type { AppDeps } from '../deps.js'
 import { memberOf, requireAction, requireMember } from '../middleware/auth.js'
-import { openEventStream } from './eventStream.js'
+import { streamRunEvents } from './eventStream.js'
 import { createRunBatch, getRunBatch, listRunBatches } from '../services/runBatches.js'
 
 export function runBatchesRouter(deps: AppDeps) {
@@ -35,30 +34,7 @@ export function runBatchesRouter(deps: AppDeps) {
   router.get('/run-batches/:id/events', requireMember, (req, res) => {
     const { id } = idParamsSchema.parse(req.params)
     const batch = getRunBatch(deps.db, memberOf(req).firmId, id)
-    const stream = openEventStream(req, res)
-    const open = new Set<string>()
-    for (const run of batch.runs) {
-      stream.send({
-        type: 'status',
-        runId: run.id,
-        status: run.status,
-        progress: run.progress,
-        error: run.error,
-      })
-      if (!isFinished(run.status)) open.add(run.id)
-    }
-    if (open.size === 0) return stream.close()
-    for (const runId of open) {
-      const unsubscribe =
-        deps.runQueue?.subscribe(runId, (event) => {
-          stream.send(event)
-          if (event.type !== 'status' || !isFinished(event.status)) return
-          open.delete(runId)
-          unsubscribe()
-          if (open.size === 0) stream.close()
-        }) ?? (() => {})
-      stream.onClose(unsubscribe)
-    }
+    streamRunEvents(req, res, deps.runQueue, batch.runs)
   })
 
   return router
