@@ -5,7 +5,12 @@ import { join } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { promisify } from 'node:util'
 import { describe, expect, it } from 'vitest'
+import { readFileSync } from 'node:fs'
 import { spectrumResultSchema } from '../shared/schemas/spectrum.js'
+import { computeSpectrum } from '../shared/spectra/computeSpectrum.js'
+import { parseRecord } from '../shared/spectra/parseRecord.js'
+import { fourierSpectrum } from '../shared/spectra/processing/fourierSpectrum.js'
+import { processRecord } from '../shared/spectra/processing/processRecord.js'
 
 const run = promisify(execFile)
 const root = fileURLToPath(new URL('..', import.meta.url))
@@ -89,5 +94,60 @@ describe('npm run spectrum', () => {
       cwd: root,
     })
     expect(() => JSON.parse(stdout)).not.toThrow()
+  })
+  it("processes the record with the API's settings before the sweep, and states the chain", async () => {
+    const { stdout, stderr, code } = await cli([
+      demo,
+      '--baseline',
+      '1',
+      '--highpass',
+      '0.1:4',
+      '--periods',
+      '0.1:2:4',
+      '--method',
+      'piecewise-exact',
+    ])
+    expect(code).toBe(0)
+    expect(stderr).toBe('')
+    const printed = JSON.parse(stdout) as { processing: { chain: unknown[]; usablePeriodMaxS: number } }
+    const result = spectrumResultSchema.parse(printed)
+    expect(printed.processing.chain).toHaveLength(1)
+    // The same steps in process: the shared processing and engine the API uses.
+    const record = parseRecord(readFileSync(demo, 'utf8'))
+    const processed = processRecord(record.accelMPerS2, record.dtS, {
+      baseline: { order: 1 },
+      highPass: { hz: 0.1, order: 4 },
+    })
+    expect(printed.processing.usablePeriodMaxS).toBe(processed.usablePeriodMaxS)
+    const direct = computeSpectrum(
+      { accelMPerS2: processed.accelMPerS2, dtS: record.dtS },
+      { dampingRatios: [0.05], periodsS: result.periodsS, method: 'piecewise-exact' },
+    )
+    expect(result.curves[0]!.psaMPerS2).toEqual(Array.from(direct.curves[0]!.psaMPerS2))
+    const plain = spectrumResultSchema.parse(JSON.parse((await cli([demo, '--periods', '0.1:2:4'])).stdout))
+    expect(result.curves[0]!.psaMPerS2).not.toEqual(plain.curves[0]!.psaMPerS2)
+  })
+
+  it('prints the Fourier amplitude spectrum of the processed record with --fourier', async () => {
+    const { stdout, code } = await cli([demo, '--highpass', '0.2', '--fourier'])
+    expect(code).toBe(0)
+    const printed = JSON.parse(stdout) as {
+      frequencyHz: number[]
+      rawMPerS: number[]
+      smoothedMPerS: number[]
+    }
+    const record = parseRecord(readFileSync(demo, 'utf8'))
+    const processed = processRecord(record.accelMPerS2, record.dtS, { highPass: { hz: 0.2, order: 4 } })
+    const direct = fourierSpectrum(processed.accelMPerS2, record.dtS)
+    expect(printed.frequencyHz).toEqual(Array.from(direct.frequencyHz))
+    expect(printed.rawMPerS).toEqual(Array.from(direct.rawMPerS))
+    expect(printed.smoothedMPerS).toHaveLength(printed.frequencyHz.length)
+  })
+
+  it('exits with status 2 naming the processing flag that is wrong', async () => {
+    const { stderr, code } = await cli([demo, '--highpass', 'fast'])
+    expect(code).toBe(2)
+    expect(stderr).toContain('--highpass')
+    expect(stderr).toContain('usage:')
   })
 })
