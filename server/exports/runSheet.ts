@@ -133,7 +133,10 @@ export function recordSection(
   const head = [
     ...(record.component ? [{ label: 'Component', value: record.component }] : []),
     { label: 'Source file', value: record.sourceFileName },
-    { label: 'SHA-256 of the file', value: record.sha256 },
+    // A processed record's hash is of its stored samples; the original file's is in the processing statement.
+    record.processing
+      ? { label: 'SHA-256 of the processed samples', value: record.sha256 }
+      : { label: 'SHA-256 of the file', value: record.sha256 },
   ]
   if (compact) {
     return {

@@ -322,6 +322,9 @@ describe('runs on a processed record', () => {
     expect(sheet.warnings.some((w) => /beyond 4 s/.test(w))).toBe(true)
     // The chart shades the periods beyond the usable band.
     expect(sheet.chart.options.usablePeriodMaxS).toBeCloseTo(4, 12)
+    // The processed record's hash is of its samples, not of a file.
+    const hashes = sheet.records[0]!.fields.filter((f) => f.label.startsWith('SHA-256'))
+    expect(hashes.map((f) => f.label)).toEqual(['SHA-256 of the processed samples'])
     expect(buildSpectrumChart(sheet.chart.data, sheet.chart.options).svg).toContain(
       'data-role="outside-usable-band"',
     )
@@ -329,6 +332,7 @@ describe('runs on a processed record', () => {
 
   it('say no baseline correction or filtering was applied to a record as received', () => {
     const sheet = buildRunSheetFromFacts(demoRunFacts())
+    expect(sheet.records[0]!.fields.some((f) => f.label === 'SHA-256 of the file')).toBe(true)
     expect(sheet.records[0]!.fields.find((f) => f.label === 'Processing')?.value).toMatch(
       /no baseline correction or filtering/,
     )
