@@ -15,7 +15,10 @@ async function main() {
   const db = openDb(config.databasePath)
   migrateDb(db)
   if (config.demoData) {
-    const seeded = await seedDemoData(db, { dataDir: config.dataDir })
+    const origin = config.publicUrl
+      ? new URL(config.publicUrl).origin
+      : `http://${config.host}:${config.port}`
+    const seeded = await seedDemoData(db, { dataDir: config.dataDir, origin })
     if (seeded) log('Demo data loaded (see README for the demo accounts).')
   }
 
