@@ -32,11 +32,12 @@ import {
 } from '../../shared/vocabulary/combinations.js'
 import type { Db, Tx } from '../db/client.js'
 import { comparisons, recordPairs, records, runs, spectra, users } from '../db/schema.js'
+import { createdByColumns, foldCreatedBy } from '../db/createdBy.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { auditAction } from './audit.js'
-import { resolveProject } from './projects.js'
+import { resolveOpenProject } from './projects.js'
 import { assertMayEdit, noteRevision, reviewStateOf, reviewStates } from './reviews.js'
 import { nullIfNaN, resolveComparisonTarget } from './targets.js'
 
@@ -75,8 +76,7 @@ const summaryColumns = {
   scaling: comparisons.scaling,
   revision: comparisons.revision,
   revisionOf: comparisons.revisionOf,
-  createdById: comparisons.createdBy,
-  createdByName: users.name,
+  ...createdByColumns(comparisons.createdBy),
   createdAt: comparisons.createdAt,
   updatedAt: comparisons.updatedAt,
 }
@@ -88,13 +88,12 @@ function selectSummaries(db: Tx) {
 type SummaryRow = Awaited<ReturnType<ReturnType<typeof selectSummaries>['all']>>[number]
 
 function toSummary(row: SummaryRow, reviewState: ComparisonSummary['reviewState']): ComparisonSummary {
-  const { createdById, createdByName, target, scaling, ...rest } = row
+  const { target, scaling } = row
   return {
-    ...rest,
+    ...foldCreatedBy(row),
     target: target ? parseStored(storedTargetSchema, target, 'comparison target') : null,
     scaling: scaling ? parseStored(storedScalingSchema, scaling, 'comparison scaling') : null,
     reviewState,
-    createdBy: { id: createdById, name: createdByName },
   }
 }
 
@@ -409,7 +408,12 @@ export function createComparison(db: Db, member: Member, body: CreateInput): Com
       }
       const computed = computeView(tx, member.firmId, inputs)
       const firstRun = computed.curves[0]?.run
-      const project = resolveProject(tx, member.firmId, body.projectId ?? firstRun?.projectId)
+      const project = resolveOpenProject(
+        tx,
+        member.firmId,
+        body.projectId ?? firstRun?.projectId,
+        'comparisons',
+      )
       const now = Date.now()
       tx.insert(comparisons)
         .values({

@@ -11,6 +11,7 @@ import { isFinished, runSettingsSchema, type RunStatus } from '../../shared/sche
 import type { Db, Tx } from '../db/client.js'
 import { parseStored } from '../db/parseStored.js'
 import { recordPairs, records, runBatches, runBatchRuns, runs, users } from '../db/schema.js'
+import { createdByColumns, foldCreatedBy } from '../db/createdBy.js'
 import { notFound, paymentRequired } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
@@ -131,8 +132,7 @@ const batchColumns = {
   id: runBatches.id,
   projectId: runBatches.projectId,
   settings: runBatches.settings,
-  createdById: runBatches.createdBy,
-  createdByName: users.name,
+  ...createdByColumns(runBatches.createdBy),
   createdAt: runBatches.createdAt,
 }
 
@@ -164,18 +164,17 @@ function summarise(db: Tx, rows: BatchRow[]): RunBatchSummary[] {
     )
     .orderBy(asc(runBatchRuns.batchId), asc(runBatchRuns.position))
     .all()
-  return rows.map(({ createdById, createdByName, ...row }) => {
+  return rows.map((row) => {
     const own = members.filter((m) => m.batchId === row.id)
     const counts = emptyCounts()
     for (const m of own) counts[m.status as RunStatus]++
     return {
-      ...row,
+      ...foldCreatedBy(row),
       settings: parseStored(runSettingsSchema, row.settings, 'batch settings'),
       recordIds: own.flatMap((m) => (m.recordId ? [m.recordId] : [])),
       pairIds: own.flatMap((m) => (m.pairId ? [m.pairId] : [])),
       counts,
       finished: own.every((m) => isFinished(m.status)),
-      createdBy: { id: createdById, name: createdByName },
     }
   })
 }

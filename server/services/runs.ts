@@ -11,11 +11,13 @@ import { defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import type { Db, Tx } from '../db/client.js'
 import { decodeRunSettings, decodeSpectrumResult, type StoredSpectrumResult } from '../db/parseStored.js'
 import { recordPairs, records, runs, spectra, users } from '../db/schema.js'
+import { createdByColumns, foldCreatedBy } from '../db/createdBy.js'
 import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { reserveRunCredit } from './credits.js'
+import { resolveOpenProject } from './projects.js'
 import { runsOfRecordCondition } from './records.js'
 import { reviewStateOf, reviewStates } from './reviews.js'
 
@@ -50,8 +52,7 @@ const runColumns = {
   recordSha256: runs.recordSha256,
   engineVersion: runs.engineVersion,
   timings: runs.timings,
-  createdById: runs.createdBy,
-  createdByName: users.name,
+  ...createdByColumns(runs.createdBy),
   createdAt: runs.createdAt,
   startedAt: runs.startedAt,
   finishedAt: runs.finishedAt,
@@ -71,13 +72,8 @@ function selectRuns(db: Tx, where: SQL | undefined) {
 
 type RunRow = Awaited<ReturnType<ReturnType<typeof selectRuns>['all']>>[number]
 
-function toRun({ createdById, createdByName, ...row }: RunRow, reviewState: Run['reviewState']): Run {
-  return {
-    ...row,
-    settings: decodeRunSettings(row.settings),
-    createdBy: { id: createdById, name: createdByName },
-    reviewState,
-  }
+function toRun(row: RunRow, reviewState: Run['reviewState']): Run {
+  return { ...foldCreatedBy(row), settings: decodeRunSettings(row.settings), reviewState }
 }
 
 /** The firm's runs, newest first, optionally for one project or one record (with its pairs' runs). */
@@ -195,6 +191,7 @@ export function queueRunInTx(
 ): string {
   const runId = newId()
   const subject = subjectRow(tx, member.firmId, request.subject)
+  resolveOpenProject(tx, member.firmId, subject.projectId, 'runs')
   const revision = runRevision(tx, member.firmId, request.revisionOf, subject)
   tx.insert(runs)
     .values({

@@ -15,6 +15,7 @@ import { TargetCsvError, parseTargetCsv } from '../../shared/spectra/targetCsv.j
 import { evaluateTarget } from '../../shared/spectra/targets.js'
 import type { Db, Tx } from '../db/client.js'
 import { targets, users } from '../db/schema.js'
+import { createdByColumns, foldCreatedBy } from '../db/createdBy.js'
 import { badRequest, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
@@ -72,8 +73,7 @@ const targetColumns = {
   projectId: targets.projectId,
   name: targets.name,
   definition: targets.definition,
-  createdById: targets.createdBy,
-  createdByName: users.name,
+  ...createdByColumns(targets.createdBy),
   createdAt: targets.createdAt,
 }
 
@@ -82,14 +82,9 @@ type TargetRow = { definition: Record<string, unknown>; createdById: string; cre
   'definition' | 'createdBy' | 'label'
 >
 
-function toTarget({ createdById, createdByName, definition, ...row }: TargetRow): Target {
-  const parsed = targetDefinitionSchema.parse(definition)
-  return {
-    ...row,
-    definition: parsed,
-    label: targetLabel(parsed),
-    createdBy: { id: createdById, name: createdByName },
-  }
+function toTarget(row: TargetRow): Target {
+  const definition = targetDefinitionSchema.parse(row.definition)
+  return { ...foldCreatedBy(row), definition, label: targetLabel(definition) }
 }
 
 /** The firm's saved targets, newest first, optionally of one project. */
