@@ -20,34 +20,42 @@ import { creditBalance } from './credits.js'
 import { getRun, queueRunInTx, resolveRunSettings } from './runs.js'
 
 /**
+ * The project of each subject named in `ids`, all of them in the firm's `table`: the first that
+ * is not answers 404 naming it (`The record … (recordIds[2])`).
+ */
+function projectsOf(
+  tx: Tx,
+  table: typeof records | typeof recordPairs,
+  firmId: string,
+  ids: readonly string[],
+  noun: string,
+  field: string,
+): string[] {
+  if (ids.length === 0) return []
+  const found = new Map(
+    tx
+      .select({ id: table.id, projectId: table.projectId })
+      .from(table)
+      .where(and(eq(table.firmId, firmId), inArray(table.id, [...ids])))
+      .all()
+      .map((row) => [row.id, row.projectId]),
+  )
+  return ids.map((id, i) => {
+    const projectId = found.get(id)
+    if (projectId === undefined) throw notFound(`The ${noun} ${id} (${field}[${i}])`)
+    return projectId
+  })
+}
+
+/**
  * The projects of a batch's subjects. Every id must name one of the firm's records or pairs:
  * the first that does not answers 404 naming it, before anything is written.
  */
 function subjectProjects(tx: Tx, firmId: string, body: CreateRunBatchBody): Set<string> {
-  const found = new Map<string, string>()
-  if (body.recordIds.length > 0) {
-    for (const r of tx
-      .select({ id: records.id, projectId: records.projectId })
-      .from(records)
-      .where(and(eq(records.firmId, firmId), inArray(records.id, body.recordIds)))
-      .all())
-      found.set(r.id, r.projectId)
-  }
-  if (body.pairIds.length > 0) {
-    for (const p of tx
-      .select({ id: recordPairs.id, projectId: recordPairs.projectId })
-      .from(recordPairs)
-      .where(and(eq(recordPairs.firmId, firmId), inArray(recordPairs.id, body.pairIds)))
-      .all())
-      found.set(p.id, p.projectId)
-  }
-  body.recordIds.forEach((id, i) => {
-    if (!found.has(id)) throw notFound(`The record ${id} (recordIds[${i}])`)
-  })
-  body.pairIds.forEach((id, i) => {
-    if (!found.has(id)) throw notFound(`The record pair ${id} (pairIds[${i}])`)
-  })
-  return new Set(found.values())
+  return new Set([
+    ...projectsOf(tx, records, firmId, body.recordIds, 'record', 'recordIds'),
+    ...projectsOf(tx, recordPairs, firmId, body.pairIds, 'record pair', 'pairIds'),
+  ])
 }
 
 /**
