@@ -68,6 +68,28 @@ export function resolveProject(db: Tx, firmId: string, projectId?: string): Proj
 }
 
 /**
+ * resolveProject for new work (uploads, runs, batches, pairs, comparisons): an archived project
+ * answers 409 `project_archived`, naming it and the work refused. Reading its work stays allowed,
+ * and restoring the project lifts the refusal. Call inside the transaction that writes the work,
+ * so an archive in between cannot slip past.
+ */
+export function resolveOpenProject(
+  db: Tx,
+  firmId: string,
+  projectId: string | undefined,
+  work: string,
+): Project {
+  const project = resolveProject(db, firmId, projectId)
+  if (project.archived) {
+    throw conflict(
+      `The project “${project.name}” is archived, so it takes no new ${work}. Its work can still be read; restore the project on the Projects page to add to it.`,
+      'project_archived',
+    )
+  }
+  return project
+}
+
+/**
  * PATCH /api/projects/:id: renames, archives or unarchives one of the firm's projects (another
  * firm's id answers 404). The default project, where uploads go when none is named, cannot be
  * archived. Archiving keeps everything in the project.

@@ -7,6 +7,7 @@ import { badRequest, conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import type { Member } from '../middleware/auth.js'
 import { auditAction } from './audit.js'
+import { resolveOpenProject } from './projects.js'
 import { getRecord } from './records.js'
 
 /**
@@ -56,6 +57,7 @@ export function createRecordPair(
   }
   db.transaction(
     (tx) => {
+      resolveOpenProject(tx, member.firmId, r1.projectId, 'record pairs')
       const existing = tx
         .select({ name: recordPairs.name })
         .from(recordPairs)

@@ -23,6 +23,7 @@ import { badRequest } from '../httpError.js'
 import { newId } from '../ids.js'
 import { recordAudit } from './audit.js'
 import { decimateMinMax } from './decimateMinMax.js'
+import { resolveOpenProject } from './projects.js'
 import { getRecord, loadRecordSamples, parameterColumns, type RecordUploader } from './records.js'
 import { encodeSamples } from './sampleBlob.js'
 
@@ -151,6 +152,7 @@ export function createProcessedRecord(
   const id = newId()
   db.transaction(
     (tx) => {
+      resolveOpenProject(tx, member.firmId, parent.projectId, 'records')
       tx.insert(records)
         .values({
           id,

@@ -27,7 +27,7 @@ import { recordSummaryColumns } from '../runs/recordSummaryColumns.js'
 import { auditAction } from './audit.js'
 import { decimateMinMax } from './decimateMinMax.js'
 import { removeOriginal, storeOriginal } from './originals.js'
-import { resolveProject } from './projects.js'
+import { resolveOpenProject, resolveProject } from './projects.js'
 import { decodeSamples, encodeSamples } from './sampleBlob.js'
 
 /** Who adds a record: the signed-in member, or the demo seeder acting as a demo member. */
@@ -96,7 +96,7 @@ export function createRecord(
   member: RecordUploader,
   input: CreateRecordInput,
 ): RecordInfo {
-  const project = resolveProject(db, member.firmId, input.projectId)
+  const project = resolveOpenProject(db, member.firmId, input.projectId, 'records')
   let parsed
   try {
     parsed = parseRecord(decodeText(input.bytes), { units: input.units, dtS: input.dtS })
