@@ -29,9 +29,8 @@ import {
 } from './rotd.js'
 import {
   ACCURACY_TARGET,
-  HERMITE_READING_BUDGET,
-  HERMITE_SOLVER_BUDGET,
   MAX_SUB_STEPS,
+  NEWMARK_FIRST_PASS_AIM,
   PEAK_PICKING_BOUND,
   PEAK_PICKING_BUDGET,
   PEAK_SAMPLES_PER_PERIOD,
@@ -133,7 +132,7 @@ export interface SpectrumComputation<Curve extends SpectrumCurve = SpectrumCurve
   methodStatement: MethodStatement
   /** Non-blocking cautions about this computation, as codes and values (shared/warningMessages.ts words them). */
   warnings: SpectrumWarning[]
-  /** Oscillator-steps run (for a pair, both components'), the measure of work. */
+  /** Oscillator-steps run in all passes (for a pair, both components'; for Newmark, the exact check too), the measure of work. */
   oscillatorSteps: number
 }
 
@@ -164,8 +163,9 @@ const SOLVER_TEXT: Record<SpectrumMethod, string> = {
 }
 
 const NEWMARK_SUMMARY =
-  `Sub-steps only as many as Newmark's period and decay error needs, with peaks between steps read from cubic ` +
-  `Hermite interpolants; both errors together are held to ${100 * ACCURACY_TARGET}%.`
+  `Sub-steps only as many as the guarantee needs: every ordinate is checked against the exact solution of the ` +
+  `same record (piecewise-exact recurrence) and sub-stepped until within ${100 * ACCURACY_TARGET}%; peaks between ` +
+  `steps are read from cubic Hermite interpolants.`
 
 /** One or two sentences for pages: how a record's peaks are found, per method. */
 export const PEAK_SEARCH_SUMMARY: Record<SpectrumMethod, string> = {
@@ -199,13 +199,15 @@ function recordSubStepRule(method: SpectrumMethod, exactInstead: number): string
       : ''
   return (
     `${PEAK_SEARCH_SUMMARY[method]} Per oscillator, step h = Δt/m on the record interpolated linearly between ` +
-    `samples, with m the smallest count for which ε·(2 + ω·min(D/2, 1/(ζω))) ≤ ${100 * HERMITE_SOLVER_BUDGET}%, ε being ` +
-    `the relative error of the step's eigenvalue (period elongation and decay error) and D the duration; m is ` +
-    `rounded up to 1–8 or 8, 10, 12, 14 times a power of two. ${SEARCH_RULE} In a searched step the peaks are read ` +
-    `from cubic Hermite interpolants of (u, u′) for SD, (u′, u″) for SV and (A, A′) for SA, A = 2ζωu′ + ω²u, which ` +
-    `are within (ωh)⁴/384·W, ·ωW and ·ω²W of the exact extremes. After the first pass an oscillator is run again ` +
-    `with more sub-steps while that bound plus the solver error scaled by W over the ordinate (W bounded from its ` +
-    `peaks and the record's PGA, slopes or kinks) exceeds ${100 * HERMITE_READING_BUDGET}%.${instead}`
+    `samples. The first pass takes the smallest m for which ε·(2 + ω·min(D/2, 1/(ζω))) ≤ ` +
+    `${100 * NEWMARK_FIRST_PASS_AIM}%, ε being the relative error of the step's eigenvalue (period elongation and ` +
+    `decay error) and D the duration, rounded up to 1–8 or 8, 10, 12, 14 times a power of two. ${SEARCH_RULE} In a ` +
+    `searched step the peaks are read from cubic Hermite interpolants of (u, u′) for SD, (u′, u″) for SV and ` +
+    `(A, A′) for SA, A = 2ζωu′ + ω²u. Each oscillator is also run once on the piecewise-exact recurrence (Nigam & ` +
+    `Jennings 1969), one step per sample, with its exact peak search, which gives the peaks of the exact response; ` +
+    `while any of the Newmark SD, SV and SA differs from those by more than ${100 * ACCURACY_TARGET}%, the ` +
+    `oscillator is run again with m raised as h² (both Newmark variants converge as h²), up to three times and ` +
+    `${MAX_SUB_STEPS} sub-steps. The reported ordinates are the Newmark ones.${instead}`
   )
 }
 
@@ -395,9 +397,6 @@ export function oscillatorPeakBound(
     dampingRatio: oscillator.dampingRatio,
     stepS: dtS / oscillator.subSteps,
     ...peaks,
-    reading: oscillator.reading,
-    recurrence: oscillator.recurrence,
-    durationS: forcing.durationS,
     pgaMPerS2: forcing.pgaMPerS2,
     maxSlopeMPerS3: forcing.maxSlopeMPerS3,
   }
@@ -487,6 +486,8 @@ export interface OscillatorSolver {
   solve(indices: readonly number[], onProgress?: (fraction: number) => void): void
   /** The bound on peaks between steps of oscillator `index`'s last solve, relative to every ordinate reported. */
   peakBound(index: number): number
+  /** Oscillator-steps run so far, every pass and component included. */
+  readonly stepsRun: number
 }
 
 /** Refinement passes after the first pass. */
@@ -530,7 +531,32 @@ export function refineSweep(
   return stillAbove
 }
 
-/** One record through the sweep kernel: the peaks of each oscillator, with their times. */
+/**
+ * Largest relative difference of an oscillator's SD, SV and SA from the exact ones: Newmark's
+ * whole error against the exact response to the same interpolated record (an ordinate of zero
+ * must be matched exactly).
+ */
+function relativeDifference(
+  peaks: OscillatorPeaks,
+  exact: OscillatorPeaks,
+  index: number,
+  slot: number,
+): number {
+  let worst = 0
+  for (const key of ['sdM', 'svMPerS', 'saMPerS2'] as const) {
+    const reference = exact[key][slot]!
+    const difference = Math.abs(peaks[key][index]! - reference)
+    worst = Math.max(worst, reference > 0 ? difference / reference : difference > 0 ? Infinity : 0)
+  }
+  return worst
+}
+
+/**
+ * One record through the sweep kernel: the peaks of each oscillator, with their times. For a
+ * Newmark method, each oscillator is also run once on the piecewise-exact recurrence with its
+ * exact peak search (no sub-steps), and its bound is the measured difference from those peaks
+ * (see recordSubStepRule).
+ */
 function recordSolver(
   record: SpectrumRecord,
   oscillators: OscillatorSpec[],
@@ -539,31 +565,54 @@ function recordSolver(
 ): OscillatorSolver & { peaks: OscillatorPeaks } {
   const count = oscillators.length
   const peaks = oscillatorPeaks(count)
-  const forcing = seriesForcing(record.accelMPerS2, record.dtS)
-  return {
+  const intervals = record.accelMPerS2.length - 1
+  let exact: { peaks: OscillatorPeaks; slotOf: Int32Array } | null = null
+  const solver = {
     peaks,
-    solve(indices, onProgress) {
-      const solved = sweepOscillators(
-        record,
-        indices.map((index) => oscillators[index]!),
-        method,
-        { kernel, onProgress },
-      )
+    stepsRun: 0,
+    solve(indices: readonly number[], onProgress?: (fraction: number) => void) {
+      const specs = indices.map((index) => oscillators[index]!)
+      const solved = sweepOscillators(record, specs, method, { kernel, onProgress })
+      for (const spec of specs) solver.stepsRun += intervals * spec.subSteps
       indices.forEach((index, slot) => {
         for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const) {
           peaks[key][index] = solved[key][slot]!
         }
       })
     },
-    peakBound(index) {
-      const peaks_ = {
-        sdM: peaks.sdM[index]!,
-        svMPerS: peaks.svMPerS[index]!,
-        saMPerS2: peaks.saMPerS2[index]!,
-      }
-      return oscillatorPeakBound(oscillators[index]!, record.dtS, peaks_, forcing)
+    peakBound(index: number) {
+      // The exact search leaves nothing between steps unread (subSteps.ts).
+      if ((oscillators[index]!.recurrence ?? method) === 'piecewise-exact') return 0
+      exact ??= exactPeaks(record, oscillators, method, kernel, () => (solver.stepsRun += intervals))
+      return relativeDifference(peaks, exact.peaks, index, exact.slotOf[index]!)
     },
   }
+  return solver
+}
+
+/** The peaks of a sweep's Newmark oscillators on the piecewise-exact recurrence, one step per sample. */
+function exactPeaks(
+  record: SpectrumRecord,
+  oscillators: readonly OscillatorSpec[],
+  method: SpectrumMethod,
+  kernel: SweepKernel,
+  countStep: () => void,
+): { peaks: OscillatorPeaks; slotOf: Int32Array } {
+  const slotOf = new Int32Array(oscillators.length).fill(-1)
+  const specs: OscillatorSpec[] = []
+  oscillators.forEach((oscillator, index) => {
+    if ((oscillator.recurrence ?? method) === 'piecewise-exact') return
+    slotOf[index] = specs.length
+    specs.push({
+      periodS: oscillator.periodS,
+      dampingRatio: oscillator.dampingRatio,
+      subSteps: 1,
+      recurrence: 'piecewise-exact',
+      reading: 'between-steps',
+    })
+    countStep()
+  })
+  return { peaks: sweepOscillators(record, specs, 'piecewise-exact', { kernel }), slotOf }
 }
 
 /** Largest ratio of the maximum-direction peaks to RotD50's (how much smaller RotD50's ordinates are). */
@@ -595,9 +644,12 @@ function pairSolver(
   const byComponent = combinations.includes('geomean')
   const byDirection = combinations.includes('rotd50') || combinations.includes('rotd100')
   const median = combinations.includes('rotd50')
-  return {
+  const intervals = pair.accel1MPerS2.length - 1
+  const solver = {
     peaks,
-    solve(indices, onProgress) {
+    stepsRun: 0,
+    solve(indices: readonly number[], onProgress?: (fraction: number) => void) {
+      for (const index of indices) solver.stepsRun += 2 * intervals * oscillators[index]!.subSteps
       solvePairOscillators(
         pair,
         indices.map((index) => oscillators[index]!),
@@ -608,7 +660,7 @@ function pairSolver(
         peaks[indices[slot]!] = solved
       })
     },
-    peakBound(index) {
+    peakBound(index: number) {
       const oscillator = oscillators[index]!
       const solved = peaks[index]!
       let bound = 0
@@ -627,6 +679,7 @@ function pairSolver(
       return bound
     },
   }
+  return solver
 }
 
 /** Each damping ratio's ordinates from its oscillators' peaks (damping-major, index = d·periods + p). */
@@ -692,9 +745,11 @@ export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSett
   settings.onProgress?.(0)
   let curves: SpectrumCurve[]
   let stillAbove: number
+  let oscillatorSteps: number
   if (isPairSubject(subject)) {
     const solver = pairSolver(subject, oscillators, method, kernel, combinations)
     stillAbove = refineSweep(oscillators, solver, settings.onProgress)
+    oscillatorSteps = solver.stepsRun
     curves = dampingRatios.flatMap((dampingRatio, d) =>
       combinations.map((combination) => ({
         ...curveOf(dampingRatio, periodsS, (p) =>
@@ -706,6 +761,7 @@ export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSett
   } else {
     const solver = recordSolver(subject, oscillators, method, kernel)
     stillAbove = refineSweep(oscillators, solver, settings.onProgress)
+    oscillatorSteps = solver.stepsRun
     const { peaks } = solver
     curves = dampingRatios.map((dampingRatio, d): RecordSpectrumCurve => {
       const from = d * periodsS.length
@@ -725,11 +781,9 @@ export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSett
 
   let subStepsMin = Infinity
   let subStepsMax = 0
-  let oscillatorSteps = 0
   for (const { subSteps } of oscillators) {
     subStepsMin = Math.min(subStepsMin, subSteps)
     subStepsMax = Math.max(subStepsMax, subSteps)
-    oscillatorSteps += components.length * (points - 1) * subSteps
   }
   const newmark = method === 'piecewise-exact' ? null : NEWMARK_PARAMETERS[method]
   const pair = isPairSubject(subject)
