@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { groundMotionShape } from './groundMotion.js'
 import { MAX_FILTER_ORDER, MIN_FILTER_ORDER } from '../spectra/processing/butterworthSos.js'
 import { MAX_BASELINE_ORDER } from '../spectra/processing/removeBaseline.js'
 
@@ -104,12 +105,7 @@ export const processedParametersSchema = z.object({
   points: z.number().int(),
   dtS: z.number(),
   durationS: z.number(),
-  pgaMPerS2: z.number(),
-  pgvMPerS: z.number(),
-  pgdM: z.number(),
-  ariasMPerS: z.number(),
-  d595S: z.number(),
-  cavMPerS: z.number(),
+  ...groundMotionShape(),
   /** Integrated velocity and displacement at the last sample. */
   finalVelMPerS: z.number(),
   finalDispM: z.number(),

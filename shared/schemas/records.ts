@@ -3,6 +3,7 @@ import { readDecimal } from '../forms/runSettingsText.js'
 import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
 import { SOURCE_UNITS } from '../spectra/units.js'
 import { idSchema } from './common.js'
+import { groundMotionShape } from './groundMotion.js'
 import { plotHistoriesSchema, recordProcessingSchema } from './processing.js'
 
 /** The upload limits of POST /api/records. */
@@ -46,12 +47,7 @@ export const recordSchema = z.object({
   durationS: z.number(),
   sourceUnits: sourceUnitsSchema,
   component: z.string().nullable(),
-  pgaMPerS2: z.number(),
-  pgvMPerS: z.number(),
-  pgdM: z.number(),
-  ariasMPerS: z.number(),
-  d595S: z.number(),
-  cavMPerS: z.number(),
+  ...groundMotionShape(),
   sha256: z.string(),
   uploadedBy: z.string(),
   createdAt: z.number(),

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { SOURCE_UNITS } from '../spectra/units.js'
 import { combinationSchema } from '../vocabulary/combinations.js'
+import { groundMotionShape } from './groundMotion.js'
 import { runMethodSchema, runSettingsSchema } from './runs.js'
 import { methodStatementSchema, spectrumWarningSchema } from './spectrumWorker.js'
 
@@ -20,12 +21,7 @@ export const spectrumRecordSchema = z.object({
   dtS: z.number().positive(),
   durationS: nonNegative,
   sourceUnits: sourceUnitsSchema,
-  pgaMPerS2: nonNegative,
-  pgvMPerS: nonNegative,
-  pgdM: nonNegative,
-  ariasMPerS: nonNegative,
-  d595S: nonNegative,
-  cavMPerS: nonNegative,
+  ...groundMotionShape(nonNegative),
 })
 export type SpectrumRecordSummary = z.infer<typeof spectrumRecordSchema>
 
