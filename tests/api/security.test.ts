@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { ACTIONS, rolesFor } from '../../shared/permissions.js'
 import type { Role } from '../../shared/schemas/accounts.js'
 import type { SmtpSink } from '../../server/mail/smtpSink.js'
-import { users } from '../../server/db/schema.js'
+import { apiTokens, memberships, users } from '../../server/db/schema.js'
 import { BCRYPT_COST, dummyPasswordHash } from '../../server/services/auth.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
 import { addMember, createWorldContext, type DemoWorld, type WorldContext } from '../support/demoWorld.js'
@@ -56,7 +56,11 @@ const pathOf = (r: RouteSpec, id?: string) =>
   })
 
 /** Sends the route's request: its valid body (or a one-line upload) so only the check under test can refuse it. */
-function send(agent: request.Agent, r: RouteSpec, path = pathOf(r)) {
+function send(
+  agent: Pick<request.Agent, 'get' | 'post' | 'patch' | 'delete'>,
+  r: RouteSpec,
+  path = pathOf(r),
+) {
   const method = r.method.toLowerCase() as 'get' | 'post' | 'patch' | 'delete'
   const req = agent[method](path)
   if (r.body === 'multipart') {
@@ -197,6 +201,124 @@ describe('cross-site requests', () => {
       const unmarked = await send(agent, r)
       expectErrorShape(unmarked, 403, 'forbidden')
       expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+})
+
+describe('API tokens (Authorization: Bearer)', () => {
+  const ROLES: Role[] = ['engineer', 'checker', 'admin']
+  /** What a script sends: no cookie and no CSRF header, only the token. */
+  const asScript = (r: RouteSpec, token: string, path?: string) =>
+    send(request(ctx.app), r, path).set('authorization', `Bearer ${token}`)
+  /** Every table but api_tokens, whose last-use time a token that authenticates updates by design. */
+  const snapshotBesideTokens = () => {
+    const { api_tokens: _lastUse, ...rest } = snapshotDb(ctx.db)
+    return rest
+  }
+  /** Tokens of a demo-firm member holding every role, each narrowed to one role. */
+  const onlyRole = {} as Record<Role, string>
+  /** A token with every role of the demo firm, and one of the second firm's. */
+  let everyRole: string
+  let foreignFirm: string
+  /** Tokens that no longer open anything: revoked, expired, and of a member since removed. */
+  const dead: Record<'revoked' | 'expired' | 'of a removed member', string> = {
+    revoked: '',
+    expired: '',
+    'of a removed member': '',
+  }
+
+  beforeAll(async () => {
+    const firmId = ctx.seed.firmIds[0]!
+    const everyRoleOf = async (email: string) => {
+      const userId = await addMember(ctx.db, firmId, email, ROLES, 'Sweep Member')
+      return { userId, agent: await ctx.signIn(email) }
+    }
+    const mint = async (agent: request.Agent, body: Record<string, unknown>) => {
+      const res = await agent.post('/api/me/tokens').send(body)
+      expect(res.status, JSON.stringify(res.body)).toBe(201)
+      return res.body as { id: string; token: string }
+    }
+    const { agent } = await everyRoleOf('sweep-all-roles@ordinate.test')
+    for (const role of ROLES)
+      onlyRole[role] = (await mint(agent, { name: `${role} only`, roles: [role] })).token
+    everyRole = (await mint(agent, { name: 'every role' })).token
+    foreignFirm = (await mint(outsider, { name: 'second firm' })).token
+
+    const revoked = await mint(agent, { name: 'revoked' })
+    expect((await agent.delete(`/api/me/tokens/${revoked.id}`)).status).toBe(204)
+    dead.revoked = revoked.token
+    const expired = await mint(agent, { name: 'expired', expiresAt: Date.now() + 60_000 })
+    ctx.db
+      .update(apiTokens)
+      .set({ expiresAt: Date.now() - 1000 })
+      .where(eq(apiTokens.id, expired.id))
+      .run()
+    dead.expired = expired.token
+    const leaver = await everyRoleOf('sweep-leaver@ordinate.test')
+    dead['of a removed member'] = (await mint(leaver.agent, { name: 'leaver' })).token
+    const { id: membershipId } = ctx.db
+      .select({ id: memberships.id })
+      .from(memberships)
+      .where(eq(memberships.userId, leaver.userId))
+      .get()!
+    expect((await demo.admin.delete(`/api/firm/members/${membershipId}`)).status).toBe(204)
+  })
+
+  for (const r of routeTable) {
+    if (r.access === 'public' || r.access === 'member') continue
+    const allowed = rolesFor(r.access)
+    for (const role of ROLES.filter((x) => !allowed.includes(x))) {
+      it(`${label(r)} refuses a token narrowed to the ${role} role with 403 naming the role needed`, async () => {
+        const before = snapshotBesideTokens()
+        const res = await asScript(r, onlyRole[role])
+        expectErrorShape(res, 403, 'forbidden')
+        for (const needed of allowed) expect(res.body.error.message).toContain(needed)
+        expect(snapshotBesideTokens()).toEqual(before)
+      })
+    }
+  }
+
+  for (const r of routeTable.filter((r) => r.access !== 'public')) {
+    it(`${label(r)} answers 401 to a revoked or expired token and to a removed member's, writing nothing`, async () => {
+      const before = snapshotDb(ctx.db)
+      for (const [which, token] of Object.entries(dead)) {
+        const res = await asScript(r, token)
+        expect(res.status, `${which} token`).toBe(401)
+        expectErrorShape(res, 401, 'unauthorized')
+      }
+      expect(snapshotDb(ctx.db)).toEqual(before)
+    })
+  }
+
+  for (const r of routeTable.filter((r) => r.id)) {
+    it(`${label(r)} answers 404 to another firm's token holding every role, from any Origin, writing nothing`, async () => {
+      const before = snapshotBesideTokens()
+      const res = await asScript(r, foreignFirm).set('origin', 'https://elsewhere.example')
+      expectErrorShape(res, 404, 'not_found')
+      expect(snapshotBesideTokens()).toEqual(before)
+    })
+  }
+
+  for (const r of routeTable.filter((r) => isStateChanging(r) && r.access !== 'public' && !r.id)) {
+    it(`${label(r)} takes a token's request from a foreign Origin with no CSRF header as far as its body check`, async () => {
+      const before = snapshotBesideTokens()
+      const method = r.method.toLowerCase() as 'post' | 'patch' | 'delete'
+      // An unknown field (or, for the upload, no file): refused at the body, after the cross-site check.
+      const res = await request(ctx.app)
+        [method](pathOf(r))
+        .set('authorization', `Bearer ${everyRole}`)
+        .set('origin', 'https://elsewhere.example')
+        .send(r.body === 'multipart' ? undefined : { ...r.validBody?.(world.ids), sweepUnknownField: true })
+      // Minting is refused to every token (tests/api/apiTokens.test.ts): a signed-in member mints.
+      const [status, code] =
+        r.path === '/me/tokens'
+          ? [403, 'forbidden']
+          : r.body === 'multipart'
+            ? [400, 'file_missing']
+            : [400, 'invalid_input']
+      expectErrorShape(res, status, code)
+      expect(res.body.error.message).not.toMatch(/Cross-site/)
+      expect(snapshotBesideTokens()).toEqual(before)
     })
   }
 })
