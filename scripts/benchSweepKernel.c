@@ -8,8 +8,19 @@
  * oscillator-step and max|u| of the first oscillator. Built with
  * -O3 -march=native -ffp-contract=off, so its arithmetic matches the kernels'.
  */
+#include <math.h>
 #include <stdio.h>
-#include <ststatic int precise(double u0, double v0, double f0, double f1, double invH, double eu, double ev, double ea,
+#include <stdlib.h>
+#include <time.h>
+
+static double now_ns(void) {
+  struct timespec t;
+  clock_gettime(CLOCK_MONOTONIC, &t);
+  return t.tv_sec * 1e9 + t.tv_nsec;
+}
+
+/* The exact test of one step, in the kernels' order (sweepKernel.ts preciseCandidate). */
+static int precise(double u0, double v0, double f0, double f1, double invH, double eu, double ev, double ea,
                    double mu, double mv, double ma, double om, double q, double sg, double iwd, double ik,
                    double ck, double kk) {
   const double s = (f1 - f0) * invH;
@@ -84,13 +95,6 @@ static int sweep(int n, int count, double invH, const double *rec, const double 
   return found;
 }
 
-o];
-    out[2 * count + o] = ma[o];
-    out[3 * count + o] = ku[o];
-    out[4 * count + o] = ka[o];
-  }
-  free(u); free(v); free(mu); free(mv); free(ma); free(ku); free(ka);
-}
 
 int main(int argc, char **argv) {
   if (argc != 2) return 2;
