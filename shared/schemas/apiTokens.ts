@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { listOf, nameInputSchema } from './common.js'
 import { roleSchema } from './accounts.js'
 
 /** Every API token starts with this, so a leaked one is easy to recognise and search for. */
@@ -9,11 +10,7 @@ export const API_TOKEN_PREFIX = 'ordt_'
  * `expiresAt` (milliseconds since the epoch, UTC) is optional and must lie in the future.
  */
 export const createApiTokenBodySchema = z.strictObject({
-  name: z
-    .string()
-    .trim()
-    .min(1, 'Give the token a name, for example "suite scripts".')
-    .max(100, 'Use at most 100 characters.'),
+  name: nameInputSchema('Give the token a name, for example "suite scripts".', 100),
   roles: z
     .array(roleSchema)
     .min(1, 'Give the token at least one role.')
@@ -44,7 +41,7 @@ export const createdApiTokenSchema = apiTokenSchema.extend({ token: z.string() }
 export type CreatedApiToken = z.infer<typeof createdApiTokenSchema>
 
 /** GET /api/me/tokens */
-export const apiTokenListSchema = z.object({ items: z.array(apiTokenSchema) })
+export const apiTokenListSchema = listOf(apiTokenSchema)
 export type ApiTokenList = z.infer<typeof apiTokenListSchema>
 
 /** A token in the admin's list of the firm's tokens, with its owner. */
@@ -54,5 +51,5 @@ export const firmApiTokenSchema = apiTokenSchema.extend({
 export type FirmApiToken = z.infer<typeof firmApiTokenSchema>
 
 /** GET /api/firm/tokens */
-export const firmApiTokenListSchema = z.object({ items: z.array(firmApiTokenSchema) })
+export const firmApiTokenListSchema = listOf(firmApiTokenSchema)
 export type FirmApiTokenList = z.infer<typeof firmApiTokenListSchema>

@@ -4,6 +4,13 @@ import { z } from 'zod'
 export const idSchema = z.uuid('Expected an id.')
 export const idParamsSchema = z.strictObject({ id: idSchema })
 
+/** Every list the API answers: `{ items: [...] }`. */
+export const listOf = <T extends z.ZodType>(item: T) => z.object({ items: z.array(item) })
+
+/** A name a person types for something they save: trimmed, not blank, at most `max` characters. */
+export const nameInputSchema = (blankMessage: string, max = 200) =>
+  z.string().trim().min(1, blankMessage).max(max, `Use at most ${max} characters.`)
+
 /** Something the API names beside its id: a member who made or checked work, a firm. */
 export const namedIdSchema = z.object({ id: z.string(), name: z.string() })
 

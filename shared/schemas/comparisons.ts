@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { combinationSchema } from '../vocabulary/combinations.js'
-import { idSchema, namedIdSchema } from './common.js'
+import { idSchema, listOf, namedIdSchema, nameInputSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 import { targetDefinitionSchema, targetInputSchema } from './targets.js'
 
@@ -36,11 +36,7 @@ export const comparisonTargetInputSchema = z.union([
 ])
 export type ComparisonTargetInput = z.input<typeof comparisonTargetInputSchema>
 
-const nameSchema = z
-  .string()
-  .trim()
-  .min(1, 'Give the comparison a name.')
-  .max(200, 'Use at most 200 characters.')
+const nameSchema = nameInputSchema('Give the comparison a name.')
 const runIdsSchema = z
   .array(idSchema)
   .min(1, 'Choose at least one run.')
@@ -123,7 +119,7 @@ export type ComparisonSummary = z.infer<typeof comparisonSummarySchema>
 
 /** GET /api/comparisons */
 export const comparisonListQuerySchema = z.strictObject({ projectId: idSchema.optional() })
-export const comparisonListSchema = z.object({ items: z.array(comparisonSummarySchema) })
+export const comparisonListSchema = listOf(comparisonSummarySchema)
 export type ComparisonList = z.infer<typeof comparisonListSchema>
 
 /** Ordinates in g; null where a curve or the target is not defined. */

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { namedIdSchema } from './common.js'
+import { listOf, namedIdSchema } from './common.js'
 import { creditPackIds } from '../credits/creditPacks.js'
 
 export const ledgerKindSchema = z.enum(['grant', 'purchase', 'run_reserved', 'run_returned'])
@@ -34,7 +34,7 @@ export const creditPackSchema = z.object({
 })
 export type CreditPackInfo = z.infer<typeof creditPackSchema>
 
-export const creditPackListSchema = z.object({ items: z.array(creditPackSchema) })
+export const creditPackListSchema = listOf(creditPackSchema)
 export type CreditPackList = z.infer<typeof creditPackListSchema>
 
 /**
@@ -79,7 +79,7 @@ export const purchaseResultSchema = z.object({ balance: z.number().int(), purcha
 export type PurchaseResult = z.infer<typeof purchaseResultSchema>
 
 /** GET /api/credits/purchases */
-export const purchaseListSchema = z.object({ items: z.array(purchaseSchema) })
+export const purchaseListSchema = listOf(purchaseSchema)
 export type PurchaseList = z.infer<typeof purchaseListSchema>
 
 /** A test token the card form offers when the payment server is in test mode. */

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { listOf } from './common.js'
 
 /** A message caught by the development SMTP sink (GET /api/dev/mailbox). */
 export const sinkMessageSchema = z.object({
@@ -13,5 +14,5 @@ export const sinkMessageSchema = z.object({
 })
 export type SinkMessage = z.infer<typeof sinkMessageSchema>
 
-export const sinkMessageListSchema = z.object({ items: z.array(sinkMessageSchema) })
+export const sinkMessageListSchema = listOf(sinkMessageSchema)
 export type SinkMessageList = z.infer<typeof sinkMessageListSchema>

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { listOf, nameInputSchema } from './common.js'
 import { passwordSchema, roleSchema } from './accounts.js'
 import { rolesSchema } from './members.js'
 import { emailSchema } from './tokens.js'
@@ -18,7 +19,7 @@ export const invitationSchema = z.object({
 })
 export type Invitation = z.infer<typeof invitationSchema>
 
-export const invitationListSchema = z.object({ items: z.array(invitationSchema) })
+export const invitationListSchema = listOf(invitationSchema)
 export type InvitationList = z.infer<typeof invitationListSchema>
 
 /** GET /api/invitations/:token: what the invitee sees before accepting. */
@@ -33,7 +34,7 @@ export type InvitationPreview = z.infer<typeof invitationPreviewSchema>
 
 /** POST /api/invitations/:token/accept */
 export const acceptInvitationBodySchema = z.strictObject({
-  name: z.string().trim().min(1, 'Enter your name.').max(120, 'Use at most 120 characters.'),
+  name: nameInputSchema('Enter your name.', 120),
   password: passwordSchema,
 })
 export type AcceptInvitationBody = z.input<typeof acceptInvitationBodySchema>

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { listOf } from './common.js'
 import { roleSchema, type Role } from './accounts.js'
 
 const ROLE_ORDER = roleSchema.options
@@ -21,7 +22,7 @@ export const memberSchema = z.object({
 })
 export type FirmMember = z.infer<typeof memberSchema>
 
-export const memberListSchema = z.object({ items: z.array(memberSchema) })
+export const memberListSchema = listOf(memberSchema)
 export type MemberList = z.infer<typeof memberListSchema>
 
 /** PATCH /api/firm/members/:id */

@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { nameInputSchema } from './common.js'
 import { groundMotionShape } from './groundMotion.js'
 import { MAX_FILTER_ORDER, MIN_FILTER_ORDER } from '../spectra/processing/butterworthSos.js'
 import { MAX_BASELINE_ORDER } from '../spectra/processing/removeBaseline.js'
@@ -45,7 +46,7 @@ export type ProcessingSettingsBody = z.infer<typeof processingSettingsSchema>
 /** POST /api/records/:id/processed: the settings and, optionally, the new record's name. */
 export const createProcessedRecordSchema = processingSettingsSchema
   .extend({
-    name: z.string().trim().min(1, 'Enter a name.').max(200, 'Use at most 200 characters.').optional(),
+    name: nameInputSchema('Enter a name.').optional(),
   })
   .refine((body) => Boolean(body.baseline || body.taperS || body.highPass || body.lowPass), {
     message: 'Choose at least one processing step: a baseline, a taper, a high-pass or a low-pass filter.',

@@ -1,8 +1,9 @@
 import { z } from 'zod'
+import { listOf, nameInputSchema } from './common.js'
 
 /** POST /api/projects */
 export const createProjectBodySchema = z.strictObject({
-  name: z.string().trim().min(1, 'Give the project a name.').max(200, 'Use at most 200 characters.'),
+  name: nameInputSchema('Give the project a name.'),
   description: z.string().trim().max(2000, 'Use at most 2000 characters.').default(''),
 })
 export type CreateProjectBody = z.infer<typeof createProjectBodySchema>
@@ -30,5 +31,5 @@ export const projectSchema = z.object({
 export type Project = z.infer<typeof projectSchema>
 
 /** GET /api/projects */
-export const projectListSchema = z.object({ items: z.array(projectSchema) })
+export const projectListSchema = listOf(projectSchema)
 export type ProjectList = z.infer<typeof projectListSchema>

@@ -1,15 +1,10 @@
 import { z } from 'zod'
-import { idSchema } from './common.js'
+import { idSchema, listOf, nameInputSchema } from './common.js'
 
 /** POST /api/record-pairs */
 export const createRecordPairBodySchema = z.strictObject({
   recordIds: z.tuple([idSchema, idSchema], { error: 'Give the ids of exactly two records.' }),
-  name: z
-    .string()
-    .trim()
-    .min(1, 'The name cannot be blank.')
-    .max(200, 'Use at most 200 characters.')
-    .optional(),
+  name: nameInputSchema('The name cannot be blank.').optional(),
 })
 export type CreateRecordPairBody = z.infer<typeof createRecordPairBodySchema>
 
@@ -29,5 +24,5 @@ export const recordPairDetailSchema = recordPairSchema.extend({
 export type RecordPairDetail = z.infer<typeof recordPairDetailSchema>
 
 /** GET /api/record-pairs */
-export const recordPairListSchema = z.object({ items: z.array(recordPairDetailSchema) })
+export const recordPairListSchema = listOf(recordPairDetailSchema)
 export type RecordPairList = z.infer<typeof recordPairListSchema>

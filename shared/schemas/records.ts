@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { readDecimal } from '../forms/runSettingsText.js'
 import { MAX_RECORD_POINTS } from '../spectra/parseRecord.js'
 import { SOURCE_UNITS } from '../spectra/units.js'
-import { idSchema } from './common.js'
+import { idSchema, listOf, nameInputSchema } from './common.js'
 import { groundMotionShape } from './groundMotion.js'
 import { plotHistoriesSchema, recordProcessingSchema } from './processing.js'
 
@@ -73,14 +73,14 @@ export type RecordDetail = z.infer<typeof recordDetailSchema>
 
 /** PATCH /api/records/:id: rename a record (its samples and file never change). */
 export const updateRecordBodySchema = z.strictObject({
-  name: z.string().trim().min(1, 'The name cannot be blank.').max(200, 'Use at most 200 characters.'),
+  name: nameInputSchema('The name cannot be blank.'),
 })
 export type UpdateRecordBody = z.infer<typeof updateRecordBodySchema>
 
 export const recordListQuerySchema = z.strictObject({ projectId: idSchema.optional() })
 
 /** GET /api/records */
-export const recordListSchema = z.object({ items: z.array(recordDetailSchema) })
+export const recordListSchema = listOf(recordDetailSchema)
 export type RecordList = z.infer<typeof recordListSchema>
 
 export const DEFAULT_PLOT_POINTS = 4000

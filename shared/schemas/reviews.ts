@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { REVIEW_DECISIONS, STORED_REVIEW_STATES } from '../vocabulary/reviewStates.js'
-import { idSchema, namedIdSchema } from './common.js'
+import { idSchema, listOf, namedIdSchema } from './common.js'
 
 export { reviewStateSchema, type ReviewState } from '../vocabulary/reviewStates.js'
 
@@ -83,5 +83,5 @@ export type Review = z.infer<typeof reviewSchema>
 export const reviewDetailSchema = reviewSchema.extend({ comments: z.array(reviewCommentSchema) })
 export type ReviewDetail = z.infer<typeof reviewDetailSchema>
 
-export const reviewListSchema = z.object({ items: z.array(reviewSchema) })
+export const reviewListSchema = listOf(reviewSchema)
 export type ReviewList = z.infer<typeof reviewListSchema>

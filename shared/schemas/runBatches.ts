@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { COMBINATIONS } from '../vocabulary/combinations.js'
-import { idSchema, namedIdSchema } from './common.js'
+import { idSchema, listOf, namedIdSchema } from './common.js'
 import {
   runCombinationSchema,
   runProgressEventSchema,
@@ -120,7 +120,7 @@ export type RunBatch = z.infer<typeof runBatchSchema>
 /** GET /api/run-batches */
 export const runBatchListQuerySchema = z.strictObject({ projectId: idSchema.optional() })
 export type RunBatchListQuery = z.infer<typeof runBatchListQuerySchema>
-export const runBatchListSchema = z.object({ items: z.array(runBatchSummarySchema) })
+export const runBatchListSchema = listOf(runBatchSummarySchema)
 export type RunBatchList = z.infer<typeof runBatchListSchema>
 
 /**

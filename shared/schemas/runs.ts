@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { type Combination, combinationSchema } from '../vocabulary/combinations.js'
 import { runStatusSchema } from '../vocabulary/runStatuses.js'
-import { idSchema, namedIdSchema } from './common.js'
+import { idSchema, listOf, namedIdSchema } from './common.js'
 import { reviewStateSchema } from './reviews.js'
 
 /** Limits of a run's settings (runs issue): what one credit buys. */
@@ -212,7 +212,7 @@ export const runListQuerySchema = z.strictObject({
 })
 export type RunListQuery = z.infer<typeof runListQuerySchema>
 
-export const runListSchema = z.object({ items: z.array(runSchema) })
+export const runListSchema = listOf(runSchema)
 export type RunList = z.infer<typeof runListSchema>
 
 /** The events of GET /api/runs/:id/events (server-sent events, `event:` names these types). */

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { idSchema, namedIdSchema } from './common.js'
+import { idSchema, listOf, namedIdSchema, nameInputSchema } from './common.js'
 
 /** At most this many periods in a preview or a user target. */
 export const MAX_TARGET_POINTS = 5000
@@ -129,7 +129,7 @@ export type TargetPreview = z.infer<typeof targetPreviewSchema>
 
 /** POST /api/targets */
 export const createTargetBodySchema = z.strictObject({
-  name: z.string().trim().min(1, 'Give the target a name.').max(200, 'Use at most 200 characters.'),
+  name: nameInputSchema('Give the target a name.'),
   projectId: idSchema.optional(),
   definition: targetInputSchema,
 })
@@ -149,5 +149,5 @@ export type Target = z.infer<typeof targetSchema>
 
 /** GET /api/targets */
 export const targetListQuerySchema = z.strictObject({ projectId: idSchema.optional() })
-export const targetListSchema = z.object({ items: z.array(targetSchema) })
+export const targetListSchema = listOf(targetSchema)
 export type TargetList = z.infer<typeof targetListSchema>
