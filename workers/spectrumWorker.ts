@@ -4,7 +4,7 @@
  * runs; the queue ends it when it has been idle. No logic of its own.
  */
 import { parentPort } from 'node:worker_threads'
-import { workerRequestSchema, type WorkerReply } from '../shared/schemas/spectrumWorker.js'
+import { curveBuffers, workerRequestSchema, type WorkerReply } from '../shared/schemas/spectrumWorker.js'
 import { computeSpectrum } from '../shared/spectra/computeSpectrum.js'
 
 /** Progress is posted in 1/PROGRESS_STEPS steps (5%), so a run sends at most 19 updates. */
@@ -48,19 +48,7 @@ port.on('message', (message: unknown) => {
         : { accelMPerS2: new Float64Array(job.samples), dtS: job.dtS }
     const computation = computeSpectrum(subject, { ...settings, onProgress })
     const buffers = new Set<ArrayBuffer>([computation.periodsS.buffer as ArrayBuffer])
-    for (const curve of computation.curves) {
-      for (const series of [
-        curve.sdM,
-        curve.svMPerS,
-        curve.saMPerS2,
-        curve.psvMPerS,
-        curve.psaMPerS2,
-        curve.sdTimeS,
-        curve.saTimeS,
-      ]) {
-        if (series) buffers.add(series.buffer as ArrayBuffer)
-      }
-    }
+    for (const curve of computation.curves) for (const buffer of curveBuffers(curve)) buffers.add(buffer)
     post({ type: 'result', runId, computation, computeMs: performance.now() - startedAt }, [...buffers])
   } catch (err) {
     post({ type: 'error', runId, message: err instanceof Error ? err.message : String(err) })

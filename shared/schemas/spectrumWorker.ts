@@ -59,6 +59,15 @@ export const workerCurveSchema = z.object({
   sdTimeS: float64ArraySchema.optional(),
   saTimeS: float64ArraySchema.optional(),
 })
+export type WorkerCurve = z.infer<typeof workerCurveSchema>
+
+/** The buffers of a curve's series (and its peak times, where it has them), to transfer, not copy. */
+export function curveBuffers(curve: WorkerCurve): ArrayBuffer[] {
+  const { sdM, svMPerS, saMPerS2, psvMPerS, psaMPerS2, sdTimeS, saTimeS } = curve
+  return [sdM, svMPerS, saMPerS2, psvMPerS, psaMPerS2, sdTimeS, saTimeS].flatMap((series) =>
+    series ? [series.buffer as ArrayBuffer] : [],
+  )
+}
 
 /** The engine's MethodStatement: what produced the numbers. */
 export const methodStatementSchema = z.object({

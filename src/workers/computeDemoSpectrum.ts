@@ -12,6 +12,7 @@ import {
   recordParameters,
   recordWarnings,
 } from '../../shared/spectra/recordParameters.js'
+import { curveBuffers } from '../../shared/schemas/spectrumWorker.js'
 import { warningMessages } from '../../shared/warningMessages.js'
 
 export interface DemoSpectrumResult {
@@ -71,18 +72,6 @@ export function computeDemoSpectrum(dampingRatio: number): DemoSpectrumResult {
 
 /** The buffers to transfer (not copy) back from the worker. */
 export function transferablesOf(result: DemoSpectrumResult): ArrayBuffer[] {
-  const { curve } = result
-  return [
-    result.accelMPerS2,
-    result.velMPerS,
-    result.dispM,
-    result.periodsS,
-    curve.sdM,
-    curve.svMPerS,
-    curve.saMPerS2,
-    curve.psvMPerS,
-    curve.psaMPerS2,
-    curve.sdTimeS,
-    curve.saTimeS,
-  ].map((a) => a.buffer as ArrayBuffer)
+  const series = [result.accelMPerS2, result.velMPerS, result.dispM, result.periodsS]
+  return [...series.map((a) => a.buffer as ArrayBuffer), ...curveBuffers(result.curve)]
 }
