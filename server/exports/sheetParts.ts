@@ -40,10 +40,7 @@ export function sheetDate(ms: number): string {
   return new Date(ms).toISOString().slice(0, 10)
 }
 
-/** "ORD-R-3F2A9C1B": the kind of sheet and the first eight hex digits of the subject's id. */
-export function sheetReference(kind: Sheet['kind'], id: string): string {
-  return `ORD-${kind === 'run' ? 'R' : 'C'}-${id.replace(/-/g, '').slice(0, 8).toUpperCase()}`
-}
+export { sheetReference } from '../../shared/sheets/sheetReference.js'
 
 /** A review as stored, with names resolved. `null` when the work was never submitted. */
 export interface ReviewFacts {

@@ -23,6 +23,7 @@ import {
   scaleSuite,
   suiteStatistics,
 } from '../../shared/spectra/suite.js'
+import { sheetReference } from '../../shared/sheets/sheetReference.js'
 import { evaluateTarget } from '../../shared/spectra/targets.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import {
@@ -228,7 +229,9 @@ function statsView(stats: ReturnType<typeof suiteStatistics>): SuiteStatisticsVi
 function disambiguate(labels: string[], runIds: string[]): string[] {
   const counts = new Map<string, number>()
   for (const l of labels) counts.set(l, (counts.get(l) ?? 0) + 1)
-  return labels.map((l, i) => ((counts.get(l) ?? 0) > 1 ? `${l} (run ${runIds[i]?.slice(0, 8)})` : l))
+  return labels.map((l, i) =>
+    (counts.get(l) ?? 0) > 1 ? `${l} (${sheetReference('run', runIds[i] ?? '')})` : l,
+  )
 }
 
 /** Rethrows a numeric RangeError (an impossible range, a target undefined there) as a 400. */

@@ -1,6 +1,7 @@
 import { type Ref, computed, reactive, ref, watch } from 'vue'
 import { RUN_METHOD_NAMES } from '../../shared/charts/runSpectrumChartInput'
 import { dampingLabel } from '../../shared/charts/spectrumChart'
+import { sheetReference } from '../../shared/sheets/sheetReference'
 import type { ScalingRule } from '../../shared/spectra/suite'
 import { COMBINATIONS, COMBINATION_LABELS } from '../../shared/vocabulary/combinations'
 import * as comparisonsApi from '@/api/comparisons'
@@ -97,6 +98,8 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
             : []),
           `${r.createdBy.name}, ${formatDateTime(r.createdAt)}`,
           ...(r.revision > 1 ? [`rev ${r.revision}`] : []),
+          // The tag the comparison's legend gives two runs of one record, as their sheets print it.
+          sheetReference('run', r.id),
         ].join(' · '),
       })),
   )
