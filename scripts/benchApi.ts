@@ -20,6 +20,7 @@ import { pathToFileURL } from 'node:url'
 import { Worker } from 'node:worker_threads'
 import { repoRoot } from '../tests/e2e/harness.js'
 import { startBenchServer } from '../tests/support/benchServer.js'
+import { finalRunStatus } from '../tests/support/serverEvents.js'
 
 const RUNS_LATENCY = Number(process.env.BENCH_RUNS ?? 21)
 const WARM_UP = 2
@@ -63,22 +64,7 @@ async function postRun(s: Session, method: Method = 'newmark-average'): Promise<
 }
 
 /** Reads the run's event stream until its final status. */
-async function untilFinished(s: Session, runId: string): Promise<string> {
-  const res = await fetch(`${s.base}/api/runs/${runId}/events`, { headers: { cookie: s.cookie } })
-  const reader = res.body!.getReader()
-  const decoder = new TextDecoder()
-  let text = ''
-  for (;;) {
-    const { value, done } = await reader.read()
-    if (value) text += decoder.decode(value, { stream: true })
-    const final = /"status":"(succeeded|failed)"/.exec(text)
-    if (final?.[1]) {
-      await reader.cancel()
-      return final[1]
-    }
-    if (done) throw new Error(`the event stream of run ${runId} ended without a final status`)
-  }
-}
+const untilFinished = (s: Session, runId: string) => finalRunStatus(s.base, runId, s.cookie)
 
 async function withServer<T>(workerThreads: number | undefined, fn: (s: Session) => Promise<T>): Promise<T> {
   const bench = await startBenchServer(

@@ -16,6 +16,7 @@ import Database from 'better-sqlite3'
 import { hashPassword } from '../server/services/auth.js'
 import { newId } from '../server/ids.js'
 import { startBenchServer } from '../tests/support/benchServer.js'
+import { finalRunStatus } from '../tests/support/serverEvents.js'
 
 const MEMBERS = Number(process.env.LOAD_MEMBERS ?? 20)
 const DURATION_S = Number(process.env.LOAD_DURATION_S ?? 60)
@@ -68,22 +69,8 @@ class Member {
   }
 
   /** Waits on the run's event stream for its final status. */
-  async finalStatus(runId: string): Promise<string> {
-    const res = await fetch(`${this.base}/api/runs/${runId}/events`, { headers: { cookie: this.cookie } })
-    if (res.status !== 200 || !res.body) throw new Failure(`events of run ${runId} answered ${res.status}`)
-    const reader = res.body.getReader()
-    const decoder = new TextDecoder()
-    let text = ''
-    for (;;) {
-      const { value, done } = await reader.read()
-      if (value) text += decoder.decode(value, { stream: true })
-      const final = /"status":"(succeeded|failed)"/.exec(text)
-      if (final?.[1]) {
-        await reader.cancel()
-        return final[1]
-      }
-      if (done) throw new Failure(`the event stream of run ${runId} ended without a final status`)
-    }
+  finalStatus(runId: string): Promise<string> {
+    return finalRunStatus(this.base, runId, this.cookie)
   }
 }
 

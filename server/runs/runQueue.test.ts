@@ -12,12 +12,14 @@ import { encodeSamples } from '../services/sampleBlob.js'
 import { runRequestSchema } from '../../shared/schemas/runs.js'
 import {
   insertRecord,
+  runFinished,
   setCredits,
+  SMALL_JOB,
   syntheticMotion,
   type InsertedRecord,
 } from '../../tests/support/runFixtures.js'
 import { createTestContext, type TestContext } from '../../tests/support/testApp.js'
-import { RunQueue, type RunEvent } from './runQueue.js'
+import { RunQueue } from './runQueue.js'
 
 let ctx: TestContext
 let queue: RunQueue
@@ -28,11 +30,6 @@ let projectId: string
 
 /** Tests that compute several long jobs one after another allow for a machine shared with other work. */
 const LONG_JOB_TIMEOUT_MS = 180_000
-
-/** A small job: 12 periods, 2 damping ratios. */
-const SMALL = { dampingRatios: [0.05, 0.1], periodsS: [0.05, 0.1, 0.2, 0.3, 0.5, 0.7, 1, 1.5, 2, 3, 4, 5] }
-
-const isEnd = (status: string) => status === 'succeeded' || status === 'failed'
 
 /** The demo member of a test context, as the auth middleware hands it to a service. */
 function memberOf(context: TestContext, email: string): Member {
@@ -54,31 +51,6 @@ async function post(body: Record<string, unknown>) {
   const run = createRun(ctx.db, engineer, runRequestSchema.parse(body))
   queue.kick()
   return Promise.resolve({ body: run })
-}
-
-/** Resolves with the run's final status, whether it ends before or after the call. */
-function finished(
-  q: RunQueue,
-  db: TestContext['db'],
-  runId: string,
-): Promise<{ status: string; error: string | null }> {
-  return new Promise((resolve) => {
-    const off = q.subscribe(runId, (event: RunEvent) => {
-      if (event.type === 'status' && isEnd(event.status)) {
-        off()
-        resolve(event)
-      }
-    })
-    const row = db
-      .select({ status: runs.status, error: runs.error })
-      .from(runs)
-      .where(eq(runs.id, runId))
-      .get()
-    if (row && isEnd(row.status)) {
-      off()
-      resolve(row)
-    }
-  })
 }
 
 /** Resolves at the run's first progress event. */
@@ -174,7 +146,7 @@ describe('RunQueue', () => {
   /** Posts a run the engine refuses: it fails once, with the engine's message, and its credit comes back. */
   async function expectEngineRefusal(body: Record<string, unknown>) {
     const res = await post(body)
-    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({
+    expect(await runFinished(queue, ctx.db, res.body.id)).toMatchObject({
       status: 'failed',
       error: 'The computation failed: the record holds a value that is not a finite number',
     })
@@ -183,10 +155,10 @@ describe('RunQueue', () => {
 
   it("fails a run the engine refuses, with the engine's message, and returns its credit", async () => {
     const broken = insertBrokenRecord({ points: 300 }, 10)
-    await expectEngineRefusal({ recordId: broken.id, ...SMALL })
+    await expectEngineRefusal({ recordId: broken.id, ...SMALL_JOB })
     // The thread that reported the error is still there for the next run.
     expect(
-      await finished(queue, ctx.db, (await post({ recordId: record.id, ...SMALL })).body.id),
+      await runFinished(queue, ctx.db, (await post({ recordId: record.id, ...SMALL_JOB })).body.id),
     ).toMatchObject({ status: 'succeeded' })
   })
 
@@ -194,23 +166,23 @@ describe('RunQueue', () => {
     const before = creditBalance(ctx.db, firmId)
     const victim = await post({ recordId: longRecord.id, ...LONG })
     await firstProgress(queue, victim.body.id)
-    const other = await post({ recordId: record.id, ...SMALL })
+    const other = await post({ recordId: record.id, ...SMALL_JOB })
     await queue.workerFor(victim.body.id)!.terminate()
-    expect(await finished(queue, ctx.db, victim.body.id)).toMatchObject({
+    expect(await runFinished(queue, ctx.db, victim.body.id)).toMatchObject({
       status: 'failed',
       error: expect.stringMatching(/stopped unexpectedly/),
     })
     const failed = getRun(ctx.db, firmId, victim.body.id)
     expect(failed).toMatchObject({ status: 'failed', creditsCharged: 0 })
     expect(ledgerRows(ctx.db, victim.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
-    expect(await finished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(await runFinished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
     expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
   })
 
   it('hands consecutive runs to the same live thread instead of starting one per run', async () => {
     await withOwnQueue({ workerCount: 1 }, async (single) => {
       const ids: string[] = []
-      for (let i = 0; i < 3; i++) ids.push((await post({ recordId: record.id, ...SMALL })).body.id)
+      for (let i = 0; i < 3; i++) ids.push((await post({ recordId: record.id, ...SMALL_JOB })).body.id)
       const threadIds: number[] = []
       for (const id of ids) {
         single.subscribe(id, (event) => {
@@ -219,7 +191,8 @@ describe('RunQueue', () => {
         })
       }
       single.start()
-      for (const id of ids) expect(await finished(single, ctx.db, id)).toMatchObject({ status: 'succeeded' })
+      for (const id of ids)
+        expect(await runFinished(single, ctx.db, id)).toMatchObject({ status: 'succeeded' })
       expect(threadIds).toHaveLength(3)
       expect(new Set(threadIds).size).toBe(1)
       expect(single.threads).toBe(1)
@@ -228,9 +201,9 @@ describe('RunQueue', () => {
 
   it('lets an idle thread exit after the idle period', async () => {
     await withOwnQueue({ workerCount: 1, idleMs: 100 }, async (brief) => {
-      const res = await post({ recordId: record.id, ...SMALL })
+      const res = await post({ recordId: record.id, ...SMALL_JOB })
       brief.start()
-      expect(await finished(brief, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+      expect(await runFinished(brief, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
       expect(brief.threads).toBe(1)
       await vi.waitFor(() => expect(brief.threads).toBe(0), { timeout: 5000 })
     })
@@ -241,7 +214,7 @@ describe('RunQueue', () => {
     await withOwnQueue({ workerCount, runTimeLimitS: 0.05 }, async (strict) => {
       const res = await post({ recordId: longRecord.id, ...job })
       strict.start()
-      expect(await finished(strict, ctx.db, res.body.id)).toMatchObject({
+      expect(await runFinished(strict, ctx.db, res.body.id)).toMatchObject({
         status: 'failed',
         error: expect.stringMatching(/longer than the limit of 0\.05 s/),
       })
@@ -276,15 +249,15 @@ describe('RunQueue', () => {
       const [killed, sibling] = queue.workersFor(victim.body.id)
       const siblingExit = new Promise((resolve) => sibling!.once('exit', resolve))
       await killed!.terminate()
-      expect(await finished(queue, ctx.db, victim.body.id)).toMatchObject({
+      expect(await runFinished(queue, ctx.db, victim.body.id)).toMatchObject({
         status: 'failed',
         error: expect.stringMatching(/stopped unexpectedly/),
       })
       await siblingExit
       expect(queue.workersFor(victim.body.id)).toEqual([])
       expect(ledgerRows(ctx.db, victim.body.id).map((r) => r.kind)).toEqual(['run_reserved', 'run_returned'])
-      const other = await post({ recordId: record.id, ...SMALL })
-      expect(await finished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
+      const other = await post({ recordId: record.id, ...SMALL_JOB })
+      expect(await runFinished(queue, ctx.db, other.body.id)).toMatchObject({ status: 'succeeded' })
       expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
     })
 
@@ -306,7 +279,7 @@ describe('RunQueue', () => {
           const seen = watchThreads(pool, ids)
           pool.start()
           for (const id of ids)
-            expect(await finished(pool, ctx.db, id)).toMatchObject({ status: 'succeeded' })
+            expect(await runFinished(pool, ctx.db, id)).toMatchObject({ status: 'succeeded' })
           // The first two were claimed with another waiting; the last had both threads free but
           // only one idle when it was claimed.
           expect(ids.map((id) => seen.get(id)!.size)).toEqual([1, 1, 1])
@@ -315,7 +288,7 @@ describe('RunQueue', () => {
           const res = await post({ recordId: longRecord.id, ...SPLIT })
           const seen = watchThreads(single, [res.body.id])
           single.start()
-          expect(await finished(single, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+          expect(await runFinished(single, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
           expect(seen.get(res.body.id)!.size).toBe(1)
           expect(single.threads).toBe(1)
         })
@@ -342,7 +315,7 @@ describe('RunQueue', () => {
         .get()
       expect(row).toEqual({ status: 'queued', attempts: 0 })
       restartSharedQueue()
-      expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+      expect(await runFinished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
       expect(ledgerRows(ctx.db, res.body.id).map((r) => r.kind)).toEqual(['run_reserved'])
       expect(ctx.db.select({ n: count() }).from(spectra).where(eq(spectra.runId, res.body.id)).get()!.n).toBe(
         1,
@@ -372,7 +345,9 @@ describe('RunQueue after a restart with queued and running runs', () => {
       const engineer = memberOf(other, 'engineer@ordinate.test')
       const ids: string[] = []
       for (let i = 0; i < 6; i++)
-        ids.push(createRun(other.db, engineer, runRequestSchema.parse({ recordId: theirs.id, ...SMALL })).id)
+        ids.push(
+          createRun(other.db, engineer, runRequestSchema.parse({ recordId: theirs.id, ...SMALL_JOB })).id,
+        )
       // As a crash leaves them: three were running (one of them already started three times).
       other.db
         .update(runs)
@@ -393,7 +368,7 @@ describe('RunQueue after a restart with queued and running runs', () => {
 
       restarted = new RunQueue({ db: other.db, workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
       restarted.start()
-      const outcomes = await Promise.all(ids.map((id) => finished(restarted!, other.db, id)))
+      const outcomes = await Promise.all(ids.map((id) => runFinished(restarted!, other.db, id)))
       expect(outcomes.map((o) => o.status)).toEqual([
         'succeeded',
         'succeeded',

@@ -4,7 +4,7 @@ import request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { apiTokens, memberships } from '../../server/db/schema.js'
 import { addMember } from '../support/demoWorld.js'
-import { insertRecord } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -18,11 +18,7 @@ beforeAll(async () => {
   engineer = await ctx.signIn('engineer@ordinate.test')
   admin = await ctx.signIn('admin@ordinate.test')
   outsider = await ctx.signIn('outsider@ordinate.test')
-  recordId = insertRecord(ctx.db, {
-    firmId: ctx.seed.firmIds[0]!,
-    projectId: ctx.seed.projectIds[0]!,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
-  }).id
+  recordId = insertRecord(ctx.db, engineerUpload(ctx.seed)).id
 })
 afterAll(() => ctx.close())
 

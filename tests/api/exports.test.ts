@@ -14,8 +14,15 @@ import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { sheetSchema } from '../../shared/schemas/sheets.js'
 import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
-import { insertRecord, setCredits, syntheticMotion } from '../support/runFixtures.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
+import { binary } from '../support/exportFiles.js'
+import {
+  engineerUpload,
+  insertRecord,
+  runFinished,
+  setCredits,
+  syntheticMotion,
+} from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 /** A record name a browser would render as markup if it were ever interpreted. */
@@ -33,31 +40,11 @@ let secondRunId: string
 let recordSha256: string
 let scratch: string
 
-function finished(id: string): Promise<RunEvent> {
-  return new Promise((resolve) => {
-    const off = queue.subscribe(id, (event) => {
-      if (event.type === 'status' && (event.status === 'succeeded' || event.status === 'failed')) {
-        off()
-        resolve(event)
-      }
-    })
-  })
-}
-
 async function startRun(agent: request.Agent, recordId: string): Promise<string> {
   const res = await agent.post('/api/runs').send({ recordId, ...SETTINGS })
   expect(res.status).toBe(202)
-  await expect(finished(res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
+  await expect(runFinished(queue, ctx.db, res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
   return res.body.id as string
-}
-
-/** supertest buffers only text by default; exports are binary. */
-function binary(req: request.Test): request.Test {
-  return req.buffer(true).parse((res, done) => {
-    const chunks: Buffer[] = []
-    res.on('data', (c: Buffer) => chunks.push(c))
-    res.on('end', () => done(null, Buffer.concat(chunks)))
-  })
 }
 
 /** The PDF's text as poppler's pdftotext reads it (layout kept, so table rows stay rows). */
@@ -81,11 +68,7 @@ beforeAll(async () => {
   })
   queue.start()
   const firmId = ctx.seed.firmIds[0] as string
-  const owner = {
-    firmId,
-    projectId: ctx.seed.projectIds[0] as string,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
-  }
+  const owner = engineerUpload(ctx.seed)
   const record = insertRecord(ctx.db, owner, { name: HTML_NAME, points: 1200, dtS: 0.01 })
   const second = insertRecord(ctx.db, owner, { name: 'Synthetic motion, second', points: 900, dtS: 0.01 })
   recordSha256 = record.sha256
@@ -450,12 +433,7 @@ describe('a two-component run', () => {
   let hashes: string[]
 
   beforeAll(async () => {
-    const firmId = ctx.seed.firmIds[0] as string
-    const owner = {
-      firmId,
-      projectId: ctx.seed.projectIds[0] as string,
-      uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
-    }
+    const owner = engineerUpload(ctx.seed)
     const motion = syntheticMotion(800, 0.01)
     const h1 = insertRecord(ctx.db, owner, { name: 'Synthetic H1', samples: motion, dtS: 0.01 })
     const h2 = insertRecord(ctx.db, owner, {
@@ -483,7 +461,7 @@ describe('a two-component run', () => {
       combinations: ['rotd50', 'rotd100'],
     })
     expect(res.status).toBe(202)
-    await expect(finished(res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
+    await expect(runFinished(queue, ctx.db, res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
     pairRunId = res.body.id
   })
 

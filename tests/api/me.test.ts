@@ -2,7 +2,7 @@ import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { auditLog } from '../../server/db/schema.js'
 import { RunQueue } from '../../server/runs/runQueue.js'
-import { insertRecord } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -81,11 +81,7 @@ describe('files in the member’s units', () => {
     const queue = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 1000 })
     ctx.deps.runQueue = queue
     queue.start()
-    const record = insertRecord(ctx.db, {
-      firmId: ctx.seed.firmIds[0]!,
-      projectId: ctx.seed.projectIds[0]!,
-      uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
-    })
+    const record = insertRecord(ctx.db, engineerUpload(ctx.seed))
     const agent = await ctx.signIn('engineer@ordinate.test')
     const res = await agent.post('/api/runs').send({ recordId: record.id, periodsS: [0.1, 0.5, 1, 2] })
     expect(res.status).toBe(202)

@@ -3,10 +3,16 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { recordPairs, records, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
 import { creditBalance } from '../../server/services/credits.js'
 import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
-import { insertRecord, setCredits, syntheticMotion } from '../support/runFixtures.js'
+import {
+  engineerUpload,
+  insertRecord,
+  runFinished,
+  setCredits,
+  syntheticMotion,
+} from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -26,28 +32,10 @@ const a2 = Float64Array.from(
 )
 const periodsS = [0.1, 0.3, 0.8, 2]
 
-function finished(runId: string): Promise<string> {
-  return new Promise((resolve) => {
-    const off = queue.subscribe(runId, (event: RunEvent) => {
-      if (event.type === 'status' && (event.status === 'succeeded' || event.status === 'failed')) {
-        off()
-        resolve(event.status)
-      }
-    })
-    const row = ctx.db.select({ status: runs.status }).from(runs).where(eq(runs.id, runId)).get()
-    if (row && (row.status === 'succeeded' || row.status === 'failed')) {
-      off()
-      resolve(row.status)
-    }
-  })
-}
+const finished = async (runId: string) => (await runFinished(queue, ctx.db, runId)).status
 
 function insertPair(name: string, first: Float64Array, second: Float64Array): string {
-  const owner = {
-    firmId,
-    projectId: ctx.seed.projectIds[0] as string,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
-  }
+  const owner = engineerUpload(ctx.seed)
   const r1 = insertRecord(ctx.db, owner, { name: `${name} H1 (synthetic)`, samples: first, dtS })
   const r2 = insertRecord(ctx.db, owner, { name: `${name} H2 (synthetic)`, samples: second, dtS })
   const id = newId()
@@ -81,15 +69,7 @@ beforeAll(async () => {
     a1.map((v) => v * Math.cos(th)),
     a1.map((v) => v * Math.sin(th)),
   )
-  recordId = insertRecord(
-    ctx.db,
-    {
-      firmId,
-      projectId: ctx.seed.projectIds[0] as string,
-      uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
-    },
-    { name: 'Synthetic single', samples: a1, dtS },
-  ).id
+  recordId = insertRecord(ctx.db, engineerUpload(ctx.seed), { name: 'Synthetic single', samples: a1, dtS }).id
   ;[engineer, checker, outsider] = await Promise.all([
     ctx.signIn('engineer@ordinate.test'),
     ctx.signIn('checker@ordinate.test'),

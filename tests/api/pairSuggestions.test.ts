@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
 import { suggestPairs } from '../../shared/pairSuggestions.js'
-import { insertRecord } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -9,11 +9,7 @@ let engineer: request.Agent
 
 beforeAll(async () => {
   ctx = await createTestContext()
-  const owner = {
-    firmId: ctx.seed.firmIds[0]!,
-    projectId: ctx.seed.projectIds[0]!,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
-  }
+  const owner = engineerUpload(ctx.seed)
   for (const [name, options] of [
     ['Wharf H1', {}],
     ['Wharf H2', {}],

@@ -1,18 +1,14 @@
 import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { auditLog, records } from '../../server/db/schema.js'
-import { insertRecord } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
 let recordId: string
 beforeAll(async () => {
   ctx = await createTestContext()
-  recordId = insertRecord(ctx.db, {
-    firmId: ctx.seed.firmIds[0]!,
-    projectId: ctx.seed.projectIds[0]!,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
-  }).id
+  recordId = insertRecord(ctx.db, engineerUpload(ctx.seed)).id
 })
 afterAll(() => ctx.close())
 

@@ -9,7 +9,7 @@ import { creditBalance } from '../../server/services/credits.js'
 import { MAX_BATCH_SUBJECTS } from '../../shared/schemas/runBatches.js'
 import type { BatchWriterOutcome, BatchWriterTask } from '../support/batchWriter.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
-import { insertRecord, setCredits } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord, setCredits } from '../support/runFixtures.js'
 import { parseServerEvents } from '../support/serverEvents.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -33,11 +33,7 @@ beforeAll(async () => {
   // computing earlier runs would change under them. The events tests attach one.
   ctx = await createTestContext()
   firmId = ctx.seed.firmIds[0]!
-  const owner = {
-    firmId,
-    projectId: ctx.seed.projectIds[0]!,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test']!,
-  }
+  const owner = engineerUpload(ctx.seed)
   recordIds = ['Batch A', 'Batch B', 'Batch C H1', 'Batch C H2'].map(
     (name) => insertRecord(ctx.db, owner, { name, points: 400 }).id,
   )

@@ -4,7 +4,7 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { creditLedger, memberships, records, runs, spectra, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue, type RunEvent } from '../../server/runs/runQueue.js'
+import { RunQueue } from '../../server/runs/runQueue.js'
 import { planRunParts } from '../../server/runs/splitRun.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
@@ -17,7 +17,15 @@ import { parseRecord } from '../../shared/spectra/parseRecord.js'
 import { recordParameters, recordWarnings } from '../../shared/spectra/recordParameters.js'
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { DEFAULT_PERIOD_GRID, defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
-import { insertRecord, setCredits, syntheticMotion, type InsertedRecord } from '../support/runFixtures.js'
+import {
+  insertRecord,
+  runFinished,
+  setCredits,
+  SMALL_JOB,
+  syntheticMotion,
+  type InsertedRecord,
+} from '../support/runFixtures.js'
+import { parseServerEvents } from '../support/serverEvents.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -31,36 +39,6 @@ let record: InsertedRecord
 let firmId: string
 let projectId: string
 
-/** A small job: 12 periods, 2 damping ratios. */
-const SMALL = { dampingRatios: [0.05, 0.1], periodsS: [0.05, 0.1, 0.2, 0.3, 0.5, 0.7, 1, 1.5, 2, 3, 4, 5] }
-
-const isEnd = (status: string) => status === 'succeeded' || status === 'failed'
-
-/** Resolves with the run's final status, whether it ends before or after the call. */
-function finished(
-  q: RunQueue,
-  db: TestContext['db'],
-  runId: string,
-): Promise<{ status: string; error: string | null }> {
-  return new Promise((resolve) => {
-    const off = q.subscribe(runId, (event: RunEvent) => {
-      if (event.type === 'status' && isEnd(event.status)) {
-        off()
-        resolve(event)
-      }
-    })
-    const row = db
-      .select({ status: runs.status, error: runs.error })
-      .from(runs)
-      .where(eq(runs.id, runId))
-      .get()
-    if (row && isEnd(row.status)) {
-      off()
-      resolve(row)
-    }
-  })
-}
-
 const runCount = (db: TestContext['db']) => db.select({ n: count() }).from(runs).get()!.n
 const ledgerRows = (db: TestContext['db'], runId: string) =>
   db
@@ -68,19 +46,6 @@ const ledgerRows = (db: TestContext['db'], runId: string) =>
     .from(creditLedger)
     .where(eq(creditLedger.runId, runId))
     .all()
-
-/** Parses a server-sent event stream into its events. */
-function parseEvents(text: string): { event: string; data: Record<string, unknown> }[] {
-  return text
-    .split('\n\n')
-    .filter((block) => block.includes('event:'))
-    .map((block) => {
-      const lines = block.split('\n')
-      const event = lines.find((l) => l.startsWith('event: '))!.slice(7)
-      const data = JSON.parse(lines.find((l) => l.startsWith('data: '))!.slice(6)) as Record<string, unknown>
-      return { event, data }
-    })
-}
 
 async function addMember(email: string, roles: string[]): Promise<void> {
   const userId = newId()
@@ -128,7 +93,7 @@ afterAll(async () => {
 async function runToEnd(agent: request.Agent, body: Record<string, unknown>) {
   const res = await agent.post('/api/runs').send(body)
   expect(res.status, JSON.stringify(res.body)).toBe(202)
-  await finished(queue, ctx.db, res.body.id as string)
+  await runFinished(queue, ctx.db, res.body.id as string)
   return (await agent.get(`/api/runs/${res.body.id}`)).body as Record<string, unknown> & { id: string }
 }
 
@@ -137,7 +102,7 @@ let smallRun: Record<string, unknown> & { id: string }
 describe('POST /api/runs', () => {
   it('queues a run (202), reserves one credit, and a worker thread computes it', async () => {
     const before = creditBalance(ctx.db, firmId)
-    const res = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+    const res = await engineer.post('/api/runs').send({ recordId: record.id, ...SMALL_JOB })
     expect(res.status).toBe(202)
     expect(res.body).toMatchObject({
       status: 'queued',
@@ -147,7 +112,7 @@ describe('POST /api/runs', () => {
       recordSha256: record.sha256,
     })
     expect(creditBalance(ctx.db, firmId)).toBe(before - 1)
-    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(await runFinished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
     smallRun = (await engineer.get(`/api/runs/${res.body.id}`)).body
     expect(smallRun).toMatchObject({ status: 'succeeded', progress: 1, error: null, creditsCharged: 1 })
     expect(smallRun.engineVersion).toMatch(/ordinate-spectra/)
@@ -165,14 +130,14 @@ describe('POST /api/runs', () => {
   })
 
   it('lets a checker start a run (independent re-runs)', async () => {
-    const run = await runToEnd(checker, { recordId: record.id, ...SMALL })
+    const run = await runToEnd(checker, { recordId: record.id, ...SMALL_JOB })
     expect(run.status).toBe('succeeded')
   })
 
   it('lets an admin who is also an engineer start a run', async () => {
-    const res = await adminEngineer.post('/api/runs').send({ recordId: record.id, ...SMALL })
+    const res = await adminEngineer.post('/api/runs').send({ recordId: record.id, ...SMALL_JOB })
     expect(res.status).toBe(202)
-    await finished(queue, ctx.db, res.body.id)
+    await runFinished(queue, ctx.db, res.body.id)
   })
 
   it('refuses an admin without the engineer or checker role with 403 naming the roles, storing nothing', async () => {
@@ -209,7 +174,7 @@ describe('POST /api/runs', () => {
       periodGrid: null,
     })
     expect(res.body.settings.periodsS).toHaveLength(301)
-    await finished(queue, ctx.db, res.body.id)
+    await runFinished(queue, ctx.db, res.body.id)
   })
 
   it('uses periodsS exactly as given, in the given order', async () => {
@@ -230,7 +195,7 @@ describe('POST /api/runs', () => {
       periodChoice: 'grid',
       periodGrid: { minS: 0.1, maxS: 4, count: 25 },
     })
-    await finished(queue, ctx.db, res.body.id)
+    await runFinished(queue, ctx.db, res.body.id)
   })
 
   describe('with bad settings', () => {
@@ -316,7 +281,7 @@ describe('30 runs posted at once with 25 credits', () => {
       setCredits(other.db, otherFirm, 25)
       const agent = await other.signIn('engineer@ordinate.test')
       const answers = await Promise.all(
-        Array.from({ length: 30 }, () => agent.post('/api/runs').send({ recordId: theirs.id, ...SMALL })),
+        Array.from({ length: 30 }, () => agent.post('/api/runs').send({ recordId: theirs.id, ...SMALL_JOB })),
       )
       const statuses = answers.map((a) => a.status)
       expect(statuses.filter((s) => s === 202)).toHaveLength(25)
@@ -361,7 +326,7 @@ describe('GET /api/runs', () => {
       { firmId, projectId, uploadedBy: ctx.seed.userIds['engineer@ordinate.test']! },
       { name: 'Second motion', points: 400 },
     )
-    const run = await runToEnd(engineer, { recordId: another.id, ...SMALL })
+    const run = await runToEnd(engineer, { recordId: another.id, ...SMALL_JOB })
     const byRecord = await engineer.get('/api/runs').query({ recordId: another.id })
     expect(byRecord.body.items.map((r: { id: string }) => r.id)).toEqual([run.id])
     const byProject = await engineer.get('/api/runs').query({ projectId })
@@ -481,7 +446,7 @@ describe('GET /api/runs/:id/spectrum', () => {
       progress.push(event.progress)
       for (const worker of queue.workersFor(res.body.id)) threadIds.add(worker.threadId)
     })
-    expect(await finished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
+    expect(await runFinished(queue, ctx.db, res.body.id)).toMatchObject({ status: 'succeeded' })
     expect(threadIds.size).toBe(2)
     expect(progress).toEqual([...progress].sort((a, b) => a - b))
     const run = (await engineer.get(`/api/runs/${res.body.id}`)).body
@@ -553,10 +518,10 @@ describe('GET /api/runs/:id/spectrum.csv', () => {
       'psa_g_zeta0.05',
     ])
     expect(columns).toContain('psa_g_zeta0.1')
-    expect(rows).toHaveLength(1 + SMALL.periodsS.length)
+    expect(rows).toHaveLength(1 + SMALL_JOB.periodsS.length)
     const spectrum = (await admin.get(`/api/runs/${smallRun.id}/spectrum`)).body
     const first = rows[1]!.split(',').map(Number)
-    expect(first[0]).toBe(SMALL.periodsS[0])
+    expect(first[0]).toBe(SMALL_JOB.periodsS[0])
     expect(first[columns.indexOf('sd_m_zeta0.1')]).toBe(spectrum.curves[1].sdM[0])
     const psa = spectrum.curves[1].psaMPerS2[0]
     expect(first[columns.indexOf('psa_m_per_s2_zeta0.1')]).toBe(psa)
@@ -621,7 +586,7 @@ describe('GET /api/runs/:id/events', () => {
     const stream = await engineer.get(`/api/runs/${res.body.id}/events`).buffer(true)
     expect(stream.status).toBe(200)
     expect(stream.headers['content-type']).toMatch(/^text\/event-stream/)
-    const events = parseEvents(stream.text)
+    const events = parseServerEvents(stream.text)
     expect(events[0]!.event).toBe('status')
     const progress = events.filter((e) => e.event === 'progress').map((e) => e.data.progress as number)
     expect(progress.length).toBeGreaterThan(0)
@@ -635,7 +600,7 @@ describe('GET /api/runs/:id/events', () => {
 
   it('answers a finished run with its status alone', async () => {
     const stream = await checker.get(`/api/runs/${smallRun.id}/events`).buffer(true)
-    expect(parseEvents(stream.text)).toEqual([
+    expect(parseServerEvents(stream.text)).toEqual([
       { event: 'status', data: { runId: smallRun.id, status: 'succeeded', progress: 1, error: null } },
     ])
   })

@@ -7,8 +7,8 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { memberships } from '../../server/db/schema.js'
 import { RunQueue } from '../../server/runs/runQueue.js'
-import { binary, runFinished } from '../support/exportFiles.js'
-import { insertRecord, setCredits, userIdOf } from '../support/runFixtures.js'
+import { binary } from '../support/exportFiles.js'
+import { engineerUpload, insertRecord, runFinished, setCredits, userIdOf } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -21,7 +21,7 @@ let scratch: string
 async function startRun(recordId: string): Promise<string> {
   const res = await engineer.post('/api/runs').send({ recordId, dampingRatios: [0.05] })
   expect(res.status).toBe(202)
-  await expect(runFinished(queue, res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
+  await expect(runFinished(queue, ctx.db, res.body.id)).resolves.toMatchObject({ status: 'succeeded' })
   return res.body.id as string
 }
 
@@ -44,11 +44,7 @@ beforeAll(async () => {
   })
   queue.start()
   const firmId = ctx.seed.firmIds[0] as string
-  const owner = {
-    firmId,
-    projectId: ctx.seed.projectIds[0] as string,
-    uploadedBy: ctx.seed.userIds['engineer@ordinate.test'] as string,
-  }
+  const owner = engineerUpload(ctx.seed)
   setCredits(ctx.db, firmId, 10)
   engineer = await ctx.signIn('engineer@ordinate.test')
   runId = await startRun(insertRecord(ctx.db, owner, { name: 'Synthetic quay', points: 800, dtS: 0.01 }).id)

@@ -1,10 +1,13 @@
 import { createHash } from 'node:crypto'
 import { eq } from 'drizzle-orm'
+import { isFinished, type RunStatus } from '../../shared/schemas/runs.js'
 import { recordParameters } from '../../shared/spectra/recordParameters.js'
 import type { Db } from '../../server/db/client.js'
-import { records, users } from '../../server/db/schema.js'
+import { records, runs, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
+import type { RunScheduler } from '../../server/runs/runScheduler.js'
 import { appendLedger, creditBalance } from '../../server/services/credits.js'
+import type { DemoSeed } from '../../server/services/demoData.js'
 import { encodeSamples } from '../../server/services/sampleBlob.js'
 
 /**
@@ -31,6 +34,15 @@ export interface InsertedRecord {
   sha256: string
   samples: Float64Array
   dtS: number
+}
+
+/** Who owns a record the demo engineer uploads: the first demo firm and its first project. */
+export function engineerUpload(seed: DemoSeed): { firmId: string; projectId: string; uploadedBy: string } {
+  return {
+    firmId: seed.firmIds[0]!,
+    projectId: seed.projectIds[0]!,
+    uploadedBy: seed.userIds['engineer@ordinate.test']!,
+  }
 }
 
 /** Inserts a records row directly (samples as little-endian Float64), as the records service stores it. */
@@ -81,4 +93,35 @@ export function userIdOf(db: Db, email: string): string {
   const row = db.select({ id: users.id }).from(users).where(eq(users.email, email)).get()
   if (!row) throw new Error(`no user ${email}`)
   return row.id
+}
+
+/** A small job: 12 periods, 2 damping ratios. */
+export const SMALL_JOB = {
+  dampingRatios: [0.05, 0.1],
+  periodsS: [0.05, 0.1, 0.2, 0.3, 0.5, 0.7, 1, 1.5, 2, 3, 4, 5],
+}
+
+/** Resolves with the run's final status and error, whether it ends before or after the call. */
+export function runFinished(
+  queue: Pick<RunScheduler, 'subscribe'>,
+  db: Db,
+  runId: string,
+): Promise<{ status: RunStatus; error: string | null }> {
+  return new Promise((resolve) => {
+    const off = queue.subscribe(runId, (event) => {
+      if (event.type === 'status' && isFinished(event.status)) {
+        off()
+        resolve(event)
+      }
+    })
+    const row = db
+      .select({ status: runs.status, error: runs.error })
+      .from(runs)
+      .where(eq(runs.id, runId))
+      .get()
+    if (row && isFinished(row.status)) {
+      off()
+      resolve(row)
+    }
+  })
 }
