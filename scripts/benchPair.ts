@@ -13,14 +13,22 @@
  *    the medians (the issue's target: pair ≤ 3× record); the machine may be shared, so medians and
  *    ratios are what to quote;
  * 2. where the pair's time goes, from a replay of its first pass with the engine's parts: the two
- *    components' response histories a block at a time into reused buffers (pairHistories), then
- *    the directional peak search (DirectionalPeaks.addMany) on them.
+ *    components' response histories a block at a time on the kernel's history mode
+ *    (SweepKernel.pairHistories, the engine's default kernel), then the directional peak search
+ *    (DirectionalPeaks.addMany) on them; and the histories alone on each kernel.
  */
 import { computeSpectrum, planSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../shared/spectra/demo/demoRecords.js'
 import { parseRecord } from '../shared/spectra/parseRecord.js'
 import { defaultPeriodsS } from '../shared/spectra/periods.js'
-import { DirectionalPeaks, historyBlock, pairHistories } from '../shared/spectra/rotd.js'
+import {
+  type HistoryFold,
+  PAIR_COEFFICIENTS,
+  type SweepKernel,
+  defaultKernel,
+  jsKernel,
+} from '../shared/spectra/kernel/sweepKernel.js'
+import { DirectionalPeaks, pairCoefficients } from '../shared/spectra/rotd.js'
 import { COMBINATIONS } from '../shared/vocabulary/combinations.js'
 
 const runsArg = process.argv.indexOf('--runs')
@@ -92,33 +100,47 @@ console.log(
 console.log('')
 
 /** Replay of the pair's first pass: the engine's history blocks, timing the peak search apart. */
-const block = historyBlock()
 const trackers = [new DirectionalPeaks(), new DirectionalPeaks(), new DirectionalPeaks()] as const
 const plan = planSpectrum(accel1.length, dtS, settings, 'step-ends')
-let totalMs = 0
+const periods = settings.periodsS.length
+const coeffs = new Float64Array(PAIR_COEFFICIENTS)
+/** Runs the first pass's histories on `kernel`, folding each block with `fold`; returns the ms taken. */
+const replay = (kernel: SweepKernel, fold: HistoryFold) => {
+  const start = performance.now()
+  for (let index = 0; index < plan.subSteps.length; index++) {
+    const subSteps = plan.subSteps[index]!
+    const periodS = settings.periodsS[index % periods]!
+    const zeta = settings.dampingRatios[Math.floor(index / periods)]!
+    for (const t of trackers) t.reset()
+    pairCoefficients(settings.method, periodS, zeta, dtS / subSteps, coeffs)
+    kernel.pairHistories(accel1, accel2, subSteps, coeffs, fold)
+  }
+  return performance.now() - start
+}
 let searchMs = 0
 let replaySteps = 0
-const periods = settings.periodsS.length
-for (let index = 0; index < plan.subSteps.length; index++) {
-  const periodS = settings.periodsS[index % periods]!
-  const zeta = settings.dampingRatios[Math.floor(index / periods)]!
-  for (const t of trackers) t.reset()
-  const start = performance.now()
-  pairHistories(pair, settings.method, periodS, zeta, plan.subSteps[index]!, block, (count) => {
-    const t0 = performance.now()
-    trackers[0].addMany(block.u1, block.u2, count)
-    trackers[1].addMany(block.v1, block.v2, count)
-    trackers[2].addMany(block.a1, block.a2, count)
-    searchMs += performance.now() - t0
-    replaySteps += 2 * count
-  })
-  totalMs += performance.now() - start
-}
+const engineKernel = defaultKernel()
+const totalMs = replay(engineKernel, (block, count) => {
+  const t0 = performance.now()
+  trackers[0].addMany(block.u1, block.u2, count)
+  trackers[1].addMany(block.v1, block.v2, count)
+  trackers[2].addMany(block.a1, block.a2, count)
+  searchMs += performance.now() - t0
+  replaySteps += 2 * count
+})
 const historyMs = totalMs - searchMs
+const perStep = (ms: number) => ((ms * 1e6) / replaySteps).toFixed(2)
 console.log('2. Where the pair time goes (replay of the first pass):')
 console.log(
-  `   response histories, both components: ${historyMs.toFixed(0)} ms for ${(replaySteps / 1e6).toFixed(1)} M oscillator-steps (${((historyMs * 1e6) / replaySteps).toFixed(2)} ns each)`,
+  `   response histories, both components (kernel ${engineKernel.name}): ${historyMs.toFixed(0)} ms for ${(replaySteps / 1e6).toFixed(1)} M oscillator-steps (${perStep(historyMs)} ns each)`,
 )
 console.log(
   `   directional peak search (u, v, A):   ${searchMs.toFixed(0)} ms (${((searchMs * 1e6) / (replaySteps / 2)).toFixed(2)} ns per time step of the pair)`,
 )
+const noFold: HistoryFold = () => {}
+for (const kernel of new Set([engineKernel, jsKernel()])) {
+  const ms = replay(kernel, noFold)
+  console.log(
+    `   histories alone, kernel ${kernel.name}: ${ms.toFixed(0)} ms (${perStep(ms)} ns per oscillator-step)`,
+  )
+}

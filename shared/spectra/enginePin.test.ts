@@ -52,16 +52,21 @@ describe('engine pins (code at commit 255106a)', () => {
       // one refinement driver alone kept those bits (checked before records opted in). They moved
       // when records began to read peaks between steps (betweenSteps.ts: cubic Hermite
       // interpolants for Newmark, with the solver rule of subSteps.ts), accuracy shown by
-      // computeSpectrum.odex.test.ts. A later change of those rules refreshes this pin and says why.
+      // computeSpectrum.odex.test.ts (then 7cbbba92…8bbc, counted as 158,720,000 steps in the last
+      // pass, 236.1 M run in all, PSA 4.429721502940282). They moved again when Newmark's refinement
+      // became a check of every ordinate against the exact recurrence (computeSpectrum.ts
+      // recordSubStepRule) with a first pass aimed at 2% (subSteps.ts); oscillatorSteps now counts
+      // every pass and that check. Accuracy again by computeSpectrum.odex.test.ts. A later change of
+      // those rules refreshes this pin and says why.
       expect(pin).toEqual({
-        sha256: '7cbbba92439562f4aa9e8b6aee90a6edf78bf119e20849c28feebbfc41878bbc',
-        oscillatorSteps: 158_720_000,
-        psaAt5PercentPeriod150: 4.429721502940282,
+        sha256: '56b6be610a445cc8a1613e93b212af64931b27c0807a453566bc5aab232a3019',
+        oscillatorSteps: 58_680_000,
+        psaAt5PercentPeriod150: 4.428399529444329,
       })
     }
   })
 
-  it('the pair job: its bits since the one refinement driver, and the three ordinates that moved, against a dense reference', () => {
+  it('the pair job, with either kernel: its bits since the one refinement driver, and the three ordinates that moved, against a dense reference', () => {
     // At 255106a the pair job pinned to sha256 7ec2f971…cf56, 9,504,000 oscillator-steps. With the
     // one refinement driver the pair gains the kink bound (and the bound relative to each
     // combination): at the three shortest periods (0.01, 0.0126 and 0.0158 s) refinement stops at
@@ -77,24 +82,32 @@ describe('engine pins (code at commit 255106a)', () => {
       accel2MPerS2: Float64Array.from(far.accelMPerS2).reverse(),
       dtS: far.dtS,
     }
+    // The histories moved from a JavaScript loop in rotd.ts to the kernels' history mode (the same
+    // operations in the same order): the bits stayed.
     const periodsS = defaultPeriodsS().filter((_, index) => index % 10 === 0)
-    const result = computeSpectrum(pair, {
-      dampingRatios: [0.05],
-      periodsS,
-      method: 'newmark-average',
-      combinations: ['geomean', 'rotd50', 'rotd100'],
+    const [result] = (['wasm-simd', 'js'] as const).map((kernel) => {
+      const run = computeSpectrum(pair, {
+        dampingRatios: [0.05],
+        periodsS,
+        method: 'newmark-average',
+        combinations: ['geomean', 'rotd50', 'rotd100'],
+        kernel,
+      })
+      const pin = {
+        sha256: ordinatesSha256(run.curves),
+        oscillatorSteps: run.oscillatorSteps,
+        psaAtPeriod15: run.curves.map((curve) => curve.psaMPerS2[15]),
+      }
+      console.log(`pair job (${kernel}):`, pin)
+      expect(pin).toEqual({
+        sha256: '855f443c618fb9c8edf401d5781943c29092e88cdd5265917bef18fda0840c5b',
+        // 7,584,000 in the last pass; every pass counted since the Newmark check (above) came in.
+        oscillatorSteps: 7_600_000,
+        psaAtPeriod15: [4.480101061038749, 4.136089148392139, 4.531294538653593],
+      })
+      return run
     })
-    const pin = {
-      sha256: ordinatesSha256(result.curves),
-      oscillatorSteps: result.oscillatorSteps,
-      psaAtPeriod15: result.curves.map((curve) => curve.psaMPerS2[15]),
-    }
-    console.log('pair job:', pin)
-    expect(pin).toEqual({
-      sha256: '855f443c618fb9c8edf401d5781943c29092e88cdd5265917bef18fda0840c5b',
-      oscillatorSteps: 7_584_000,
-      psaAtPeriod15: [4.480101061038749, 4.136089148392139, 4.531294538653593],
-    })
+    if (!result) throw new Error('no pair run')
     /** The SV of geomean, RotD50, RotD100 at the three moved periods, at 255106a (printed then). */
     const svAt255106a = [
       [0.00021142251568360916, 0.00019531831545732383, 0.00021250270250113262],

@@ -14,9 +14,8 @@
 import type { Combination } from '../vocabulary/combinations.js'
 import type { OrdinatePeaks } from './computeSpectrum.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
-import type { SweepKernel } from './kernel/sweepKernel.js'
+import { type HistoryFold, PAIR_COEFFICIENTS, type SweepKernel } from './kernel/sweepKernel.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
-import { MAX_SUB_STEPS } from './subSteps.js'
 import type { OscillatorSpec } from './sweepOscillators.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
@@ -367,120 +366,60 @@ interface OscillatorDirections {
   a: DirectionalPeaks
 }
 
-/** Sub-steps of response history held at a time (at least MAX_SUB_STEPS, so one interval always fits). */
-const HISTORY_BLOCK = 4096
-
-/** Reused buffers for a block of both components' response histories: u, v and absolute acceleration. */
-export interface HistoryBlock {
-  u1: Float64Array
-  u2: Float64Array
-  v1: Float64Array
-  v2: Float64Array
-  a1: Float64Array
-  a2: Float64Array
-}
-
-export function historyBlock(): HistoryBlock {
-  const make = () => new Float64Array(Math.max(HISTORY_BLOCK, MAX_SUB_STEPS))
-  return { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
-}
-
 /**
- * The response histories of one oscillator under both components (the same recurrence and
- * sub-steps as the single-record sweep: sweepKernel.ts, with the ground acceleration interpolated
- * linearly between samples), written a block of sub-steps at a time into `block`; `fold(count)` is
- * called after each block with the number of sub-steps in it. Returns the state at the last sample.
+ * The kernel's coefficients of one oscillator for a pair's histories (PAIR_COEFFICIENTS values):
+ * the recurrence over a sub-step of Δt/subSteps (oscillatorRecurrence.ts), then cc = 2ζω and
+ * kk = ω² for the absolute acceleration A = cc·v + kk·u.
  */
-export function pairHistories(
-  record: PairRecord,
+export function pairCoefficients(
   method: SpectrumMethod,
   periodS: number,
   zeta: number,
-  subSteps: number,
-  block: HistoryBlock,
-  fold: (count: number) => void,
-): { u1: number; v1: number; u2: number; v2: number } {
+  stepS: number,
+  out: Float64Array = new Float64Array(PAIR_COEFFICIENTS),
+): Float64Array {
   const omega = (2 * Math.PI) / periodS
-  const { a11, a12, b1, c1, a21, a22, b2, c2 } = recurrenceCoefficients(
-    method,
-    omega,
-    zeta,
-    record.dtS / subSteps,
-  )
-  const cc = 2 * zeta * omega
-  const kk = omega * omega
-  const g1 = record.accel1MPerS2
-  const g2 = record.accel2MPerS2
-  const m = subSteps
-  const { u1: hu1, u2: hu2, v1: hv1, v2: hv2, a1: ha1, a2: ha2 } = block
-  const capacity = hu1.length
-  let u1 = 0
-  let v1 = 0
-  let u2 = 0
-  let v2 = 0
-  let start1 = g1[0] as number
-  let start2 = g2[0] as number
-  let i = 1
-  while (i < g1.length) {
-    let n = 0
-    for (; i < g1.length && n + m <= capacity; i++) {
-      const end1 = g1[i] as number
-      const end2 = g2[i] as number
-      const slope1 = (end1 - start1) / m
-      const slope2 = (end2 - start2) / m
-      let f1 = start1
-      let f2 = start2
-      for (let j = 1; j <= m; j++) {
-        const next1 = j === m ? end1 : start1 + slope1 * j
-        const next2 = j === m ? end2 : start2 + slope2 * j
-        const nu1 = a11 * u1 + a12 * v1 + b1 * f1 + c1 * next1
-        const nv1 = a21 * u1 + a22 * v1 + b2 * f1 + c2 * next1
-        const nu2 = a11 * u2 + a12 * v2 + b1 * f2 + c1 * next2
-        const nv2 = a21 * u2 + a22 * v2 + b2 * f2 + c2 * next2
-        u1 = nu1
-        v1 = nv1
-        u2 = nu2
-        v2 = nv2
-        hu1[n] = u1
-        hu2[n] = u2
-        hv1[n] = v1
-        hv2[n] = v2
-        ha1[n] = cc * v1 + kk * u1
-        ha2[n] = cc * v2 + kk * u2
-        n++
-        f1 = next1
-        f2 = next2
-      }
-      start1 = end1
-      start2 = end2
-    }
-    fold(n)
-  }
-  return { u1, v1, u2, v2 }
+  const { a11, a12, b1, c1, a21, a22, b2, c2 } = recurrenceCoefficients(method, omega, zeta, stepS)
+  out[0] = a11
+  out[1] = a12
+  out[2] = b1
+  out[3] = c1
+  out[4] = a21
+  out[5] = a22
+  out[6] = b2
+  out[7] = c2
+  out[8] = 2 * zeta * omega
+  out[9] = omega * omega
+  return out
 }
 
 /**
- * Solves one oscillator under both components ({@link pairHistories}), folding each block of the
- * histories into the directional peaks, then adds the closed-form peaks of the free vibration after
- * the record in every direction (freeVibration.ts).
+ * Solves one oscillator under both components on the kernel's history mode (the same recurrence
+ * and sub-steps as the single-record sweep, with the ground acceleration interpolated linearly
+ * between samples), folding each block of the histories into the directional peaks, then adds
+ * the closed-form peaks of the free vibration after the record in every direction
+ * (freeVibration.ts).
  */
 function solvePairOscillator(
   record: PairRecord,
-  method: SpectrumMethod,
+  kernel: SweepKernel,
   periodS: number,
   zeta: number,
   subSteps: number,
+  coeffs: Float64Array,
   out: OscillatorDirections,
-  block: HistoryBlock,
+  fold: HistoryFold,
 ): void {
   out.u.reset()
   out.v.reset()
   out.a.reset()
-  const { u1, v1, u2, v2 } = pairHistories(record, method, periodS, zeta, subSteps, block, (count) => {
-    out.u.addMany(block.u1, block.u2, count)
-    out.v.addMany(block.v1, block.v2, count)
-    out.a.addMany(block.a1, block.a2, count)
-  })
+  const { u1, v1, u2, v2 } = kernel.pairHistories(
+    record.accel1MPerS2,
+    record.accel2MPerS2,
+    subSteps,
+    coeffs,
+    fold,
+  )
   const omega = (2 * Math.PI) / periodS
   for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
     const c = COS[k] as number
@@ -503,14 +442,15 @@ export interface PairPeaks {
 const STEPS_PER_REPORT = 3_000_000
 
 /**
- * Solves each oscillator under both components of the pair (one solve per component, with its
- * own sub-steps) and returns its peaks in every direction, in the order given.
+ * Solves each oscillator under both components of the pair on `kernel`'s history mode (both
+ * components at once, with the oscillator's own sub-steps) and returns its peaks in every
+ * direction, in the order given.
  */
 export function solvePairOscillators(
   pair: PairRecord,
   oscillators: readonly OscillatorSpec[],
   method: SpectrumMethod,
-  _kernel: SweepKernel,
+  kernel: SweepKernel,
   onProgress?: (fraction: number) => void,
 ): PairPeaks[] {
   const work: OscillatorDirections = {
@@ -518,14 +458,20 @@ export function solvePairOscillators(
     v: new DirectionalPeaks(),
     a: new DirectionalPeaks(),
   }
-  const block = historyBlock()
+  const fold: HistoryFold = (block, count) => {
+    work.u.addMany(block.u1, block.u2, count)
+    work.v.addMany(block.v1, block.v2, count)
+    work.a.addMany(block.a1, block.a2, count)
+  }
+  const coeffs = new Float64Array(PAIR_COEFFICIENTS)
   const intervals = pair.accel1MPerS2.length - 1
   let total = 0
   for (const { subSteps } of oscillators) total += intervals * subSteps
   let done = 0
   let reported = 0
   return oscillators.map(({ periodS, dampingRatio, subSteps }) => {
-    solvePairOscillator(pair, method, periodS, dampingRatio, subSteps, work, block)
+    pairCoefficients(method, periodS, dampingRatio, pair.dtS / subSteps, coeffs)
+    solvePairOscillator(pair, kernel, periodS, dampingRatio, subSteps, coeffs, work, fold)
     done += intervals * subSteps
     if (onProgress && done - reported >= STEPS_PER_REPORT) {
       reported = done

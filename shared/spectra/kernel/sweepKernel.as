@@ -221,3 +221,68 @@ function sweepTwo(
   v128.store(r + 6 * stride, v)
   return found
 }
+
+// History mode, for a pair of components: one oscillator under both components at once, the
+// components as the two lanes of an f64x2 vector (so each lane is the scalar recurrence, operation
+// for operation as jsPairHistories in sweepKernel.ts). The pair's record is interleaved,
+// (a1_i, a2_i) for each sample i; the forcing is interpolated in the loop:
+// f_j = a_i + ((a_(i+1) − a_i)/m)·j for 0 < j < m, and f_m = a_(i+1).
+//
+// Memory layout:
+//   coeffs (10 f64): a11, a12, b1, c1, a21, a22, b2, c2, cc, kk
+//   state (4 f64, read and written): u₁, u₂, v₁, v₂
+//   out: six arrays of `stride` f64 — u₁, u₂, v₁, v₂, A₁, A₂ (A = cc·v + kk·u, signed) — with the
+//        values at the ends of the sub-steps of intervals [first, first + intervals).
+
+@inline
+function storeLanes(at: usize, stride: usize, x: v128): void {
+  store<f64>(at, f64x2.extract_lane(x, 0))
+  store<f64>(at + stride, f64x2.extract_lane(x, 1))
+}
+
+export function pairHistories(
+  record: usize,
+  first: i32,
+  intervals: i32,
+  subSteps: i32,
+  coeffs: usize,
+  state: usize,
+  out: usize,
+  stride: usize,
+): void {
+  const a11 = f64x2.splat(load<f64>(coeffs))
+  const a12 = f64x2.splat(load<f64>(coeffs, 8))
+  const b1 = f64x2.splat(load<f64>(coeffs, 16))
+  const c1 = f64x2.splat(load<f64>(coeffs, 24))
+  const a21 = f64x2.splat(load<f64>(coeffs, 32))
+  const a22 = f64x2.splat(load<f64>(coeffs, 40))
+  const b2 = f64x2.splat(load<f64>(coeffs, 48))
+  const c2 = f64x2.splat(load<f64>(coeffs, 56))
+  const cc = f64x2.splat(load<f64>(coeffs, 64))
+  const kk = f64x2.splat(load<f64>(coeffs, 72))
+  const m = f64x2.splat(<f64>subSteps)
+  let u = v128.load(state)
+  let v = v128.load(state, 16)
+  let at = out
+  let start = v128.load(record + ((<usize>first) << 4))
+  for (let i: i32 = 1; i <= intervals; i++) {
+    const end = v128.load(record + ((<usize>(first + i)) << 4))
+    const slope = f64x2.div(f64x2.sub(end, start), m)
+    let f = start
+    for (let j: i32 = 1; j <= subSteps; j++) {
+      const next = j == subSteps ? end : f64x2.add(start, f64x2.mul(slope, f64x2.splat(<f64>j)))
+      const u0 = u
+      const v0 = v
+      u = lin(a11, u0, a12, v0, b1, f, c1, next)
+      v = lin(a21, u0, a22, v0, b2, f, c2, next)
+      storeLanes(at, stride, u)
+      storeLanes(at + 2 * stride, stride, v)
+      storeLanes(at + 4 * stride, stride, f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
+      at += 8
+      f = next
+    }
+    start = end
+  }
+  v128.store(state, u)
+  v128.store(state, v, 16)
+}

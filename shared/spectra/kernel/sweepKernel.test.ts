@@ -2,10 +2,15 @@ import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { KERNEL_MODULE_PATH, compileKernel, kernelModuleText } from '../../../scripts/buildKernel.mjs'
 import { mulberry32 } from '../demo/demoRecords.js'
+import { MAX_SUB_STEPS } from '../subSteps.js'
 import {
   CANDIDATE_VALUES,
   COEFFICIENT_ARRAYS,
+  HISTORY_BLOCK,
+  type HistoryBlock,
   OUTPUT_ARRAYS,
+  PAIR_COEFFICIENTS,
+  type SweepKernel,
   createJsKernel,
   createWasmKernel,
 } from './sweepKernel.js'
@@ -66,4 +71,94 @@ describe('sweep kernels', () => {
     const binary = await compileKernel()
     expect(kernelModuleText(binary)).toBe(readFileSync(KERNEL_MODULE_PATH, 'utf8'))
   }, 60_000)
+})
+
+describe('history mode (pairs)', () => {
+  const random = mulberry32(7)
+  const samples = 1200
+  const first = Float64Array.from({ length: samples }, () => random() - 0.5)
+  const second = Float64Array.from({ length: samples }, () => 2 * (random() - 0.5))
+  // Any numbers serve: the two kernels must agree on them bit for bit.
+  const coeffs = Float64Array.from({ length: PAIR_COEFFICIENTS }, () => random() - 0.5)
+  const keys = ['u1', 'u2', 'v1', 'v2', 'a1', 'a2'] as const
+
+  /** Every block's values joined into whole histories, with the block lengths and the end state. */
+  function histories(kernel: SweepKernel, subSteps: number) {
+    const total = (samples - 1) * subSteps
+    const make = () => new Float64Array(total)
+    const whole: HistoryBlock = { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
+    const counts: number[] = []
+    let at = 0
+    const end = kernel.pairHistories(first, second, subSteps, coeffs, (block, count) => {
+      counts.push(count)
+      for (const key of keys) whole[key].set(block[key].subarray(0, count), at)
+      at += count
+    })
+    return { whole, counts, end, written: at }
+  }
+  /** The histories' bytes, for a fast bit-for-bit comparison of long arrays. */
+  const bytes = (whole: HistoryBlock) => keys.map((key) => Buffer.from(whole[key].buffer).toString('base64'))
+
+  it('the WebAssembly SIMD kernel and the JavaScript kernel give the same bits, over several blocks', () => {
+    const wasm = createWasmKernel()!
+    const js = createJsKernel()
+    for (const subSteps of [1, 3, 8, 50]) {
+      const fromWasm = histories(wasm, subSteps)
+      const fromJs = histories(js, subSteps)
+      expect(bytes(fromWasm.whole)).toEqual(bytes(fromJs.whole))
+      expect(fromWasm.end).toEqual(fromJs.end)
+      expect(fromWasm.counts).toEqual(fromJs.counts)
+      expect(fromJs.written).toBe((samples - 1) * subSteps)
+      if (subSteps >= 8) expect(fromJs.counts.length).toBeGreaterThan(1)
+      expect(fromJs.whole.u1.at(-1)).toBe(fromJs.end.u1)
+      expect(fromJs.whole.v2.at(-1)).toBe(fromJs.end.v2)
+      expect(fromJs.whole.u1.at(-1)).not.toBe(fromJs.whole.u2.at(-1))
+    }
+  })
+
+  it('is the recurrence itself: u′ = ((a11·u + a12·v) + b1·f) + c1·f′ on each component from rest', () => {
+    const [a11, a12, b1, c1, a21, a22, b2, c2, cc, kk] = Array.from(coeffs)
+    const { whole } = histories(createWasmKernel()!, 2)
+    let u = 0
+    let v = 0
+    for (let n = 0; n < 2 * (samples - 1); n++) {
+      // Two sub-steps per interval i: g_i → g_i + ((g_(i+1) − g_i)/2)·1 → g_(i+1).
+      const i = Math.floor(n / 2)
+      const middle = second[i]! + ((second[i + 1]! - second[i]!) / 2) * 1
+      const f = n % 2 === 0 ? second[i]! : middle
+      const next = n % 2 === 0 ? middle : second[i + 1]!
+      const nu = a11! * u + a12! * v + b1! * f + c1! * next
+      const nv = a21! * u + a22! * v + b2! * f + c2! * next
+      u = nu
+      v = nv
+      expect(whole.u2[n]).toBe(u)
+      expect(whole.v2[n]).toBe(v)
+      expect(whole.a2[n]).toBe(cc! * v + kk! * u)
+    }
+  })
+
+  it('reloads the pair after a record sweep in between, and makes the record sweep reload', () => {
+    const wasm = createWasmKernel()!
+    const before = histories(wasm, 3)
+    expect(wasm.loadedRecord).toBeNull()
+    const record = Float64Array.from({ length: 5000 }, () => random())
+    wasm.loadRecord(record)
+    const list = { values: new Float64Array(CANDIDATE_VALUES * 64), capacity: 64 }
+    const recordCoeffs = new Float64Array(COEFFICIENT_ARRAYS * 2).fill(0.1)
+    wasm.sweep(2, 1, 0.01, recordCoeffs, new Float64Array(OUTPUT_ARRAYS * 2), list)
+    expect(wasm.loadedRecord).toBe(record)
+    const after = histories(wasm, 3)
+    expect(bytes(after.whole)).toEqual(bytes(before.whole))
+    expect(after.end).toEqual(before.end)
+  })
+
+  it('takes every sub-step count the engine uses, and refuses components of different lengths', () => {
+    expect(MAX_SUB_STEPS).toBeLessThanOrEqual(HISTORY_BLOCK)
+    for (const kernel of [createWasmKernel()!, createJsKernel()]) {
+      expect(() => kernel.pairHistories(first, second.subarray(1), 1, coeffs, () => {})).toThrow(RangeError)
+      expect(() => kernel.pairHistories(first, second, HISTORY_BLOCK + 1, coeffs, () => {})).toThrow(
+        RangeError,
+      )
+    }
+  })
 })

@@ -31,6 +31,11 @@
  * - coeffs (18·count): a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp;
  * - out (7·count): max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end;
  * - candidates (4 per entry): oscillator index, step, u and v at the step's start.
+ *
+ * History mode (pairs): one oscillator under both components of a pair, the same recurrence and
+ * order of operations, writing u, v and A = cc·v + kk·u (signed) of both components at every
+ * sub-step end, a block of HISTORY_BLOCK sub-steps at a time, for the directional peak search
+ * (rotd.ts). The WebAssembly kernel advances the two components as the two lanes of one vector.
  */
 import { SWEEP_KERNEL_WASM_BASE64 } from './sweepKernelWasm.generated.js'
 
@@ -40,6 +45,32 @@ export const COEFFICIENT_ARRAYS = 18
 export const OUTPUT_ARRAYS = 7
 /** Values per candidate entry. */
 export const CANDIDATE_VALUES = 4
+
+/** Values of a pair oscillator's coefficients: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk. */
+export const PAIR_COEFFICIENTS = 10
+/** Sub-steps of response history per block (at least MAX_SUB_STEPS of subSteps.ts, so one interval always fits). */
+export const HISTORY_BLOCK = 4096
+
+/** One block of a pair oscillator's response histories: u, v and A of the first and second components. */
+export interface HistoryBlock {
+  u1: Float64Array
+  u2: Float64Array
+  v1: Float64Array
+  v2: Float64Array
+  a1: Float64Array
+  a2: Float64Array
+}
+
+/** The end of a pair oscillator's histories: the state of each component at the last sample. */
+export interface PairEndState {
+  u1: number
+  v1: number
+  u2: number
+  v2: number
+}
+
+/** Receives each block of histories with the number of sub-steps in it; the block is reused after the call. */
+export type HistoryFold = (block: HistoryBlock, count: number) => void
 
 /** Where the kernel lists candidate steps: `capacity` entries of CANDIDATE_VALUES values. */
 export interface CandidateBuffer {
@@ -69,6 +100,19 @@ export interface SweepKernel {
     out: Float64Array,
     candidates: CandidateBuffer,
   ): number
+  /**
+   * History mode: one oscillator (coefficients `coeffs`, PAIR_COEFFICIENTS values) from rest under
+   * the components `first` and `second` (same length) with `subSteps` sub-steps per interval;
+   * hands each block of histories to `fold` in time order and returns the end state. May replace
+   * the loaded record (loadedRecord then becomes null).
+   */
+  pairHistories(
+    first: Float64Array,
+    second: Float64Array,
+    subSteps: number,
+    coeffs: Float64Array,
+    fold: HistoryFold,
+  ): PairEndState
 }
 
 /**
@@ -221,9 +265,90 @@ export function jsSweep(
   return found
 }
 
+/** Throws unless a pair's histories can be run: components of one length, sub-steps that fit a block. */
+function checkPairHistories(first: Float64Array, second: Float64Array, subSteps: number): void {
+  if (first.length !== second.length) throw new RangeError('the two components must have the same length')
+  if (!Number.isInteger(subSteps) || subSteps < 1 || subSteps > HISTORY_BLOCK)
+    throw new RangeError(`subSteps must be an integer in [1, ${HISTORY_BLOCK}]`)
+}
+
+/** Zeroed buffers for one block of histories. */
+export function historyBlock(): HistoryBlock {
+  const make = () => new Float64Array(HISTORY_BLOCK)
+  return { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
+}
+
+/** The JavaScript history mode, both components in locals: the reference for the WebAssembly one. */
+export function jsPairHistories(
+  first: Float64Array,
+  second: Float64Array,
+  subSteps: number,
+  coeffs: Float64Array,
+  block: HistoryBlock,
+  fold: HistoryFold,
+): PairEndState {
+  checkPairHistories(first, second, subSteps)
+  const a11 = coeffs[0]!
+  const a12 = coeffs[1]!
+  const b1 = coeffs[2]!
+  const c1 = coeffs[3]!
+  const a21 = coeffs[4]!
+  const a22 = coeffs[5]!
+  const b2 = coeffs[6]!
+  const c2 = coeffs[7]!
+  const cc = coeffs[8]!
+  const kk = coeffs[9]!
+  const m = subSteps
+  const { u1: hu1, u2: hu2, v1: hv1, v2: hv2, a1: ha1, a2: ha2 } = block
+  let u1 = 0
+  let v1 = 0
+  let u2 = 0
+  let v2 = 0
+  let start1 = first[0]!
+  let start2 = second[0]!
+  let i = 1
+  while (i < first.length) {
+    let n = 0
+    for (; i < first.length && n + m <= HISTORY_BLOCK; i++) {
+      const end1 = first[i]!
+      const end2 = second[i]!
+      const slope1 = (end1 - start1) / m
+      const slope2 = (end2 - start2) / m
+      let f1 = start1
+      let f2 = start2
+      for (let j = 1; j <= m; j++) {
+        const next1 = j === m ? end1 : start1 + slope1 * j
+        const next2 = j === m ? end2 : start2 + slope2 * j
+        const nu1 = a11 * u1 + a12 * v1 + b1 * f1 + c1 * next1
+        const nv1 = a21 * u1 + a22 * v1 + b2 * f1 + c2 * next1
+        const nu2 = a11 * u2 + a12 * v2 + b1 * f2 + c1 * next2
+        const nv2 = a21 * u2 + a22 * v2 + b2 * f2 + c2 * next2
+        u1 = nu1
+        v1 = nv1
+        u2 = nu2
+        v2 = nv2
+        hu1[n] = u1
+        hu2[n] = u2
+        hv1[n] = v1
+        hv2[n] = v2
+        ha1[n] = cc * v1 + kk * u1
+        ha2[n] = cc * v2 + kk * u2
+        n++
+        f1 = next1
+        f2 = next2
+      }
+      start1 = end1
+      start2 = end2
+    }
+    fold(block, n)
+  }
+  return { u1, v1, u2, v2 }
+}
+
 export function createJsKernel(): SweepKernel {
   let record: Float64Array = new Float64Array(0)
   let loaded: Float64Array | null = null
+  let block: HistoryBlock | undefined
   return {
     name: 'js',
     lanes: 1,
@@ -237,6 +362,10 @@ export function createJsKernel(): SweepKernel {
     },
     sweep(count, subSteps, stepS, coeffs, out, candidates) {
       return jsSweep(record, count, subSteps, stepS, coeffs, out, candidates)
+    },
+    pairHistories(first, second, subSteps, coeffs, fold) {
+      block ??= historyBlock()
+      return jsPairHistories(first, second, subSteps, coeffs, block, fold)
     },
   }
 }
@@ -262,6 +391,16 @@ interface KernelExports {
     candidates: number,
     capacity: number,
   ): number
+  pairHistories(
+    record: number,
+    first: number,
+    intervals: number,
+    subSteps: number,
+    coeffs: number,
+    state: number,
+    out: number,
+    stride: number,
+  ): void
 }
 
 function decodeBase64(base64: string): Uint8Array<ArrayBuffer> {
@@ -306,6 +445,43 @@ export function createWasmKernel(): SweepKernel | null {
     if (missing > 0) exports.memory.grow(Math.ceil(missing / PAGE_BYTES))
   }
   const recordBytes = () => samples * 8
+  // History mode: the pair interleaved at `base` (over any record), then coefficients, state and
+  // the six history arrays, each HISTORY_BLOCK values.
+  let pairFirst: Float64Array | null = null
+  let pairSecond: Float64Array | null = null
+  let pairCoeffsAt = 0
+  let views: { buffer: ArrayBuffer; block: HistoryBlock; coeffs: Float64Array; state: Float64Array } | null =
+    null
+  const historyBytes = HISTORY_BLOCK * 8
+  const loadPair = (first: Float64Array, second: Float64Array) => {
+    const pairSamples = first.length
+    pairCoeffsAt = align16(base + 2 * pairSamples * 8)
+    ensureBytes(pairCoeffsAt + (PAIR_COEFFICIENTS + 4) * 8 + 6 * historyBytes)
+    const interleaved = new Float64Array(exports.memory.buffer, base, 2 * pairSamples)
+    for (let i = 0; i < pairSamples; i++) {
+      interleaved[2 * i] = first[i]!
+      interleaved[2 * i + 1] = second[i]!
+    }
+    pairFirst = first
+    pairSecond = second
+    loaded = null
+    views = null
+  }
+  const pairViews = () => {
+    const buffer = exports.memory.buffer
+    if (views?.buffer !== buffer) {
+      const stateAt = pairCoeffsAt + PAIR_COEFFICIENTS * 8
+      const outAt = stateAt + 4 * 8
+      const array = (k: number) => new Float64Array(buffer, outAt + k * historyBytes, HISTORY_BLOCK)
+      views = {
+        buffer,
+        coeffs: new Float64Array(buffer, pairCoeffsAt, PAIR_COEFFICIENTS),
+        state: new Float64Array(buffer, stateAt, 4),
+        block: { u1: array(0), u2: array(1), v1: array(2), v2: array(3), a1: array(4), a2: array(5) },
+      }
+    }
+    return views
+  }
   return {
     name: 'wasm-simd',
     lanes: 2,
@@ -315,6 +491,8 @@ export function createWasmKernel(): SweepKernel | null {
       ensureBytes(base + recordBytes())
       new Float64Array(exports.memory.buffer, base, samples).set(record)
       loaded = record
+      pairFirst = null
+      pairSecond = null
     },
     get loadedRecord() {
       return loaded
@@ -346,6 +524,24 @@ export function createWasmKernel(): SweepKernel | null {
       const written = CANDIDATE_VALUES * Math.min(found, capacity)
       candidates.values.set(new Float64Array(exports.memory.buffer, candidatesAt, written))
       return found
+    },
+    pairHistories(first, second, subSteps, coeffs, fold) {
+      checkPairHistories(first, second, subSteps)
+      // A nested sweep (from a progress report between oscillators) may have loaded a record meanwhile.
+      if (pairFirst !== first || pairSecond !== second) loadPair(first, second)
+      const { coeffs: coeffsIn, state, block } = pairViews()
+      coeffsIn.set(coeffs.subarray(0, PAIR_COEFFICIENTS))
+      state.fill(0)
+      const stateAt = state.byteOffset
+      const outAt = block.u1.byteOffset
+      const intervals = first.length - 1
+      const perBlock = Math.floor(HISTORY_BLOCK / subSteps)
+      for (let done = 0; done < intervals; done += perBlock) {
+        const count = Math.min(perBlock, intervals - done)
+        exports.pairHistories(base, done, count, subSteps, pairCoeffsAt, stateAt, outAt, historyBytes)
+        fold(block, count * subSteps)
+      }
+      return { u1: state[0]!, v1: state[2]!, u2: state[1]!, v2: state[3]! }
     },
   }
 }
