@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
 import { auditLog, reviews } from '../../server/db/schema.js'
 import { insertSucceededRun, markRunQueued } from '../support/comparisonFixtures.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 // The fixture spectra are the hand-worked suite of shared/spectra/suite.test.ts:
 // periods 0.5, 1, 2 s; run A PSA = [1, 1, 1] g, run B PSA = [1, 3, 1] g; target [1, 2, 4] g.
@@ -45,10 +45,7 @@ beforeAll(async () => {
     curves: [{ dampingRatio: 0.05, psaG: [1, 1, 1] }],
   })
   markRunQueued(ctx.db, queuedRun)
-  engineer = await ctx.signIn('engineer@ordinate.test')
-  checker = await ctx.signIn('checker@ordinate.test')
-  admin = await ctx.signIn('admin@ordinate.test')
-  outsider = await ctx.signIn('outsider@ordinate.test')
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
 })
 afterAll(() => ctx.close())
 

@@ -23,7 +23,7 @@ import {
   setCredits,
   syntheticMotion,
 } from '../support/runFixtures.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 /** A record name a browser would render as markup if it were ever interpreted. */
 const HTML_NAME = '<b>Quay</b> & "N-S" <script>x</script>'
@@ -73,10 +73,7 @@ beforeAll(async () => {
   const second = insertRecord(ctx.db, owner, { name: 'Synthetic motion, second', points: 900, dtS: 0.01 })
   recordSha256 = record.sha256
   setCredits(ctx.db, firmId, 50)
-  engineer = await ctx.signIn('engineer@ordinate.test')
-  checker = await ctx.signIn('checker@ordinate.test')
-  admin = await ctx.signIn('admin@ordinate.test')
-  outsider = await ctx.signIn('outsider@ordinate.test')
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
   runId = await startRun(engineer, record.id)
   secondRunId = await startRun(engineer, second.id)
 })

@@ -12,7 +12,7 @@ import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
 import { recordParameters } from '../../shared/spectra/recordParameters.js'
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { demoRunFacts } from '../support/sheetFixtures.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
 let engineer: request.Agent
@@ -80,12 +80,7 @@ let parentId: string
 
 beforeAll(async () => {
   ctx = await createTestContext()
-  ;[engineer, checker, admin, outsider] = await Promise.all([
-    ctx.signIn('engineer@ordinate.test'),
-    ctx.signIn('checker@ordinate.test'),
-    ctx.signIn('admin@ordinate.test'),
-    ctx.signIn('outsider@ordinate.test'),
-  ])
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
   parentId = await uploadRecord(engineer, driftingRecord())
 })
 afterAll(() => ctx.close())

@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { auditLog, records, runs } from '../../server/db/schema.js'
 import { createRecord } from '../../server/services/records.js'
 import { decodeSamples } from '../../server/services/sampleBlob.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 const FIXTURES = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'fixtures', 'records')
 const fixture = (name: string) => readFileSync(path.join(FIXTURES, name))
@@ -22,12 +22,7 @@ let outsider: request.Agent
 
 beforeAll(async () => {
   ctx = await createTestContext()
-  ;[engineer, checker, admin, outsider] = await Promise.all([
-    ctx.signIn('engineer@ordinate.test'),
-    ctx.signIn('checker@ordinate.test'),
-    ctx.signIn('admin@ordinate.test'),
-    ctx.signIn('outsider@ordinate.test'),
-  ])
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
 })
 afterAll(() => ctx.close())
 
@@ -381,59 +376,28 @@ describe('POST /api/records', () => {
 describe('createRecord', () => {
   const member = () => ({ userId: ctx.seed.userIds['engineer@ordinate.test']!, firmId: ctx.seed.firmIds[0]! })
   const unique = (tag: string) => Buffer.from(`# ${tag}\n` + '0\n0.01\n-0.01\n'.repeat(10))
+  /** An upload of `bytes` in g at Δt = 0.01 s. */
+  const create = (bytes: Buffer, owner = member(), extra: { synthetic?: boolean } = {}) =>
+    createRecord(ctx.db, ctx.dataDir, owner, { bytes, fileName: 'x.txt', units: 'g', dtS: 0.01, ...extra })
+  /** An uploader id that no user has: the foreign key refuses the row. */
+  const noSuchUploader = () => ({ ...member(), userId: '00000000-0000-4000-8000-000000000000' })
 
   it('removes the original it wrote when the row insert fails', () => {
     const bytes = unique('insert fails')
     const sha256 = createHash('sha256').update(bytes).digest('hex')
-    // an uploader id that no user has: the foreign key refuses the row
-    expect(() =>
-      createRecord(
-        ctx.db,
-        ctx.dataDir,
-        { ...member(), userId: '00000000-0000-4000-8000-000000000000' },
-        {
-          bytes,
-          fileName: 'x.txt',
-          units: 'g',
-          dtS: 0.01,
-        },
-      ),
-    ).toThrow()
+    expect(() => create(bytes, noSuchUploader())).toThrow()
     expect(storedOriginals()).not.toContain(sha256)
   })
 
   it('keeps an original that another record already references when a later insert fails', () => {
     const bytes = unique('shared original')
-    const first = createRecord(ctx.db, ctx.dataDir, member(), {
-      bytes,
-      fileName: 'x.txt',
-      units: 'g',
-      dtS: 0.01,
-    })
-    expect(() =>
-      createRecord(
-        ctx.db,
-        ctx.dataDir,
-        { ...member(), userId: '00000000-0000-4000-8000-000000000000' },
-        {
-          bytes,
-          fileName: 'x.txt',
-          units: 'g',
-          dtS: 0.01,
-        },
-      ),
-    ).toThrow()
+    const first = create(bytes)
+    expect(() => create(bytes, noSuchUploader())).toThrow()
     expect(storedOriginals()).toContain(first.sha256)
   })
 
   it('marks synthetic records', () => {
-    const rec = createRecord(ctx.db, ctx.dataDir, member(), {
-      bytes: unique('synthetic'),
-      fileName: 's.txt',
-      units: 'g',
-      dtS: 0.01,
-      synthetic: true,
-    })
+    const rec = create(unique('synthetic'), member(), { synthetic: true })
     expect(ctx.db.select().from(records).where(eq(records.id, rec.id)).get()!.synthetic).toBe(true)
   })
 })

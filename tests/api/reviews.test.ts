@@ -4,7 +4,7 @@ import type request from 'supertest'
 import { auditLog, comparisons, mailOutbox, memberships, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { insertSucceededRun, markRunQueued } from '../support/comparisonFixtures.js'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
 let engineer: request.Agent
@@ -60,10 +60,7 @@ beforeAll(async () => {
     curves,
   })
   markRunQueued(ctx.db, unfinishedRun)
-  engineer = await ctx.signIn('engineer@ordinate.test')
-  checker = await ctx.signIn('checker@ordinate.test')
-  admin = await ctx.signIn('admin@ordinate.test')
-  outsider = await ctx.signIn('outsider@ordinate.test')
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
   both = await ctx.signIn('both@ordinate.test')
 })
 afterAll(() => ctx.close())

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
-import { createTestContext, type TestContext } from '../support/testApp.js'
+import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
 let engineer: request.Agent
@@ -10,10 +10,7 @@ let outsider: request.Agent
 
 beforeAll(async () => {
   ctx = await createTestContext()
-  engineer = await ctx.signIn('engineer@ordinate.test')
-  checker = await ctx.signIn('checker@ordinate.test')
-  admin = await ctx.signIn('admin@ordinate.test')
-  outsider = await ctx.signIn('outsider@ordinate.test')
+  ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
 })
 afterAll(() => ctx.close())
 

@@ -70,3 +70,15 @@ export async function createTestContext(
     },
   }
 }
+
+/** The four demo members most API tests act as (one of them in another firm), signed in. */
+export async function signInDemoMembers(ctx: TestContext) {
+  const signIn = (who: string) => ctx.signIn(`${who}@ordinate.test`)
+  const [engineer, checker, admin, outsider] = await Promise.all([
+    signIn('engineer'),
+    signIn('checker'),
+    signIn('admin'),
+    signIn('outsider'),
+  ])
+  return { engineer, checker, admin, outsider }
+}
