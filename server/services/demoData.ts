@@ -64,7 +64,7 @@ export interface DemoWork {
   /** Every seeded run, succeeded: the batch's runs first, then the single run. */
   runIds: string[]
   batchId: string
-  /** A comparison of the batch's runs against a design target, waiting for the checker. */
+  /** A comparison of two of the batch's runs against a design target, waiting for the checker. */
   comparisonId: string
 }
 
@@ -154,34 +154,37 @@ export async function seedDemoData(db: Db, options: SeedOptions = {}): Promise<D
     seed.recordIds.push(raw.id, child.id)
     const longDuration = seed.recordIds[2]!
     seed.work = seedDemoWork(db, engineer, {
-      suite: [longDuration, child.id],
-      single: raw.id,
+      batch: [longDuration, raw.id, child.id],
+      leftOut: raw.id,
+      single: child.id,
       origin: options.origin ?? 'http://127.0.0.1:3000',
     })
   }
   return seed
 }
 
-/** Settings of the demo runs: ζ = 5% (and 2% for the single run) on 60 periods, so seeding stays quick. */
+/** The demo runs' periods: 60 from 0.05 s to 5 s, so seeding stays quick. */
 const DEMO_GRID = { minS: 0.05, maxS: 5, count: 60 }
 
 /**
  * The demo engineer's finished work, made through the services a member's requests use:
- * - a batch (a suite) of two records, and a run of the record with a baseline drift at 2% and 5%;
- *   they are queued with their credits reserved, then computed by the engine and stored through
- *   the run queue's own store (claim, load, succeed: the path of a worker thread's result), here
- *   on this thread, so they have finished before the server listens;
- * - a comparison of the batch's runs against an ASCE 7-16 two-period target (demo site values,
- *   fictional), scaled over 0.2–2 s, and submitted for checking, so it waits in the checker's queue.
+ * - a batch of three records at ζ = 5% (the long-duration record, and the drifting record before
+ *   and after its correction), and a second run of the corrected record at 2% and 5%. They are
+ *   queued with their credits reserved, then computed by the engine and stored through the run
+ *   queue's own store (claim, load, succeed: the path of a worker thread's result), here on this
+ *   thread, so they have finished before the server listens;
+ * - a comparison of the batch's runs but the uncorrected one against an ASCE 7-16 two-period
+ *   target (demo site values, fictional), scaled over 0.2–2 s, and submitted for checking, so it
+ *   waits in the checker's queue.
  * The runs' credits come back as one demo grant beside them, so the ledger balances and the firm
  * keeps its opening balance. The records avoid the two that the browser tests run by name.
  */
 function seedDemoWork(
   db: Db,
   engineer: Member,
-  subjects: { suite: string[]; single: string; origin: string },
+  subjects: { batch: string[]; leftOut: string; single: string; origin: string },
 ): DemoWork {
-  const runsSeeded = subjects.suite.length + 1
+  const runsSeeded = subjects.batch.length + 1
   appendLedger(db, {
     firmId: engineer.firmId,
     delta: runsSeeded,
@@ -192,7 +195,7 @@ function seedDemoWork(
     db,
     engineer,
     createRunBatchBodySchema.parse({
-      recordIds: subjects.suite,
+      recordIds: subjects.batch,
       dampingRatios: [0.05],
       periodGrid: DEMO_GRID,
     }),
@@ -208,7 +211,7 @@ function seedDemoWork(
     engineer,
     createComparisonBodySchema.parse({
       name: 'Tidewater suite against the site design spectrum',
-      runIds: batch.runIds,
+      runIds: batch.runIds.filter((_, i) => subjects.batch[i] !== subjects.leftOut),
       dampingRatio: 0.05,
       target: { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 },
       scaling: { fromS: 0.2, toS: 2 },

@@ -76,7 +76,7 @@ describe('seedDemoData with a data folder', () => {
 })
 
 describe('seedDemoData’s finished work', () => {
-  it('seeds three succeeded runs of the demo firm, each with a stored spectrum', () => {
+  it('seeds four succeeded runs of the demo firm, each with a stored spectrum', () => {
     const firmId = seed.firmIds[0]!
     const runs = listRuns(db, firmId, {})
     expect(runs.map((r) => r.id).sort()).toEqual([...seed.work!.runIds].sort())
@@ -91,7 +91,7 @@ describe('seedDemoData’s finished work', () => {
 
   it('stores the engine’s own ordinates: a seeded run equals the same record computed again', () => {
     const firmId = seed.firmIds[0]!
-    const runId = seed.work!.runIds[2]!
+    const runId = seed.work!.runIds[3]!
     const { run, result } = getRunSpectrum(db, firmId, runId)
     const { accelMPerS2, record } = loadRecordSamples(db, firmId, run.recordId!)
     const again = computeSpectrum(
@@ -108,17 +108,18 @@ describe('seedDemoData’s finished work', () => {
     })
   })
 
-  it('seeds one finished batch of two demo records', () => {
+  it('seeds one finished batch of three demo records', () => {
     const batch = getRunBatch(db, seed.firmIds[0]!, seed.work!.batchId)
     expect(batch.finished).toBe(true)
-    expect(batch.counts).toEqual({ queued: 0, running: 0, succeeded: 2, failed: 0 })
-    expect(batch.recordIds).toEqual([seed.recordIds[2], seed.recordIds[4]])
+    expect(batch.counts).toEqual({ queued: 0, running: 0, succeeded: 3, failed: 0 })
+    expect(batch.recordIds).toEqual(seed.recordIds.slice(2))
     expect(batch.projectId).toBe(seed.projectIds[0])
   })
 
-  it('seeds a comparison of the batch’s runs against a design target, waiting in the checker’s queue', () => {
+  it('seeds a comparison of the batch’s runs but the uncorrected one against a design target, waiting in the checker’s queue', () => {
     const view = getComparisonView(db, seed.firmIds[0]!, seed.work!.comparisonId)
-    expect(view.comparison.runIds).toEqual(seed.work!.runIds.slice(0, 2))
+    const [longDuration, , corrected] = seed.work!.runIds
+    expect(view.comparison.runIds).toEqual([longDuration, corrected])
     expect(view.comparison.reviewState).toBe('submitted')
     expect(view.target?.label).toMatch(/ASCE 7-16/)
     expect(view.scaling?.check).toBeDefined()
@@ -141,7 +142,7 @@ describe('seedDemoData’s finished work', () => {
     const reserved = entries.filter((e) => e.kind === 'run_reserved')
     expect(reserved.map((e) => e.runId).sort()).toEqual([...seed.work!.runIds].sort())
     expect(entries.filter((e) => e.kind === 'run_returned')).toHaveLength(0)
-    expect(entries.filter((e) => e.kind === 'grant').map((e) => e.delta)).toEqual([3, 25])
+    expect(entries.filter((e) => e.kind === 'grant').map((e) => e.delta)).toEqual([4, 25])
     expect(creditBalance(db, firmId)).toBe(25)
     expect(creditBalance(db, seed.firmIds[1]!)).toBe(5)
     expect(ledgerProblems(path.join(dataDir, 'demo.sqlite'))).toEqual([])
@@ -149,7 +150,7 @@ describe('seedDemoData’s finished work', () => {
 
   it('adds no work a second time', async () => {
     expect(await seedDemoData(db, { dataDir })).toBeUndefined()
-    expect(listRuns(db, seed.firmIds[0]!, {})).toHaveLength(3)
+    expect(listRuns(db, seed.firmIds[0]!, {})).toHaveLength(4)
     expect(listRuns(db, seed.firmIds[1]!, {})).toHaveLength(0)
   })
 })
