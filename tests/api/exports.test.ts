@@ -14,13 +14,14 @@ import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { sheetSchema } from '../../shared/schemas/sheets.js'
 import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
+import type { RunQueue } from '../../server/runs/runQueue.js'
 import { binary } from '../support/exportFiles.js'
 import {
   engineerUpload,
   insertRecord,
   runFinished,
   setCredits,
+  startRunQueue,
   syntheticMotion,
 } from '../support/runFixtures.js'
 import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
@@ -62,11 +63,8 @@ function pdfInfo(pdf: Buffer): string {
 
 beforeAll(async () => {
   scratch = mkdtempSync(path.join(tmpdir(), 'ordinate-exports-'))
-  ctx = await createTestContext((deps) => {
-    queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
-    deps.runQueue = queue
-  })
-  queue.start()
+  ctx = await createTestContext()
+  queue = startRunQueue(ctx, { workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
   const firmId = ctx.seed.firmIds[0] as string
   const owner = engineerUpload(ctx.seed)
   const record = insertRecord(ctx.db, owner, { name: HTML_NAME, points: 1200, dtS: 0.01 })

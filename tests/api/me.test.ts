@@ -1,8 +1,7 @@
 import { and, eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { auditLog } from '../../server/db/schema.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
-import { engineerUpload, insertRecord } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord, startRunQueue } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -78,9 +77,7 @@ describe('files in the member’s units', () => {
   let runId: string
 
   beforeAll(async () => {
-    const queue = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 1000 })
-    ctx.deps.runQueue = queue
-    queue.start()
+    const queue = startRunQueue(ctx, { workerCount: 1, runTimeLimitS: 60, idleMs: 1000 })
     const record = insertRecord(ctx.db, engineerUpload(ctx.seed))
     const agent = await ctx.signIn('engineer@ordinate.test')
     const res = await agent.post('/api/runs').send({ recordId: record.id, periodsS: [0.1, 0.5, 1, 2] })

@@ -3,7 +3,7 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { recordPairs, records, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
+import type { RunQueue } from '../../server/runs/runQueue.js'
 import { creditBalance } from '../../server/services/credits.js'
 import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
 import {
@@ -11,6 +11,7 @@ import {
   insertRecord,
   runFinished,
   setCredits,
+  startRunQueue,
   syntheticMotion,
 } from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -55,11 +56,8 @@ function insertPair(name: string, first: Float64Array, second: Float64Array): st
 }
 
 beforeAll(async () => {
-  ctx = await createTestContext((deps) => {
-    queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 120, idleMs: 5000 })
-    deps.runQueue = queue
-  })
-  queue.start()
+  ctx = await createTestContext()
+  queue = startRunQueue(ctx, { workerCount: 1, runTimeLimitS: 120, idleMs: 5000 })
   firmId = ctx.seed.firmIds[0] as string
   setCredits(ctx.db, firmId, 20)
   pairId = insertPair('Synthetic pair', a1, a2)

@@ -4,12 +4,12 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { creditLedger, runBatches, runBatchRuns, runs } from '../../server/db/schema.js'
 import { findMember } from '../../server/middleware/auth.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
+import type { RunQueue } from '../../server/runs/runQueue.js'
 import { creditBalance } from '../../server/services/credits.js'
 import { MAX_BATCH_SUBJECTS } from '../../shared/schemas/runBatches.js'
 import type { BatchWriterOutcome, BatchWriterTask } from '../support/batchWriter.js'
 import { snapshotDb } from '../support/dbSnapshot.js'
-import { engineerUpload, insertRecord, setCredits } from '../support/runFixtures.js'
+import { engineerUpload, insertRecord, setCredits, startRunQueue } from '../support/runFixtures.js'
 import { parseServerEvents } from '../support/serverEvents.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
@@ -283,9 +283,7 @@ describe('GET /api/run-batches/:id and its events', () => {
   })
 
   it('streams each run’s status and progress with its runId, and closes when every run has finished', async () => {
-    queue = new RunQueue({ db: ctx.db, workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
-    ctx.deps.runQueue = queue
-    queue.start()
+    queue = startRunQueue(ctx, { workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
     const stream = await engineer.get(`/api/run-batches/${batchId}/events`).buffer(true)
     expect(stream.status).toBe(200)
     expect(stream.headers['content-type']).toMatch(/^text\/event-stream/)

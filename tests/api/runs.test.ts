@@ -4,7 +4,7 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { creditLedger, memberships, records, runs, spectra, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
+import type { RunQueue } from '../../server/runs/runQueue.js'
 import { planRunParts } from '../../server/runs/splitRun.js'
 import { hashPassword } from '../../server/services/auth.js'
 import { creditBalance } from '../../server/services/credits.js'
@@ -18,12 +18,13 @@ import { recordParameters, recordWarnings } from '../../shared/spectra/recordPar
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { DEFAULT_PERIOD_GRID, defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import {
+  type InsertedRecord,
   insertRecord,
   runFinished,
   setCredits,
   SMALL_JOB,
+  startRunQueue,
   syntheticMotion,
-  type InsertedRecord,
 } from '../support/runFixtures.js'
 import { parseServerEvents } from '../support/serverEvents.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
@@ -62,11 +63,8 @@ async function addMember(email: string, roles: string[]): Promise<void> {
 }
 
 beforeAll(async () => {
-  ctx = await createTestContext((deps) => {
-    queue = new RunQueue({ db: deps.db, workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
-    deps.runQueue = queue
-  })
-  queue.start()
+  ctx = await createTestContext()
+  queue = startRunQueue(ctx, { workerCount: 2, runTimeLimitS: 60, idleMs: 5000 })
   firmId = ctx.seed.firmIds[0]!
   projectId = ctx.seed.projectIds[0]!
   record = insertRecord(ctx.db, {

@@ -6,9 +6,16 @@ import { eq } from 'drizzle-orm'
 import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { memberships } from '../../server/db/schema.js'
-import { RunQueue } from '../../server/runs/runQueue.js'
+import type { RunQueue } from '../../server/runs/runQueue.js'
 import { binary } from '../support/exportFiles.js'
-import { engineerUpload, insertRecord, runFinished, setCredits, userIdOf } from '../support/runFixtures.js'
+import {
+  engineerUpload,
+  insertRecord,
+  runFinished,
+  setCredits,
+  startRunQueue,
+  userIdOf,
+} from '../support/runFixtures.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -38,11 +45,8 @@ function setUnits(units: 'si' | 'us') {
 
 beforeAll(async () => {
   scratch = mkdtempSync(path.join(tmpdir(), 'ordinate-tripartite-'))
-  ctx = await createTestContext((deps) => {
-    queue = new RunQueue({ db: deps.db, workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
-    deps.runQueue = queue
-  })
-  queue.start()
+  ctx = await createTestContext()
+  queue = startRunQueue(ctx, { workerCount: 1, runTimeLimitS: 60, idleMs: 2000 })
   const firmId = ctx.seed.firmIds[0] as string
   const owner = engineerUpload(ctx.seed)
   setCredits(ctx.db, firmId, 10)

@@ -5,10 +5,12 @@ import { recordParameters } from '../../shared/spectra/recordParameters.js'
 import type { Db } from '../../server/db/client.js'
 import { records, runs, users } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
+import { RunQueue, type RunQueueOptions } from '../../server/runs/runQueue.js'
 import type { RunScheduler } from '../../server/runs/runScheduler.js'
 import { appendLedger, creditBalance } from '../../server/services/credits.js'
 import type { DemoSeed } from '../../server/services/demoData.js'
 import { encodeSamples } from '../../server/services/sampleBlob.js'
+import type { TestContext } from './testApp.js'
 
 /**
  * A synthetic, deterministic ground motion (m/s²) for tests: three decaying sines of
@@ -124,4 +126,12 @@ export function runFinished(
       resolve(row)
     }
   })
+}
+
+/** Gives a test context's app a run queue of its own, on real worker threads, started. */
+export function startRunQueue(ctx: TestContext, options: Omit<RunQueueOptions, 'db'>): RunQueue {
+  const queue = new RunQueue({ db: ctx.db, ...options })
+  ctx.deps.runQueue = queue
+  queue.start()
+  return queue
 }
