@@ -6,6 +6,8 @@ interface Issue {
   message: string
 }
 
+type Parsed<T> = { success: true; data: T } | { success: false; error: { issues: readonly Issue[] } }
+
 function asIssues(raw: readonly unknown[] | undefined): Issue[] {
   return (raw ?? []).flatMap((item) => {
     if (typeof item !== 'object' || item === null) return []
@@ -53,19 +55,19 @@ export function useFieldErrors<F extends string>(fields: readonly F[]) {
     }
   }
 
+  /** The parse of a form's body: its data, or null with the issues put beside their fields. */
+  function checked<T>(parsed: Parsed<T>): T | null {
+    if (parsed.success) return parsed.data
+    fromIssues(parsed.error.issues)
+    return null
+  }
+
   /**
    * A form that sets a password: the parse of its body (issues go beside their fields), then
    * the repeated password, which must equal the first. Returns the body, or null when not valid.
    */
-  function checkedWithRepeat<T>(
-    parsed: { success: true; data: T } | { success: false; error: { issues: readonly Issue[] } },
-    password: string,
-    repeat: string,
-  ): T | null {
-    if (!parsed.success) {
-      fromIssues(parsed.error.issues)
-      return null
-    }
+  function checkedWithRepeat<T>(parsed: Parsed<T>, password: string, repeat: string): T | null {
+    if (!parsed.success) return checked(parsed)
     if (repeat !== password) {
       fromIssues([{ path: ['repeat'], message: 'The two passwords differ.' }])
       return null
@@ -73,5 +75,5 @@ export function useFieldErrors<F extends string>(fields: readonly F[]) {
     return parsed.data
   }
 
-  return { errors, formMessage, clear, fromIssues, fromError, checkedWithRepeat }
+  return { errors, formMessage, clear, fromIssues, fromError, checked, checkedWithRepeat }
 }
