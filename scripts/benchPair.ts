@@ -11,7 +11,7 @@
  * Prints:
  * 1. each job's times over `--runs` (default 3) alternating runs, their medians, and the ratio of
  *    the medians (the issue's target: pair ≤ 3× record); the machine may be shared, so medians and
- *    ratios are what to quote;
+ *    ratios are what to quote, and the same for the process's CPU time, which load disturbs less;
  * 2. where the pair's time goes, from a replay of its first pass with the engine's parts: the two
  *    components' response histories a block at a time on the kernel's history mode
  *    (SweepKernel.pairHistories, the engine's default kernel), then the directional peak search
@@ -60,19 +60,26 @@ const median = (values: number[]) => {
   const mid = Math.floor(sorted.length / 2)
   return sorted.length % 2 === 1 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2
 }
-const timed = <T>(run: () => T): [T, number] => {
+/** The result, the wall time and the process's CPU time (user + system) of `run`, in ms. */
+const timed = <T>(run: () => T): [T, number, number] => {
   const start = performance.now()
+  const cpu = process.cpuUsage()
   const result = run()
-  return [result, performance.now() - start]
+  const used = process.cpuUsage(cpu)
+  return [result, performance.now() - start, (used.user + used.system) / 1000]
 }
 
 const recordTimes: number[] = []
 const pairTimes: number[] = []
+const recordCpu: number[] = []
+const pairCpu: number[] = []
 let recordResult: ReturnType<typeof computeSpectrum> | undefined
 let pairResult: ReturnType<typeof computeSpectrum> | undefined
 for (let r = 0; r < runs; r++) {
-  const [recordRun, recordMs] = timed(() => computeSpectrum(single, settings))
-  const [pairRun, pairMs] = timed(() => computeSpectrum(pair, settings))
+  const [recordRun, recordMs, recordCpuMs] = timed(() => computeSpectrum(single, settings))
+  const [pairRun, pairMs, pairCpuMs] = timed(() => computeSpectrum(pair, settings))
+  recordCpu.push(recordCpuMs)
+  pairCpu.push(pairCpuMs)
   recordResult = recordRun
   pairResult = pairRun
   recordTimes.push(recordMs)
@@ -90,6 +97,10 @@ console.log(`   pair:   median ${pairMedian.toFixed(0)} ms (runs: ${list(pairTim
 console.log(`           ${describe(pairResult!, pairMedian)}`)
 console.log(
   `   pair / record: ${(pairMedian / recordMedian).toFixed(2)}× (medians; per run ${pairTimes.map((t, i) => (t / recordTimes[i]!).toFixed(2)).join(', ')}; target ≤ 3×)`,
+)
+// CPU time is less disturbed than wall time when other work shares the cores.
+console.log(
+  `   CPU time: record median ${median(recordCpu).toFixed(0)} ms, pair median ${median(pairCpu).toFixed(0)} ms, pair / record ${(median(pairCpu) / median(recordCpu)).toFixed(2)}× (per run ${pairCpu.map((t, i) => (t / recordCpu[i]!).toFixed(2)).join(', ')})`,
 )
 const at1s = settings.periodsS.findIndex((p) => p >= 1)
 const curve = (combination: string) =>
