@@ -34,6 +34,17 @@ async function invite(email = NEWCOMER, roles: string[] = ['engineer']) {
   }
 }
 
+/** An invitation whose 72 hours have run out; answers its token. */
+async function expiredInvitation(): Promise<string> {
+  const { invitation, token } = await invite()
+  ctx.db
+    .update(invitations)
+    .set({ expiresAt: Date.now() - 1 })
+    .where(eq(invitations.id, invitation.id))
+    .run()
+  return token
+}
+
 const sid = (r: request.Response) => /ordinate\.sid=([^;]+)/.exec(String(r.headers['set-cookie']))?.[1]
 
 describe('POST /api/firm/invitations', () => {
@@ -197,12 +208,7 @@ describe('GET /api/invitations/:token', () => {
   })
 
   it('answers 410 invitation_expired after 72 hours', async () => {
-    const { invitation, token } = await invite()
-    ctx.db
-      .update(invitations)
-      .set({ expiresAt: Date.now() - 1 })
-      .where(eq(invitations.id, invitation.id))
-      .run()
+    const token = await expiredInvitation()
     const res = await request(ctx.app).get(`/api/invitations/${token}`)
     expect(res.status).toBe(410)
     expect(res.body.error.code).toBe('invitation_expired')
@@ -263,12 +269,7 @@ describe('POST /api/invitations/:token/accept', () => {
   })
 
   it('answers 410 for an expired invitation and creates nobody', async () => {
-    const { invitation, token } = await invite()
-    ctx.db
-      .update(invitations)
-      .set({ expiresAt: Date.now() - 1 })
-      .where(eq(invitations.id, invitation.id))
-      .run()
+    const token = await expiredInvitation()
     const res = await ctx.anonymous().post(`/api/invitations/${token}/accept`).send(body)
     expect(res.status).toBe(410)
     expect(res.body.error.code).toBe('invitation_expired')

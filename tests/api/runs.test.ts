@@ -18,6 +18,7 @@ import { recordParameters, recordWarnings } from '../../shared/spectra/recordPar
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { DEFAULT_PERIOD_GRID, defaultPeriodsS, logPeriodGrid } from '../../shared/spectra/periods.js'
 import {
+  engineerUpload,
   type InsertedRecord,
   insertRecord,
   runFinished,
@@ -96,6 +97,25 @@ async function runToEnd(agent: request.Agent, body: Record<string, unknown>) {
 }
 
 let smallRun: Record<string, unknown> & { id: string }
+
+/** Writes a run of the test record (with the small run's settings) straight into the table, for no queue to take. */
+function insertRunRow(fields: Pick<typeof runs.$inferInsert, 'status' | 'error' | 'attempts'>): string {
+  const id = newId()
+  ctx.db
+    .insert(runs)
+    .values({
+      id,
+      firmId,
+      projectId,
+      recordId: record.id,
+      settings: smallRun.settings as RunSettings,
+      recordSha256: record.sha256,
+      createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
+      ...fields,
+    })
+    .run()
+  return id
+}
 
 describe('POST /api/runs', () => {
   it('queues a run (202), reserves one credit, and a worker thread computes it', async () => {
@@ -271,11 +291,7 @@ describe('30 runs posted at once with 25 credits', () => {
     const other = await createTestContext()
     try {
       const otherFirm = other.seed.firmIds[0]!
-      const theirs = insertRecord(other.db, {
-        firmId: otherFirm,
-        projectId: other.seed.projectIds[0]!,
-        uploadedBy: other.seed.userIds['engineer@ordinate.test']!,
-      })
+      const theirs = insertRecord(other.db, engineerUpload(other.seed))
       setCredits(other.db, otherFirm, 25)
       const agent = await other.signIn('engineer@ordinate.test')
       const answers = await Promise.all(
@@ -459,21 +475,7 @@ describe('GET /api/runs/:id/spectrum', () => {
   })
 
   it('answers 409 for a run that has not succeeded', async () => {
-    const id = newId()
-    ctx.db
-      .insert(runs)
-      .values({
-        id,
-        firmId,
-        projectId,
-        recordId: record.id,
-        status: 'failed',
-        error: 'test',
-        settings: smallRun.settings as RunSettings,
-        recordSha256: record.sha256,
-        createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
-      })
-      .run()
+    const id = insertRunRow({ status: 'failed', error: 'test' })
     const res = await engineer.get(`/api/runs/${id}/spectrum`)
     expect(res.status).toBe(409)
     expect(res.body.error.code).toBe('run_not_finished')
@@ -605,21 +607,7 @@ describe('GET /api/runs/:id/events', () => {
 
   it('stops listening when the client goes away', async () => {
     // A run no queue will take, so its stream stays open until the client leaves.
-    const id = newId()
-    ctx.db
-      .insert(runs)
-      .values({
-        id,
-        firmId,
-        projectId,
-        recordId: record.id,
-        status: 'running',
-        attempts: 1,
-        settings: smallRun.settings as RunSettings,
-        recordSha256: record.sha256,
-        createdBy: ctx.seed.userIds['engineer@ordinate.test']!,
-      })
-      .run()
+    const id = insertRunRow({ status: 'running', attempts: 1 })
     const server = ctx.app.listen(0, '127.0.0.1')
     await new Promise((resolve) => server.once('listening', resolve))
     try {
