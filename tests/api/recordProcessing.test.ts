@@ -12,6 +12,7 @@ import { computeSpectrum } from '../../shared/spectra/computeSpectrum.js'
 import { recordParameters } from '../../shared/spectra/recordParameters.js'
 import { toSpectrumJson } from '../../shared/spectra/toSpectrumJson.js'
 import { demoRunFacts } from '../support/sheetFixtures.js'
+import { postRecord } from '../support/recordUploads.js'
 import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 let ctx: TestContext
@@ -35,15 +36,11 @@ function driftingRecord(): number[] {
 }
 
 async function uploadRecord(agent: request.Agent, values: number[], name = 'drifting'): Promise<string> {
-  const res = await agent
-    .post('/api/records')
-    .field('units', 'm/s2')
-    .field('dtS', String(DT_S))
-    .field('name', name)
-    .attach('file', Buffer.from(values.join('\n') + '\n'), {
-      filename: `${name}.txt`,
-      contentType: 'application/octet-stream',
-    })
+  const res = await postRecord(agent, values.join('\n') + '\n', `${name}.txt`, {
+    units: 'm/s2',
+    dtS: DT_S,
+    name,
+  })
   if (res.status !== 201) throw new Error(`upload failed: ${res.status} ${JSON.stringify(res.body)}`)
   return res.body.id as string
 }

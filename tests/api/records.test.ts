@@ -8,6 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { auditLog, records, runs } from '../../server/db/schema.js'
 import { createRecord } from '../../server/services/records.js'
 import { decodeSamples } from '../../server/services/sampleBlob.js'
+import { postRecord } from '../support/recordUploads.js'
 import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
 const FIXTURES = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'fixtures', 'records')
@@ -28,11 +29,7 @@ afterAll(() => ctx.close())
 
 type Fields = Record<string, string | number>
 
-function upload(agent: request.Agent, bytes: Buffer, fileName: string, fields: Fields = {}) {
-  let req = agent.post('/api/records')
-  for (const [k, v] of Object.entries(fields)) req = req.field(k, String(v))
-  return req.attach('file', bytes, { filename: fileName, contentType: 'application/octet-stream' })
-}
+const upload = postRecord
 
 const originalsDir = () => path.join(ctx.dataDir, 'originals')
 const storedOriginals = () => (existsSync(originalsDir()) ? readdirSync(originalsDir()) : [])

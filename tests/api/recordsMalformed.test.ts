@@ -7,6 +7,7 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { z } from 'zod'
 import { auditLog, records } from '../../server/db/schema.js'
+import { postRecord } from '../support/recordUploads.js'
 import { createTestContext, type TestContext } from '../support/testApp.js'
 
 /**
@@ -47,11 +48,8 @@ beforeAll(async () => {
 })
 afterAll(() => ctx.close())
 
-function upload(bytes: Buffer, fileName: string, fields: Record<string, string> = {}) {
-  let req = engineer.post('/api/records')
-  for (const [k, v] of Object.entries(fields)) req = req.field(k, v)
-  return req.attach('file', bytes, { filename: fileName, contentType: 'application/octet-stream' })
-}
+const upload = (bytes: Buffer, fileName: string, fields: Record<string, string> = {}) =>
+  postRecord(engineer, bytes, fileName, fields)
 
 /** Everything an upload could leave behind: record rows, audit rows and files (temporary ones too). */
 function storedState() {
