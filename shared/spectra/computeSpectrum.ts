@@ -802,8 +802,7 @@ export function computeSpectrum(subject: SpectrumSubject, settings: SpectrumSett
       subStepsMax,
       freeVibrationTail: pair ? PAIR_TAIL_TEXT : TAIL_TEXT,
       accuracyTarget: ACCURACY_TEXT,
-      // A pair's histories run in JavaScript (rotd.ts pairHistories), whatever kernel a record would use.
-      kernel: pair ? 'js' : kernel.name,
+      kernel: kernel.name,
       engineVersion: ENGINE_VERSION,
       ...(pair ? { combinationRule: PAIR_COMBINATION_STATEMENT } : {}),
     },

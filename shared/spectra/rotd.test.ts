@@ -377,6 +377,23 @@ describe('computeSpectrum of a pair', () => {
     ])
   })
 
+  it('runs the histories on the kernel it is given, with the same bits, and names it in the method statement', () => {
+    const pair = { accel1MPerS2: a, accel2MPerS2: motion(600, dtS, 0.7), dtS }
+    const [wasm, js] = (['wasm-simd', 'js'] as const).map((kernel) =>
+      computeSpectrum(pair, {
+        dampingRatios: [0.05],
+        periodsS,
+        method: 'newmark-average',
+        combinations: [...combinations],
+        kernel,
+      }),
+    )
+    expect(wasm!.methodStatement.kernel).toBe('wasm-simd')
+    expect(js!.methodStatement.kernel).toBe('js')
+    for (const [c, curve] of js!.curves.entries())
+      for (const quantity of quantities) expect(wasm!.curves[c]![quantity]).toEqual(curve[quantity])
+  })
+
   it('refuses components of different lengths and an unknown combination', () => {
     const settings = { dampingRatios: [0.05], periodsS: [1], method: 'newmark-average' as const }
     expect(() =>
