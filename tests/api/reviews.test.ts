@@ -38,27 +38,16 @@ beforeAll(async () => {
     .insert(memberships)
     .values({ id: newId(), firmId, userId: bothId, roles: ['engineer', 'checker'] })
     .run()
-  const by = (email: string) => ({ firmId, projectId, userId: ctx.seed.userIds[email] ?? bothId })
-  engineerRun = insertSucceededRun(ctx.db, by('engineer@ordinate.test'), {
-    name: 'Synthetic east-west',
-    periodsS,
-    curves,
-  })
-  checkerRun = insertSucceededRun(ctx.db, by('checker@ordinate.test'), {
-    name: 'Synthetic north-south',
-    periodsS,
-    curves,
-  })
-  bothRun = insertSucceededRun(ctx.db, by('both@ordinate.test'), {
-    name: 'Synthetic vertical',
-    periodsS,
-    curves,
-  })
-  unfinishedRun = insertSucceededRun(ctx.db, by('engineer@ordinate.test'), {
-    name: 'Synthetic unfinished',
-    periodsS,
-    curves,
-  })
+  const runBy = (email: string, name: string) =>
+    insertSucceededRun(
+      ctx.db,
+      { firmId, projectId, userId: ctx.seed.userIds[email] ?? bothId },
+      { name, periodsS, curves },
+    )
+  engineerRun = runBy('engineer@ordinate.test', 'Synthetic east-west')
+  checkerRun = runBy('checker@ordinate.test', 'Synthetic north-south')
+  bothRun = runBy('both@ordinate.test', 'Synthetic vertical')
+  unfinishedRun = runBy('engineer@ordinate.test', 'Synthetic unfinished')
   markRunQueued(ctx.db, unfinishedRun)
   ;({ engineer, checker, admin, outsider } = await signInDemoMembers(ctx))
   both = await ctx.signIn('both@ordinate.test')
