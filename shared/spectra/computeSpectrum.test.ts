@@ -285,6 +285,7 @@ describe('computeSpectrum', () => {
       const solver = {
         solve: () => void solves++,
         peakBound: () => (start * PEAK_PICKING_BUDGET) / 2 ** (solves - 1),
+        stepsRun: 0,
       }
       return { oscillators, solver, solves: () => solves }
     }

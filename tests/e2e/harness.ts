@@ -24,6 +24,8 @@ export const demoMembers = {
   engineer: { email: 'engineer@ordinate.test', roles: ['engineer'] },
   checker: { email: 'checker@ordinate.test', roles: ['checker'] },
   admin: { email: 'admin@ordinate.test', roles: ['admin'] },
+  /** An engineer of the second demo firm, which has records and no runs. */
+  outsider: { email: 'outsider@ordinate.test', roles: ['engineer'] },
 } as const
 
 export interface RunningServer {

@@ -60,12 +60,16 @@ describe('page polish', () => {
     expect(overflow.length).toBeGreaterThanOrEqual(5)
     for (const past of overflow) expect(past).toBeLessThanOrEqual(0)
     await editor.screenshot({ path: artifactPath('new-comparison-target-1440.png') })
-    // No run has finished in a new database, so the runs menu is empty: it says so in the product's words.
+    // The other firm's engineer has no finished run in a new database (the demo firm's work is
+    // seeded), so their runs menu is empty: it says so in the product's words.
+    await signInThroughForm(page, env.server.url, demoMembers.outsider.email)
+    await page.goto(`${env.server.url}/comparisons/new`)
     await page.locator('[data-test="comparison-runs"]').click()
     const menu = page.locator('.n-base-select-menu')
     await menu.waitFor()
     expect(await menu.innerText()).toContain('Nothing to show yet.')
     await page.keyboard.press('Escape')
+    await signInThroughForm(page, env.server.url, demoMembers.engineer.email)
     for (const address of ['/comparisons/new', '/runs/new', '/records']) {
       await page.goto(`${env.server.url}${address}`)
       await page.getByRole('heading', { level: 1 }).waitFor()
