@@ -50,23 +50,20 @@ function urlFor(path: string, query: Record<string, QueryValue> | undefined): st
   return qs ? `${path}?${qs}` : path
 }
 
-async function errorFrom(response: Response): Promise<ApiError> {
-  let body: unknown = null
-  try {
-    body = await response.json()
-  } catch {
-    // not JSON: fall through to a message built from the status
-  }
+/** The ApiError of a failed answer: the server's error shape when the body has it, else a message built from the status. */
+export function apiErrorOf(status: number, statusText: string, body: unknown): ApiError {
   const parsed = apiErrorSchema.safeParse(body)
   if (parsed.success) {
     const { code, message, line, issues } = parsed.data.error
-    return new ApiError(response.status, code, message, { line, issues })
+    return new ApiError(status, code, message, { line, issues })
   }
-  return new ApiError(
-    response.status,
-    'http_error',
-    `The server answered ${response.status} ${response.statusText}`.trim() + '.',
-  )
+  return new ApiError(status, 'http_error', `The server answered ${status} ${statusText}`.trim() + '.')
+}
+
+async function errorFrom(response: Response): Promise<ApiError> {
+  // A body that is not JSON falls through to a message built from the status.
+  const body: unknown = await response.json().catch(() => null)
+  return apiErrorOf(response.status, response.statusText, body)
 }
 
 /**

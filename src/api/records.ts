@@ -1,5 +1,4 @@
 import { z } from 'zod'
-import { apiErrorSchema } from '../../shared/schemas/common'
 import {
   type RecordDetail,
   type RecordInfo,
@@ -10,7 +9,7 @@ import {
   recordSchema,
 } from '../../shared/schemas/records'
 import type { SourceUnits } from '../../shared/spectra/units'
-import { ApiError, apiRequest } from './client'
+import { ApiError, apiErrorOf, apiRequest } from './client'
 
 export type { RecordDetail, RecordInfo, RecordSamples } from '../../shared/schemas/records'
 
@@ -64,18 +63,9 @@ function errorFromXhr(xhr: XMLHttpRequest): ApiError {
   try {
     body = JSON.parse(xhr.responseText)
   } catch {
-    // not JSON: fall through
+    // not JSON: fall through to a message built from the status
   }
-  const parsed = apiErrorSchema.safeParse(body)
-  if (parsed.success) {
-    const { code, message, line, issues } = parsed.data.error
-    return new ApiError(xhr.status, code, message, { line, issues })
-  }
-  return new ApiError(
-    xhr.status,
-    'http_error',
-    `The server answered ${xhr.status} ${xhr.statusText}`.trim() + '.',
-  )
+  return apiErrorOf(xhr.status, xhr.statusText, body)
 }
 
 /**
