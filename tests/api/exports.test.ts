@@ -15,7 +15,7 @@ import { sheetSchema } from '../../shared/schemas/sheets.js'
 import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import type { RunQueue } from '../../server/runs/runQueue.js'
-import { binary } from '../support/exportFiles.js'
+import { binary, pdfFileText } from '../support/exportFiles.js'
 import {
   engineerUpload,
   insertRecord,
@@ -52,7 +52,7 @@ async function startRun(agent: request.Agent, recordId: string): Promise<string>
 function pdfText(pdf: Buffer): string {
   const file = path.join(scratch, `${createHash('sha256').update(pdf).digest('hex')}.pdf`)
   writeFileSync(file, pdf)
-  return execFileSync('pdftotext', ['-layout', '-enc', 'UTF-8', file, '-'], { encoding: 'utf8' })
+  return pdfFileText(file)
 }
 
 function pdfInfo(pdf: Buffer): string {

@@ -1,4 +1,3 @@
-import { execFileSync } from 'node:child_process'
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import path from 'node:path'
@@ -7,7 +6,7 @@ import type request from 'supertest'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { memberships } from '../../server/db/schema.js'
 import type { RunQueue } from '../../server/runs/runQueue.js'
-import { binary } from '../support/exportFiles.js'
+import { binary, pdfFileText } from '../support/exportFiles.js'
 import {
   engineerUpload,
   insertRecord,
@@ -113,7 +112,7 @@ describe('GET /api/comparisons/:id/export.(png|pdf)?chart=tripartite', () => {
     expect(res.status).toBe(200)
     const file = path.join(scratch, 'sheet.pdf')
     writeFileSync(file, res.body as Buffer)
-    const text = execFileSync('pdftotext', ['-enc', 'UTF-8', file, '-'], { encoding: 'utf8' })
+    const text = pdfFileText(file, { layout: false })
     expect(text).toContain('PSV (cm/s)')
     expect(text).toContain('SD (cm)')
     expect(text).toContain('PSA (g)')

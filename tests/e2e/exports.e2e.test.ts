@@ -1,4 +1,3 @@
-import { execFileSync } from 'node:child_process'
 import { readFileSync } from 'node:fs'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
@@ -11,6 +10,7 @@ import {
   signInThroughForm,
   startServer,
 } from './harness.js'
+import { pdfFileText } from '../support/exportFiles.js'
 
 let server: RunningServer
 let browser: Browser
@@ -66,7 +66,7 @@ describe('calc-package exports in the browser', () => {
     const file = artifactPath('exports-run-sheet.pdf')
     await download.saveAs(file)
     expect(readFileSync(file).subarray(0, 5).toString('latin1')).toBe('%PDF-')
-    const text = execFileSync('pdftotext', ['-layout', '-enc', 'UTF-8', file, '-'], { encoding: 'utf8' })
+    const text = pdfFileText(file)
     expect(text).toContain(recordSha256)
     expect(text).toMatch(/the\s+locally\s+adopted\s+code\s+and\s+its\s+edition\s+govern\./)
     await page.screenshot({ path: artifactPath('exports-menu.png'), fullPage: true })
