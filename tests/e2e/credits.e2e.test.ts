@@ -1,3 +1,4 @@
+import type { Page } from 'playwright-core'
 import { describe, expect, it } from 'vitest'
 import { creditPacks } from '../../shared/credits/creditPacks.js'
 import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
@@ -6,6 +7,17 @@ import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment
 const env = useBrowserTestEnvironment()
 
 const small = creditPacks[0]
+
+/** Chooses a test card, buys the chosen pack, confirms the charge and waits for the outcome. */
+async function buyWithTestCard(page: Page, card: string, outcome: RegExp) {
+  await page.locator('[data-test="test-card"]', { hasText: card }).click()
+  await page.locator('[data-test="buy-credits"]').click()
+  await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
+    /Charge .* run credits\?/,
+  )
+  await page.getByRole('button', { name: 'Charge the card' }).click()
+  await page.locator('[data-test="purchase-outcome"]').getByText(outcome).waitFor()
+}
 
 describe('the credits page', () => {
   it('lets the admin buy a pack with a test card, and the balance goes up by its credits', async () => {
@@ -23,16 +35,7 @@ describe('the credits page', () => {
 
     // naive-ui hides the native radio inputs; a person clicks the visible choice.
     await page.locator('[data-test="pack-choice"]', { hasText: small.name }).click()
-    await page.locator('[data-test="test-card"]', { hasText: 'test card: succeeds' }).click()
-    await page.locator('[data-test="buy-credits"]').click()
-    await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
-      /Charge .* run credits\?/,
-    )
-    await page.getByRole('button', { name: 'Charge the card' }).click()
-    await page
-      .locator('[data-test="purchase-outcome"]')
-      .getByText(/Bought 10 run credits/)
-      .waitFor()
+    await buyWithTestCard(page, 'test card: succeeds', /Bought 10 run credits/)
     await page.waitForFunction(
       () => document.querySelector('[data-test="credit-balance"]')?.textContent === '35',
     )
@@ -40,16 +43,7 @@ describe('the credits page', () => {
     expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/paid/)
     await page.screenshot({ path: artifactPath('credits-admin-bought.png'), fullPage: true })
 
-    await page.locator('[data-test="test-card"]', { hasText: 'declined (insufficient funds)' }).click()
-    await page.locator('[data-test="buy-credits"]').click()
-    await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
-      /Charge .* run credits\?/,
-    )
-    await page.getByRole('button', { name: 'Charge the card' }).click()
-    await page
-      .locator('[data-test="purchase-outcome"]')
-      .getByText(/insufficient funds/)
-      .waitFor()
+    await buyWithTestCard(page, 'declined (insufficient funds)', /insufficient funds/)
     expect(await balance.innerText()).toBe('35')
     expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/declined/)
     await page.screenshot({ path: artifactPath('credits-admin-declined.png'), fullPage: true })
