@@ -3,7 +3,7 @@ import type { Role } from '../../shared/schemas/accounts.js'
 import type { Invitation, InvitationPreview } from '../../shared/schemas/invitations.js'
 import type { Db } from '../db/client.js'
 import { firms, invitations, memberships, users } from '../db/schema.js'
-import { HttpError, conflict, notFound } from '../httpError.js'
+import { conflict, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import { appLink } from '../mail/links.js'
 import { invitationMail } from '../mail/templates.js'
@@ -11,7 +11,7 @@ import type { Member } from '../middleware/auth.js'
 import { recordAudit } from './audit.js'
 import { hashPassword } from './auth.js'
 import { enqueueMail } from './mail.js'
-import { hashToken, newToken } from './tokens.js'
+import { hashToken, newToken, usableLink } from './tokens.js'
 
 /** Invitations expire 72 hours after they are sent. */
 export const INVITATION_TTL_MS = 72 * 60 * 60 * 1000
@@ -159,18 +159,15 @@ function pendingInvitation(db: Db | Tx, token: string) {
     .innerJoin(users, eq(users.id, invitations.invitedBy))
     .where(eq(invitations.tokenHash, hashToken(token)))
     .get()
-  if (!row) throw notFound('This invitation')
-  if (row.acceptedAt !== null) {
-    throw new HttpError(410, 'invitation_used', 'This invitation has already been accepted. Sign in instead.')
-  }
-  if (row.expiresAt <= Date.now()) {
-    throw new HttpError(
-      410,
+  const pending = usableLink(row, (r) => r.acceptedAt !== null, {
+    missing: 'This invitation',
+    used: ['invitation_used', 'This invitation has already been accepted. Sign in instead.'],
+    expired: [
       'invitation_expired',
       'This invitation has expired. Ask an admin of the firm to invite you again.',
-    )
-  }
-  return { ...row, roles: row.roles as Role[] }
+    ],
+  })
+  return { ...pending, roles: pending.roles as Role[] }
 }
 
 /** GET /api/invitations/:token */

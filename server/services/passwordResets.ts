@@ -1,7 +1,6 @@
 import { and, eq, isNull } from 'drizzle-orm'
 import type { Db } from '../db/client.js'
 import { passwordResets, users } from '../db/schema.js'
-import { HttpError, notFound } from '../httpError.js'
 import { newId } from '../ids.js'
 import { appLink } from '../mail/links.js'
 import { passwordResetMail } from '../mail/templates.js'
@@ -10,7 +9,7 @@ import { recordAudit } from './audit.js'
 import { hashPassword } from './auth.js'
 import { enqueueMail } from './mail.js'
 import { endSessionsOfUser } from './sessions.js'
-import { hashToken, newToken } from './tokens.js'
+import { hashToken, newToken, usableLink } from './tokens.js'
 
 /** Reset links expire one hour after they are sent. */
 export const PASSWORD_RESET_TTL_MS = 60 * 60 * 1000
@@ -61,14 +60,11 @@ function usableReset(db: Db | Tx, token: string) {
     .from(passwordResets)
     .where(eq(passwordResets.tokenHash, hashToken(token)))
     .get()
-  if (!row) throw notFound('This reset link')
-  if (row.usedAt !== null) {
-    throw new HttpError(410, 'reset_used', 'This reset link has already been used. Ask for a new one.')
-  }
-  if (row.expiresAt <= Date.now()) {
-    throw new HttpError(410, 'reset_expired', 'This reset link has expired. Ask for a new one.')
-  }
-  return row
+  return usableLink(row, (r) => r.usedAt !== null, {
+    missing: 'This reset link',
+    used: ['reset_used', 'This reset link has already been used. Ask for a new one.'],
+    expired: ['reset_expired', 'This reset link has expired. Ask for a new one.'],
+  })
 }
 
 /**
