@@ -114,6 +114,13 @@ async function settlePurchase(
   const finishedAt = Date.now()
   db.transaction(
     (tx) => {
+      /** Settles the purchase if it is still pending; false when another request settled it first. */
+      const settle = (fields: Partial<typeof purchases.$inferInsert>) =>
+        tx
+          .update(purchases)
+          .set({ ...fields, finishedAt })
+          .where(and(eq(purchases.id, row.id), eq(purchases.status, 'pending')))
+          .run().changes === 1
       const base = {
         firmId: member.firmId,
         userId: member.userId,
@@ -121,18 +128,13 @@ async function settlePurchase(
         subjectId: row.id,
       }
       if (outcome.status === 'succeeded') {
-        const updated = tx
-          .update(purchases)
-          .set({
-            status: 'succeeded',
-            stripeChargeId: outcome.chargeId,
-            amountCents: outcome.amountCents,
-            currency: outcome.currency,
-            finishedAt,
-          })
-          .where(and(eq(purchases.id, row.id), eq(purchases.status, 'pending')))
-          .run()
-        if (updated.changes !== 1) return
+        const settled = settle({
+          status: 'succeeded',
+          stripeChargeId: outcome.chargeId,
+          amountCents: outcome.amountCents,
+          currency: outcome.currency,
+        })
+        if (!settled) return
         appendLedger(tx, {
           firmId: member.firmId,
           delta: row.credits,
@@ -170,17 +172,12 @@ async function settlePurchase(
           }),
         )
       } else {
-        const updated = tx
-          .update(purchases)
-          .set({
-            status: outcome.status,
-            failureCode: outcome.code,
-            failureMessage: outcome.message,
-            finishedAt,
-          })
-          .where(and(eq(purchases.id, row.id), eq(purchases.status, 'pending')))
-          .run()
-        if (updated.changes !== 1) return
+        const settled = settle({
+          status: outcome.status,
+          failureCode: outcome.code,
+          failureMessage: outcome.message,
+        })
+        if (!settled) return
         recordAudit(tx, {
           ...base,
           action: outcome.status === 'declined' ? 'credits.purchase_declined' : 'credits.purchase_failed',
