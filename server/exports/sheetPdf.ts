@@ -66,7 +66,7 @@ class SheetWriter {
     doc.font(SEMIBOLD).fontSize(10.5).fillColor(palette.ink)
     doc.text(`${number}  ${text}`, LEFT, this.y, { width: WIDTH })
     this.y = doc.y + 2
-    doc.moveTo(LEFT, this.y).lineTo(RIGHT, this.y).lineWidth(0.6).strokeColor(palette.ink).stroke()
+    rule(doc, this.y, RIGHT, 0.6, palette.ink)
     this.y += 5
   }
 
@@ -142,12 +142,7 @@ class SheetWriter {
         doc.text(c, columnX(i) + 3, this.y + 2, { width: columnWidth(i), align: align(i) })
       })
       this.y += height
-      doc
-        .moveTo(LEFT, this.y)
-        .lineTo(LEFT + tableWidth, this.y)
-        .lineWidth(0.8)
-        .strokeColor(palette.ink)
-        .stroke()
+      rule(doc, this.y, LEFT + tableWidth, 0.8, palette.ink)
     }
     this.subheading(table.title)
     this.ensure(40)
@@ -169,12 +164,7 @@ class SheetWriter {
       })
       this.y += height
     })
-    doc
-      .moveTo(LEFT, this.y)
-      .lineTo(LEFT + tableWidth, this.y)
-      .lineWidth(0.5)
-      .strokeColor(palette.ruleStrong)
-      .stroke()
+    rule(doc, this.y, LEFT + tableWidth, 0.5, palette.ruleStrong)
     this.y += 4
     for (const note of table.notes) {
       doc.font(REGULAR).fontSize(7.5).fillColor(palette.textMuted)
@@ -322,12 +312,12 @@ function drawHeader(doc: Doc, sheet: Sheet) {
     HEADER_TOP,
     { width: WIDTH, align: 'right', lineBreak: false },
   )
-  doc
-    .moveTo(LEFT, HEADER_TOP + 13)
-    .lineTo(RIGHT, HEADER_TOP + 13)
-    .lineWidth(1.2)
-    .strokeColor(palette.ink)
-    .stroke()
+  rule(doc, HEADER_TOP + 13, RIGHT, 1.2, palette.ink)
+}
+
+/** A horizontal rule at `y` from the left margin to `rightX`. */
+function rule(doc: Doc, y: number, rightX: number, lineWidthPt: number, colour: string) {
+  doc.moveTo(LEFT, y).lineTo(rightX, y).lineWidth(lineWidthPt).strokeColor(colour).stroke()
 }
 
 /** Renders the sheet; the same sheet gives the same bytes. */
