@@ -47,10 +47,15 @@ function targetInputOf(stored: ComparisonSummary['target']): ComparisonTargetInp
  * A comparison being edited, before it is saved: its inputs, the choices they leave open (the
  * damping ratios every chosen run has, the combinations its pairs have), the request body, and
  * the live drawing from POST /api/comparisons/preview, asked for once the inputs rest. The
- * preview waits while `ready` is false (saved inputs still loading) or `locked` is true.
+ * preview waits while `ready` is false (saved inputs still loading) or `readOnly` is true (locked,
+ * or not the member's to change: its inputs do not change, and the saved drawing is shown).
  */
-export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boolean>; locked: Ref<boolean> }) {
-  const { runs, ready, locked } = options
+export function useComparisonDraft(options: {
+  runs: Ref<Run[]>
+  ready: Ref<boolean>
+  readOnly: Ref<boolean>
+}) {
+  const { runs, ready, readOnly } = options
 
   const draft = reactive<ComparisonDraftInputs>({
     name: '',
@@ -152,7 +157,7 @@ export function useComparisonDraft(options: { runs: Ref<Run[]>; ready: Ref<boole
   watch(
     body,
     () => {
-      if (!ready.value || locked.value) return
+      if (!ready.value || readOnly.value) return
       live.schedule(async (signal) => {
         const request = body.value
         drawing.value = request ? await comparisonsApi.previewComparison(request, signal) : null
