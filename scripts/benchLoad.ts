@@ -171,8 +171,32 @@ interface LedgerCheck {
   runsByStatus: Record<string, number>
 }
 
-/** The ledger must balance: every run reserved once, failed runs returned once, purchases credited once. */
-function checkLedger(databasePath: string, startBalance: number, purchasedCredits: number): LedgerCheck {
+/** The ids of the demo firm's runs (those the demo data seeded, read before the load starts). */
+function demoFirmRunIds(databasePath: string): Set<string> {
+  const db = new Database(databasePath, { readonly: true })
+  try {
+    const rows = db
+      .prepare(
+        "select r.id as id from runs r join memberships m on m.firm_id = r.firm_id join users u on u.id = m.user_id where u.email = 'admin@ordinate.test'",
+      )
+      .all() as { id: string }[]
+    return new Set(rows.map((row) => row.id))
+  } finally {
+    db.close()
+  }
+}
+
+/**
+ * The ledger must balance: every run reserved once, failed runs returned once, purchases credited
+ * once, and the balance moved from the start by the purchases less the runs charged since (runs in
+ * `before`, seeded by the demo data, were paid for before the start balance was read).
+ */
+function checkLedger(
+  databasePath: string,
+  startBalance: number,
+  purchasedCredits: number,
+  before: ReadonlySet<string>,
+): LedgerCheck {
   const db = new Database(databasePath, { readonly: true })
   try {
     const problems: string[] = []
@@ -215,7 +239,7 @@ function checkLedger(databasePath: string, startBalance: number, purchasedCredit
     ).d
     if (purchaseRows !== purchasedCredits)
       problems.push(`purchases credited ${purchaseRows}, bought ${purchasedCredits}`)
-    const charged = runs.filter((r) => r.status !== 'failed').length
+    const charged = runs.filter((r) => r.status !== 'failed' && !before.has(r.id)).length
     if (balance !== startBalance + purchasedCredits - charged) {
       problems.push(`balance ${balance} ≠ ${startBalance} + ${purchasedCredits} − ${charged} charged runs`)
     }
@@ -237,6 +261,7 @@ async function main() {
     const admin = new Member(server.url, 'admin@ordinate.test', { ...stats, reads: [] })
     await admin.signIn('ordinate-demo')
     const startBalance = (await admin.call<{ balance: number }>('GET', '/credits', 200)).balance
+    const runsBefore = demoFirmRunIds(databasePath)
     let purchased = 0
     for (let i = 0; i < PACKS; i++) {
       const result = await admin.call<{ purchase: { credits: number } }>('POST', '/credits/purchases', 201, {
@@ -262,7 +287,7 @@ async function main() {
       if (o.status === 'rejected')
         stats.errors.push(o.reason instanceof Error ? o.reason.message : String(o.reason))
 
-    const ledger = checkLedger(databasePath, startBalance, purchased)
+    const ledger = checkLedger(databasePath, startBalance, purchased, runsBefore)
     console.log(`\n${wallS.toFixed(1)} s of load (new work stops at ${DURATION_S} s; runs in flight finish):`)
     console.log(
       `  uploads ${stats.uploads}, runs ${stats.runs} (${(stats.runs / wallS).toFixed(2)} runs/s), reads ${stats.reads.length}`,

@@ -169,11 +169,14 @@ export function artifactPath(name: string): string {
 }
 
 /**
- * Waits for the sign-in form. On a loaded machine a page has been seen not to draw it within
- * 30 s once (CI, 2 cores); then what the page shows is printed to stderr and it is loaded once
- * more, so a second stall fails with the page's state in the message instead of a bare timeout.
+ * Waits for the sign-in form. It has been seen not drawn (once in CI, twice on a loaded machine)
+ * with the previous member still signed in: a request of the page left behind had answered with
+ * the rolling session cookie after the cookies were cleared. signInThroughForm now leaves that
+ * page first; should the form still not come, what the page shows is printed to stderr and the
+ * cookies are cleared and the page loaded once more, so a second stall fails with the page's
+ * state in the message instead of a bare timeout.
  */
-async function waitForSignInForm(page: Page): Promise<void> {
+async function waitForSignInForm(page: Page, signInUrl: string): Promise<void> {
   const field = page.getByLabel('E-mail')
   try {
     await field.waitFor({ timeout: 20_000 })
@@ -186,7 +189,9 @@ async function waitForSignInForm(page: Page): Promise<void> {
     process.stderr.write(`sign-in form not drawn within 20 s at ${page.url()}; the page showed:\n${shown}\n`)
     await page.screenshot({ path: artifactPath('sign-in-stall.png') }).catch(() => undefined)
   }
-  await page.reload()
+  await page.goto('about:blank')
+  await page.context().clearCookies()
+  await page.goto(signInUrl)
   try {
     await field.waitFor({ timeout: 40_000 })
   } catch (err) {
@@ -210,9 +215,12 @@ export async function signInThroughForm(
   email: string,
   password = DEMO_PASSWORD,
 ) {
+  // Leave the current page first: its requests still in flight would answer with the rolling
+  // session cookie (server/app.ts) and sign the old member in again after the cookies are cleared.
+  await page.goto('about:blank')
   await page.context().clearCookies()
   await page.goto(`${baseUrl}/sign-in`)
-  await waitForSignInForm(page)
+  await waitForSignInForm(page, `${baseUrl}/sign-in`)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
   await page.getByRole('button', { name: 'Sign in' }).click()
