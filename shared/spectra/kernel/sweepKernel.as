@@ -9,12 +9,19 @@
 // interpolated linearly between record samples (into a scratch area, a block of
 // samples at a time, so the hot loop only reads them). The absolute acceleration is
 // −(cc·v + kk·u) with cc = 2ζω and kk = ω². Two oscillators advance per time step
-// as one f64x2 vector held in locals; nothing is allocated.
+// as one f64x2 vector; their state stays in locals, their coefficients are copied side
+// by side into a small static block and read from there at fixed offsets (sixteen
+// coefficient vectors and the state do not fit the machine's vector registers, and
+// values reloaded from memory spill less than the same values held in locals). Nothing
+// is allocated.
 //
 // After each step the kernel tests whether the step's interior may hold a value of
 // |u|, |v| or |A| above the running peaks (see sweepKernel.ts for the bound): first
-// with a cheap bound for both lanes at once, then, for a lane where that fails,
-// with the exact one (preciseCandidate), listing the steps that still fail.
+// with a cheap bound, then, where that fails for either lane, with the exact one
+// (preciseCandidate), for both lanes at once, listing the steps that fail both.
+// Running maxima use f64x2.pmax (b > a ? b : a, one instruction), which is the
+// JavaScript kernel's `if (x > max) max = x`; f64x2.max (NaN- and sign-of-zero-aware,
+// several instructions) serves only where jsSweep calls Math.max or Math.min.
 //
 // The operations and their order match jsSweep and preciseCandidate in sweepKernel.ts
 // exactly, so both kernels give the same bits (IEEE-754 double, no fused multiply-add).
@@ -34,6 +41,18 @@ export function heapBase(): usize {
 function lin(a: v128, x: v128, b: v128, y: v128, c: v128, f0: v128, d: v128, f1: v128): v128 {
   return f64x2.add(f64x2.add(f64x2.add(f64x2.mul(a, x), f64x2.mul(b, y)), f64x2.mul(c, f0)), f64x2.mul(d, f1))
 }
+
+/** The coefficients of the pair being swept, in the order of `coeffs`, one vector each. */
+const PAIR = memory.data(18 * 16, 16)
+
+/** Coefficient `q` of the pair being swept (a fixed address once inlined). */
+@inline
+function coefficient(q: i32): v128 {
+  return v128.load(PAIR + ((<usize>q) << 4))
+}
+
+const A11 = 0, A12 = 1, B1 = 2, C1 = 3, A21 = 4, A22 = 5, B2 = 6, C2 = 7, CC = 8, KK = 9
+const OMEGA = 10, MARGIN = 11, SIGMA = 12, INV_OMEGA_D = 13, INV_K = 14, C_OVER_K2 = 15, UP = 16, VP = 17
 
 /** Sub-steps of forcing interpolated per block (the scratch area holds one more value). */
 const BLOCK_STEPS: i32 = 4096
@@ -86,130 +105,112 @@ function forcing(record: usize, first: i32, intervals: i32, subSteps: i32, scrat
   return scratch
 }
 
-/** The exact test of one step, operation for operation as preciseCandidate in sweepKernel.ts. */
-function preciseCandidate(
-  u0: f64, v0: f64, f0: f64, f1: f64, invH: f64, eu: f64, ev: f64, ea: f64,
-  maxU: f64, maxV: f64, maxA: f64, om: f64, q: f64, sg: f64, iwd: f64, ik: f64, ck: f64, kk: f64,
-): bool {
-  const s = (f1 - f0) * invH
-  const p = u0 + f0 * ik - s * ck
-  const r = (v0 + s * ik + sg * p) * iwd
-  const w = sqrt<f64>(p * p + r * r)
-  const as = abs<f64>(s)
-  const fm = max<f64>(abs<f64>(f0), abs<f64>(f1))
-  const wv = om * w
-  const wa = kk * w
-  return (
-    min<f64>(eu + q * w, fm * ik + as * ck + w) > maxU ||
-    min<f64>(ev + q * wv, as * ik + wv) > maxV ||
-    min<f64>(ea + q * wa, fm + wa) > maxA
+/**
+ * The exact test of one step for both lanes at once, operation for operation as
+ * preciseCandidate in sweepKernel.ts. Each lane of the result is all ones where the step is a
+ * candidate.
+ */
+@inline
+function preciseTwo(
+  u0: v128, v0: v128, f0: v128, f1: v128, invH: v128,
+  eu: v128, ev: v128, ea: v128, mu: v128, mv: v128, ma: v128,
+): v128 {
+  const kk = coefficient(KK)
+  const om = coefficient(OMEGA)
+  const q = coefficient(MARGIN)
+  const sg = coefficient(SIGMA)
+  const iwd = coefficient(INV_OMEGA_D)
+  const ik = coefficient(INV_K)
+  const ck = coefficient(C_OVER_K2)
+  const s = f64x2.mul(f64x2.sub(f1, f0), invH)
+  const p = f64x2.sub(f64x2.add(u0, f64x2.mul(f0, ik)), f64x2.mul(s, ck))
+  const r = f64x2.mul(f64x2.add(f64x2.add(v0, f64x2.mul(s, ik)), f64x2.mul(sg, p)), iwd)
+  const w = f64x2.sqrt(f64x2.add(f64x2.mul(p, p), f64x2.mul(r, r)))
+  const as = f64x2.abs(s)
+  const fm = f64x2.max(f64x2.abs(f0), f64x2.abs(f1))
+  const wv = f64x2.mul(om, w)
+  const wa = f64x2.mul(kk, w)
+  return v128.or(
+    v128.or(
+      f64x2.gt(f64x2.min(f64x2.add(eu, f64x2.mul(q, w)), f64x2.add(f64x2.add(f64x2.mul(fm, ik), f64x2.mul(as, ck)), w)), mu),
+      f64x2.gt(f64x2.min(f64x2.add(ev, f64x2.mul(q, wv)), f64x2.add(f64x2.mul(as, ik), wv)), mv),
+    ),
+    f64x2.gt(f64x2.min(f64x2.add(ea, f64x2.mul(q, wa)), f64x2.add(fm, wa)), ma),
   )
 }
 
-/** Runs the exact test for one lane (`lane` 0 or 1 of the pair at `c`) and lists the step if it fails. */
+/** Lists the step for oscillator `o` with its start state, if there is room; returns the new count. */
 @inline
-function checkLane(
-  lane: i32, stride: usize, c: usize, first: i32, step: f64, u0: v128, v0: v128, f0: f64, f1: f64, invH: f64,
-  eu: v128, ev: v128, ea: v128, mu: v128, mv: v128, ma: v128, candidates: usize, capacity: i32, found: i32,
-): i32 {
-  const at = c + ((<usize>lane) << 3)
-  const uStart = lane == 0 ? f64x2.extract_lane(u0, 0) : f64x2.extract_lane(u0, 1)
-  const vStart = lane == 0 ? f64x2.extract_lane(v0, 0) : f64x2.extract_lane(v0, 1)
-  const hit = preciseCandidate(
-    uStart, vStart, f0, f1, invH,
-    lane == 0 ? f64x2.extract_lane(eu, 0) : f64x2.extract_lane(eu, 1),
-    lane == 0 ? f64x2.extract_lane(ev, 0) : f64x2.extract_lane(ev, 1),
-    lane == 0 ? f64x2.extract_lane(ea, 0) : f64x2.extract_lane(ea, 1),
-    lane == 0 ? f64x2.extract_lane(mu, 0) : f64x2.extract_lane(mu, 1),
-    lane == 0 ? f64x2.extract_lane(mv, 0) : f64x2.extract_lane(mv, 1),
-    lane == 0 ? f64x2.extract_lane(ma, 0) : f64x2.extract_lane(ma, 1),
-    load<f64>(at + 10 * stride), load<f64>(at + 11 * stride), load<f64>(at + 12 * stride),
-    load<f64>(at + 13 * stride), load<f64>(at + 14 * stride), load<f64>(at + 15 * stride),
-    load<f64>(at + 9 * stride),
-  )
-  if (!hit) return found
+function list(candidates: usize, capacity: i32, found: i32, o: i32, step: f64, u0: f64, v0: f64): i32 {
   if (found < capacity) {
     const entry = candidates + ((<usize>found) << 5)
-    store<f64>(entry, <f64>(first + lane))
+    store<f64>(entry, <f64>o)
     store<f64>(entry, step, 8)
-    store<f64>(entry, uStart, 16)
-    store<f64>(entry, vStart, 24)
+    store<f64>(entry, u0, 16)
+    store<f64>(entry, v0, 24)
   }
   return found + 1
 }
 
 /** Two oscillators as one f64x2 vector; `c` and `r` point at their first coefficient and output. */
 function sweepTwo(
-  stride: usize, samples: i32, subSteps: i32, invH: f64, first: i32, c: usize, record: usize, r: usize,
+  stride: usize, samples: i32, subSteps: i32, invStep: f64, first: i32, c: usize, record: usize, r: usize,
   scratch: usize, candidates: usize, capacity: i32, foundBefore: i32,
 ): i32 {
-  const a11 = v128.load(c)
-  const a12 = v128.load(c + stride)
-  const b1 = v128.load(c + 2 * stride)
-  const c1 = v128.load(c + 3 * stride)
-  const a21 = v128.load(c + 4 * stride)
-  const a22 = v128.load(c + 5 * stride)
-  const b2 = v128.load(c + 6 * stride)
-  const c2 = v128.load(c + 7 * stride)
-  const cc = v128.load(c + 8 * stride)
-  const kk = v128.load(c + 9 * stride)
-  const om = v128.load(c + 10 * stride)
-  const q = v128.load(c + 11 * stride)
-  const sg = v128.load(c + 12 * stride)
-  const iwd = v128.load(c + 13 * stride)
-  const bu = v128.load(c + 16 * stride)
-  const bv = v128.load(c + 17 * stride)
+  for (let q: i32 = 0; q < 18; q++) v128.store(PAIR + ((<usize>q) << 4), v128.load(c + (<usize>q) * stride))
+  const invH = f64x2.splat(invStep)
 
   const zero = f64x2.splat(0)
-  let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero
-  let lu = zero, lv = zero, la = zero
-  let found = foundBefore
+  let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero, la = zero
   let step: f64 = 0
+  let found = foundBefore
   const blockIntervals = max(1, BLOCK_STEPS / subSteps)
   for (let firstSample: i32 = 0; firstSample < samples - 1; firstSample += blockIntervals) {
     const intervals = min(blockIntervals, samples - 1 - firstSample)
     const f = forcing(record, firstSample, intervals, subSteps, scratch)
     const steps = intervals * subSteps
-    let f0s = load<f64>(f)
-    let f0 = f64x2.splat(f0s)
     for (let k: i32 = 1; k <= steps; k++) {
-      const f1s = load<f64>(f + ((<usize>k) << 3))
-      const f1 = f64x2.splat(f1s)
+      const at = f + ((<usize>k) << 3)
+      const f0 = v128.load64_splat(at - 8)
+      const f1 = v128.load64_splat(at)
       step += 1
       const kv = f64x2.splat(step)
       const u0 = u
       const v0 = v
-      u = lin(a11, u0, a12, v0, b1, f0, c1, f1)
-      v = lin(a21, u0, a22, v0, b2, f0, c2, f1)
+      u = lin(coefficient(A11), u0, coefficient(A12), v0, coefficient(B1), f0, coefficient(C1), f1)
+      v = lin(coefficient(A21), u0, coefficient(A22), v0, coefficient(B2), f0, coefficient(C2), f1)
       const au = f64x2.abs(u)
       ku = v128.bitselect(kv, ku, f64x2.gt(au, mu))
-      mu = f64x2.max(mu, au)
+      mu = f64x2.pmax(mu, au)
       const av = f64x2.abs(v)
-      mv = f64x2.max(mv, av)
-      const aa = f64x2.abs(f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
+      mv = f64x2.pmax(mv, av)
+      const aa = f64x2.abs(f64x2.add(f64x2.mul(coefficient(CC), v), f64x2.mul(coefficient(KK), u)))
       ka = v128.bitselect(kv, ka, f64x2.gt(aa, ma))
-      ma = f64x2.max(ma, aa)
-      const eu = f64x2.max(lu, au)
-      const ev = f64x2.max(lv, av)
-      const ea = f64x2.max(la, aa)
-      const wu = f64x2.add(mu, bu)
-      const w = f64x2.add(wu, f64x2.mul(f64x2.add(f64x2.add(mv, bv), f64x2.mul(sg, wu)), iwd))
-      const mw = f64x2.mul(q, w)
+      ma = f64x2.pmax(ma, aa)
+      // The larger of each value at the step's start and end (|A| at the start kept from the last step).
+      const eu = f64x2.pmax(f64x2.abs(u0), au)
+      const ev = f64x2.pmax(f64x2.abs(v0), av)
+      const ea = f64x2.pmax(la, aa)
+      la = aa
+      const wu = f64x2.add(mu, coefficient(UP))
+      const w = f64x2.add(
+        wu,
+        f64x2.mul(f64x2.add(f64x2.add(mv, coefficient(VP)), f64x2.mul(coefficient(SIGMA), wu)), coefficient(INV_OMEGA_D)),
+      )
+      const mw = f64x2.mul(coefficient(MARGIN), w)
       const flag = v128.or(
-        v128.or(f64x2.gt(f64x2.add(eu, mw), mu), f64x2.gt(f64x2.add(ev, f64x2.mul(om, mw)), mv)),
-        f64x2.gt(f64x2.add(ea, f64x2.mul(kk, mw)), ma),
+        v128.or(f64x2.gt(f64x2.add(eu, mw), mu), f64x2.gt(f64x2.add(ev, f64x2.mul(coefficient(OMEGA), mw)), mv)),
+        f64x2.gt(f64x2.add(ea, f64x2.mul(coefficient(KK), mw)), ma),
       )
       if (v128.any_true(flag)) {
-        if (i64x2.extract_lane(flag, 0) != 0)
-          found = checkLane(0, stride, c, first, step, u0, v0, f0s, f1s, invH, eu, ev, ea, mu, mv, ma, candidates, capacity, found)
-        if (i64x2.extract_lane(flag, 1) != 0)
-          found = checkLane(1, stride, c, first, step, u0, v0, f0s, f1s, invH, eu, ev, ea, mu, mv, ma, candidates, capacity, found)
+        const hit = v128.and(flag, preciseTwo(u0, v0, f0, f1, invH, eu, ev, ea, mu, mv, ma))
+        if (v128.any_true(hit)) {
+          if (i64x2.extract_lane(hit, 0) != 0)
+            found = list(candidates, capacity, found, first, step, f64x2.extract_lane(u0, 0), f64x2.extract_lane(v0, 0))
+          if (i64x2.extract_lane(hit, 1) != 0)
+            found = list(candidates, capacity, found, first + 1, step, f64x2.extract_lane(u0, 1), f64x2.extract_lane(v0, 1))
+        }
       }
-      lu = au
-      lv = av
-      la = aa
-      f0 = f1
-      f0s = f1s
     }
   }
   v128.store(r, mu)

@@ -58,6 +58,28 @@ describe('sweep kernels', () => {
     }
   })
 
+  it('agree where a value is not a number (running maxima skip NaN in both)', () => {
+    const broken = record.slice()
+    broken[150] = Number.NaN
+    const fromWasm = new Float64Array(OUTPUT_ARRAYS * count)
+    const fromJs = new Float64Array(OUTPUT_ARRAYS * count)
+    const list = () => ({ values: new Float64Array(CANDIDATE_VALUES * 20_000), capacity: 20_000 })
+    const wasm = createWasmKernel()!
+    const js = createJsKernel()
+    wasm.loadRecord(broken)
+    js.loadRecord(broken)
+    const wasmList = list()
+    const jsList = list()
+    const wasmFound = wasm.sweep(count, 3, 0.01 / 3, coeffs, fromWasm, wasmList)
+    const jsFound = js.sweep(count, 3, 0.01 / 3, coeffs, fromJs, jsList)
+    // The peaks stop at the last value before the NaN; the state at the end is NaN.
+    expect(fromJs.subarray(0, count).every((peak) => Number.isFinite(peak) && peak > 0)).toBe(true)
+    expect(Number.isNaN(fromJs[5 * count])).toBe(true)
+    expect(Array.from(fromWasm)).toEqual(Array.from(fromJs))
+    expect(wasmFound).toBe(jsFound)
+    expect(entries(wasmList.values, wasmFound)).toEqual(entries(jsList.values, jsFound))
+  })
+
   it('rejects an odd oscillator count in WebAssembly', () => {
     const wasm = createWasmKernel()!
     wasm.loadRecord(record)

@@ -6,7 +6,7 @@
  * value (candidates, resolved in closed form or from interpolants by
  * betweenSteps.ts).
  *
- * Two implementations give the same bits: a WebAssembly SIMD kernel compiled
+ * Two implementations give the same bits, NaN included: a WebAssembly SIMD kernel compiled
  * from sweepKernel.as (two oscillators per pass as one f64x2 vector) and a plain JavaScript kernel, the reference and the fallback
  * where WebAssembly SIMD is unavailable. Both evaluate, per oscillator and
  * sub-step, in this order:
@@ -227,9 +227,10 @@ export function jsSweep(
           maxA = aa
           stepA = step
         }
-        const eu = Math.max(pu, au)
-        const ev = Math.max(pv, av)
-        const ea = Math.max(pa, aa)
+        // As `max` above (and f64x2.pmax in WebAssembly): Math.max would differ only on NaN.
+        const eu = au > pu ? au : pu
+        const ev = av > pv ? av : pv
+        const ea = aa > pa ? aa : pa
         const wu = maxU + up
         const w = wu + (maxV + vp + sg * wu) * iwd
         const mu = q * w
