@@ -10,25 +10,14 @@ import type { ComparisonView } from '../../shared/schemas/comparisons.js'
 import type { Sheet, SheetField, SheetTable } from '../../shared/schemas/sheets.js'
 import { STANDARD_PERIODS_S, ordinateAtPeriod } from '../../shared/sheets/ordinateAtPeriod.js'
 import { type SheetRecordFacts, recordSection } from './runSheet.js'
-import {
-  PRODUCT_NAME,
-  type ReviewFacts,
-  SHEET_CAUTIONS,
-  plainNumber as num,
-  reviewAndDate,
-  sheetReference,
-} from './sheetParts.js'
+import { type SheetOwnerFacts, SHEET_CAUTIONS, plainNumber as num, sheetHead } from './sheetParts.js'
 
-export interface ComparisonSheetFacts {
-  productVersion: string
-  firmName: string
-  projectName: string
+export interface ComparisonSheetFacts extends SheetOwnerFacts {
   view: ComparisonView
   /** The records of each run of the comparison, by run id (two for a pair run). */
   recordsByRun: Map<string, SheetRecordFacts[]>
   /** The warnings stored with each run's spectrum (the record's and the computation's), by run id. */
   warningsByRun: Map<string, string[]>
-  review: ReviewFacts | null
 }
 
 const sig = (value: number, digits = 4) => formatSignificant(value, digits)
@@ -145,26 +134,19 @@ function scalingFields(view: ComparisonView): SheetField[] {
 export function buildComparisonSheetFromFacts(facts: ComparisonSheetFacts): Sheet {
   const { view } = facts
   const { comparison } = view
-  const dates = reviewAndDate(
-    {
-      preparedByName: comparison.createdBy.name,
-      doneAt: comparison.updatedAt ?? comparison.createdAt,
-      doneVerb: 'saved',
-    },
-    facts.review,
-  )
   const records = view.curves.flatMap((curve) =>
     (facts.recordsByRun.get(curve.runId) ?? []).map((record) => recordSection(record, true)),
   )
   return {
-    kind: 'comparison',
-    reference: sheetReference('comparison', comparison.id),
-    title: `Suite comparison: ${comparison.name}`,
-    product: { name: PRODUCT_NAME, version: facts.productVersion },
-    firmName: facts.firmName,
-    projectName: facts.projectName,
-    revision: comparison.revision,
-    ...dates,
+    ...sheetHead(facts, {
+      kind: 'comparison',
+      id: comparison.id,
+      title: `Suite comparison: ${comparison.name}`,
+      revision: comparison.revision,
+      preparedByName: comparison.createdBy.name,
+      doneAt: comparison.updatedAt ?? comparison.createdAt,
+      doneVerb: 'saved',
+    }),
     records,
     method: [
       {
@@ -182,9 +164,12 @@ export function buildComparisonSheetFromFacts(facts: ComparisonSheetFacts): Shee
     chart: comparisonChartInput(view),
     tables: [scaleFactorTable(view), suiteOrdinateTable(view)],
     comparison: { target: targetFields(view), scaling: scalingFields(view) },
-    warnings: view.curves.flatMap((curve) =>
-      (facts.warningsByRun.get(curve.runId) ?? []).map((w) => `${curve.label}: ${w}`),
-    ),
+    warnings: [
+      ...view.suiteCautions,
+      ...view.curves.flatMap((curve) =>
+        (facts.warningsByRun.get(curve.runId) ?? []).map((w) => `${curve.label}: ${w}`),
+      ),
+    ],
     cautions: [...SHEET_CAUTIONS],
   }
 }

@@ -26,14 +26,7 @@ import { CAV_LABEL, type RecordParameters } from '../../shared/spectra/recordPar
 import { SOURCE_UNIT_LABELS, STANDARD_GRAVITY_M_PER_S2, isSourceUnits } from '../../shared/spectra/units.js'
 import type { Sheet, SheetField, SheetRecord, SheetTable } from '../../shared/schemas/sheets.js'
 import { STANDARD_PERIODS_S, ordinateAtPeriod, peakOrdinate } from '../../shared/sheets/ordinateAtPeriod.js'
-import {
-  PRODUCT_NAME,
-  type ReviewFacts,
-  SHEET_CAUTIONS,
-  plainNumber as num,
-  reviewAndDate,
-  sheetReference,
-} from './sheetParts.js'
+import { type SheetOwnerFacts, SHEET_CAUTIONS, plainNumber as num, sheetHead } from './sheetParts.js'
 import type { UnitSystem } from '../../shared/schemas/me.js'
 
 /** A record as the sheet describes it: its parameters and the columns of the records table it needs. */
@@ -54,10 +47,7 @@ export type MethodFacts = Omit<MethodStatement, 'method' | 'newmarkGamma' | 'new
   kernel: string
 }
 
-export interface RunSheetFacts {
-  productVersion: string
-  firmName: string
-  projectName: string
+export interface RunSheetFacts extends SheetOwnerFacts {
   run: {
     id: string
     revision: number
@@ -76,7 +66,6 @@ export interface RunSheetFacts {
   methods: MethodFacts[]
   /** The warnings stored with the spectrum: the record's (named, for a pair) and the computation's. */
   spectrumWarnings: string[]
-  review: ReviewFacts | null
   view?: SpectrumView
   /** The units the sheet states its values in (SI unless the member chose US customary). */
   units?: UnitSystem
@@ -276,20 +265,17 @@ function methodFields(facts: RunSheetFacts): SheetField[] {
 
 export function buildRunSheetFromFacts(facts: RunSheetFacts): Sheet {
   const { run } = facts
-  const dates = reviewAndDate(
-    { preparedByName: run.createdByName, doneAt: run.finishedAt ?? run.createdAt, doneVerb: 'computed' },
-    facts.review,
-  )
   const single = facts.records.length === 1 ? facts.records[0] : undefined
   return {
-    kind: 'run',
-    reference: sheetReference('run', run.id),
-    title: `Elastic response spectrum: ${facts.subjectName}`,
-    product: { name: PRODUCT_NAME, version: facts.productVersion },
-    firmName: facts.firmName,
-    projectName: facts.projectName,
-    revision: run.revision,
-    ...dates,
+    ...sheetHead(facts, {
+      kind: 'run',
+      id: run.id,
+      title: `Elastic response spectrum: ${facts.subjectName}`,
+      revision: run.revision,
+      preparedByName: run.createdByName,
+      doneAt: run.finishedAt ?? run.createdAt,
+      doneVerb: 'computed',
+    }),
     records: facts.records.map((r) => recordSection(r, false, facts.units)),
     method: methodFields(facts),
     chart: withUsableBand(

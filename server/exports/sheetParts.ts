@@ -8,10 +8,11 @@ import { readFileSync } from 'node:fs'
 import path from 'node:path'
 import { z } from 'zod'
 import type { Sheet } from '../../shared/schemas/sheets.js'
+import { sheetReference } from '../../shared/sheets/sheetReference.js'
 import { REVIEW_STATE_LABELS } from '../../shared/vocabulary/reviewStates.js'
 import { projectRoot } from '../projectRoot.js'
 
-export const PRODUCT_NAME = 'Ordinate'
+const PRODUCT_NAME = 'Ordinate'
 
 let productVersion: string | undefined
 
@@ -40,7 +41,7 @@ export function sheetDate(ms: number): string {
   return new Date(ms).toISOString().slice(0, 10)
 }
 
-export { sheetReference } from '../../shared/sheets/sheetReference.js'
+export { sheetReference }
 
 /** A review as stored, with names resolved. `null` when the work was never submitted. */
 export interface ReviewFacts {
@@ -88,5 +89,42 @@ export function reviewAndDate(
       checkedOn: checked && review.decidedAt !== null ? sheetDate(review.decidedAt) : null,
       note,
     },
+  }
+}
+
+/** What every sheet states beside its work: the product version, the firm and project, the review. */
+export interface SheetOwnerFacts {
+  productVersion: string
+  firmName: string
+  projectName: string
+  review: ReviewFacts | null
+}
+
+/** The work a sheet is of; its kind and id make the sheet's reference. */
+export interface SheetWork extends WorkFacts {
+  kind: Sheet['kind']
+  id: string
+  title: string
+  revision: number
+}
+
+/**
+ * The head every sheet shares: its reference, title, product line, firm, project and
+ * revision, with the review block and the date of reviewAndDate.
+ */
+export function sheetHead(
+  owner: SheetOwnerFacts,
+  work: SheetWork,
+): Pick<Sheet, 'kind' | 'reference' | 'title' | 'product' | 'firmName' | 'projectName' | 'revision'> &
+  ReturnType<typeof reviewAndDate> {
+  return {
+    kind: work.kind,
+    reference: sheetReference(work.kind, work.id),
+    title: work.title,
+    product: { name: PRODUCT_NAME, version: owner.productVersion },
+    firmName: owner.firmName,
+    projectName: owner.projectName,
+    revision: work.revision,
+    ...reviewAndDate(work, owner.review),
   }
 }
