@@ -1,4 +1,4 @@
-/** Tick choice and axis markup shared by the spectrum and time-history charts. */
+/** Tick choice, grid, frame and axis markup shared by the spectrum, time-history and Fourier charts. */
 import { format } from 'd3-format'
 import { palette } from './palette.js'
 import { escapeXml, px } from './svgMarkup.js'
@@ -63,8 +63,8 @@ function gridLine(x1: number, y1: number, x2: number, y2: number, colour: string
   return `<line x1="${px(x1)}" y1="${px(y1)}" x2="${px(x2)}" y2="${px(y2)}" stroke="${colour}" stroke-width="1"/>`
 }
 
-/** Vertical grid lines for an x axis (drawn under the data). */
-export function xGridMarkup(map: (v: number) => number, ticks: Ticks, plot: PlotRect): string {
+/** Vertical grid lines for an x axis. */
+function xGridMarkup(map: (v: number) => number, ticks: Ticks, plot: PlotRect): string {
   const bottom = plot.top + plot.height
   return [
     ...ticks.grid.map((t) => gridLine(map(t), plot.top, map(t), bottom, palette.gridMinor)),
@@ -72,13 +72,38 @@ export function xGridMarkup(map: (v: number) => number, ticks: Ticks, plot: Plot
   ].join('')
 }
 
-/** Horizontal grid lines for a y axis (drawn under the data). */
-export function yGridMarkup(map: (v: number) => number, ticks: Ticks, plot: PlotRect): string {
+/** Horizontal grid lines for a y axis. */
+function yGridMarkup(map: (v: number) => number, ticks: Ticks, plot: PlotRect): string {
   const right = plot.left + plot.width
   return [
     ...ticks.grid.map((t) => gridLine(plot.left, map(t), right, map(t), palette.gridMinor)),
     ...ticks.labelled.map((t) => gridLine(plot.left, map(t), right, map(t), palette.gridMajor)),
   ].join('')
+}
+
+/** The grid of both axes, drawn under the data. */
+export function gridMarkup(
+  x: (v: number) => number,
+  xTicks: Ticks,
+  y: (v: number) => number,
+  yTicks: Ticks,
+  plot: PlotRect,
+): string {
+  return xGridMarkup(x, xTicks, plot) + yGridMarkup(y, yTicks, plot)
+}
+
+function plotRectAttributes(plot: PlotRect): string {
+  return `x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}"`
+}
+
+/** A clip path of the plot area, so curves stop at its edges. */
+export function plotClipMarkup(clipId: string, plot: PlotRect): string {
+  return `<defs><clipPath id="${clipId}"><rect ${plotRectAttributes(plot)}/></clipPath></defs>`
+}
+
+/** The frame around the plot area, drawn over the data. */
+export function plotFrameMarkup(plot: PlotRect): string {
+  return `<rect ${plotRectAttributes(plot)} fill="none" stroke="${palette.ruleStrong}"/>`
 }
 
 /** Tick marks, numbers and the axis title below a plot. `label` is escaped here. */

@@ -7,11 +7,12 @@ import { line } from 'd3-shape'
 import {
   type PlotRect,
   formatTick,
+  gridMarkup,
   logTicks,
+  plotClipMarkup,
+  plotFrameMarkup,
   xAxisMarkup,
-  xGridMarkup,
   yAxisMarkup,
-  yGridMarkup,
 } from './axes.js'
 import { palette } from './palette.js'
 import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
@@ -84,14 +85,14 @@ export function buildFourierChart(input: FourierChartInput): string {
   const parts: string[] = [
     `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${widthPx} ${heightPx}" width="${widthPx}" height="${heightPx}" font-family="${FONT_FAMILY}" font-size="12" role="img" aria-labelledby="${id}-title">`,
     `<title id="${id}-title">${escapeXml(input.title ?? 'Fourier amplitude spectrum')}</title>`,
-    `<defs><clipPath id="${id}-clip"><rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}"/></clipPath></defs>`,
+    plotClipMarkup(`${id}-clip`, plot),
     `<rect x="0" y="0" width="${widthPx}" height="${heightPx}" fill="${palette.surface}"/>`,
   ]
   if (input.title)
     parts.push(
       `<text x="${px(plot.left)}" y="20" fill="${palette.text}" font-weight="600" font-size="14">${escapeXml(input.title)}</text>`,
     )
-  parts.push(xGridMarkup(x, xTicks, plot), yGridMarkup(y, yTicks, plot))
+  parts.push(gridMarkup(x, xTicks, y, yTicks, plot))
   parts.push(`<g clip-path="url(#${id}-clip)">`)
   for (const c of input.corners ?? []) {
     if (!(c.hz >= fMin && c.hz <= fMax)) continue
@@ -116,7 +117,7 @@ export function buildFourierChart(input: FourierChartInput): string {
   }
   parts.push('</g>')
   parts.push(
-    `<rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}" fill="none" stroke="${palette.ruleStrong}"/>`,
+    plotFrameMarkup(plot),
     xAxisMarkup(x, xTicks, plot, 'Frequency (Hz)'),
     yAxisMarkup(y, yTicks, plot, 'Fourier amplitude (m/s)'),
   )

@@ -10,12 +10,13 @@ import {
   type AxisScale,
   type PlotRect,
   type Ticks,
+  gridMarkup,
   linearTicks,
   logTicks,
+  plotClipMarkup,
+  plotFrameMarkup,
   xAxisMarkup,
-  xGridMarkup,
   yAxisMarkup,
-  yGridMarkup,
 } from './axes.js'
 import { layoutLegend, wrapText } from './legendLayout.js'
 import { palette, seriesColours } from './palette.js'
@@ -273,9 +274,7 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
   parts.push(`<title id="${id}-title">${escapeXml(titleText)}</title>`)
   parts.push(`<desc id="${id}-desc">${escapeXml(description)}</desc>`)
   parts.push(`<rect x="0" y="0" width="${widthPx}" height="${heightPx}" fill="${palette.surface}"/>`)
-  parts.push(
-    `<defs><clipPath id="${id}-clip"><rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}"/></clipPath></defs>`,
-  )
+  parts.push(plotClipMarkup(`${id}-clip`, plot))
   // The scaling range as a tinted background band, under the grid and the curves.
   if (options.periodRange) {
     const lo = Math.max(options.periodRange.minS, xDomainS[0])
@@ -294,7 +293,7 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
       `<text x="${px(plot.left + plot.width - 4)}" y="${px(plot.top + plot.height - 6)}" text-anchor="end" fill="${palette.textMuted}">${escapeXml(`Beyond the usable band (T > ${Number(options.usablePeriodMaxS.toPrecision(3))} s)`)}</text>`,
     )
   }
-  parts.push(`<g>${xGridMarkup(x, xTicks, plot)}${yGridMarkup(y, yTicks, plot)}</g>`)
+  parts.push(`<g>${gridMarkup(x, xTicks, y, yTicks, plot)}</g>`)
 
   parts.push(`<g clip-path="url(#${id}-clip)">`)
   if (data.band) {
@@ -379,9 +378,7 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
     }
   }
 
-  parts.push(
-    `<rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}" fill="none" stroke="${palette.ruleStrong}"/>`,
-  )
+  parts.push(plotFrameMarkup(plot))
   parts.push(xAxisMarkup(x, xTicks, plot, 'Period T (s)'))
   parts.push(yAxisMarkup(y, yTicks, plot, spectrumAxisLabel(options.quantity, unit)))
   if (options.title) {

@@ -4,7 +4,15 @@
  */
 import { scaleLinear } from 'd3-scale'
 import { line } from 'd3-shape'
-import { type PlotRect, linearTicks, xAxisMarkup, xGridMarkup, yAxisMarkup, yGridMarkup } from './axes.js'
+import {
+  type PlotRect,
+  gridMarkup,
+  linearTicks,
+  plotClipMarkup,
+  plotFrameMarkup,
+  xAxisMarkup,
+  yAxisMarkup,
+} from './axes.js'
 import { palette } from './palette.js'
 import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
 import { type DisplayUnit, type MotionKind, checkUnit, fromSI } from './units.js'
@@ -197,8 +205,8 @@ export function buildTimeHistoryChart(
     const peakText = `peak ${peakFormat(peak)} ${p.unit} at ${peakFormat(peakTimeS)} s`
     descriptions.push(`${name} (${p.unit}), ${peakText}`)
     parts.push(
-      `<defs><clipPath id="${clip}"><rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}"/></clipPath></defs>`,
-      `<g>${xGridMarkup(x, xTicks, plot)}${yGridMarkup(y, yTicks, plot)}</g>`,
+      plotClipMarkup(clip, plot),
+      `<g>${gridMarkup(x, xTicks, y, yTicks, plot)}</g>`,
       `<line x1="${px(plot.left)}" y1="${px(y(0))}" x2="${px(plot.left + plot.width)}" y2="${px(y(0))}" stroke="${palette.ruleStrong}"/>`,
       `<g clip-path="url(#${clip})">`,
       d
@@ -208,7 +216,7 @@ export function buildTimeHistoryChart(
         ? `<circle cx="${px(x(peakTimeS))}" cy="${px(y(values[peakIndex] ?? 0))}" r="3" fill="none" stroke="${palette.ochre}" stroke-width="1.5"/>`
         : '',
       '</g>',
-      `<rect x="${px(plot.left)}" y="${px(plot.top)}" width="${px(plot.width)}" height="${px(plot.height)}" fill="none" stroke="${palette.ruleStrong}"/>`,
+      plotFrameMarkup(plot),
       yAxisMarkup(y, yTicks, plot, `${name} (${p.unit})`),
       `<text x="${px(plot.left + plot.width - 6)}" y="${px(plot.top + 14)}" text-anchor="end" fill="${palette.text}">${escapeXml(peakText)}</text>`,
     )
