@@ -29,7 +29,8 @@
 // Memory layout (arrays of `count` f64, count even; scratch holds 4097 f64):
 //   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp
 //   out:    max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end
-//   candidates: (oscillator, step, u at start, v at start), at most `capacity` written
+//   candidates: (oscillator, step, u at start, v at start), the last area in use: the kernel
+//               grows the memory where the entries reach its end
 // Steps count sub-steps from 0 (the start, at rest).
 
 /** First 16-byte-aligned address past the module's own data. */
@@ -67,14 +68,13 @@ export function sweep(
   out: usize,
   scratch: usize,
   candidates: usize,
-  capacity: i32,
 ): i32 {
   const stride = (<usize>count) << 3
   let found: i32 = 0
   for (let o: i32 = 0; o < count; o += 2) {
     found = sweepTwo(
       stride, samples, subSteps, invStep, o, coeffs + ((<usize>o) << 3), record, out + ((<usize>o) << 3),
-      scratch, candidates, capacity, found,
+      scratch, candidates, found,
     )
   }
   return found
@@ -139,23 +139,27 @@ function preciseTwo(
   )
 }
 
-/** Lists the step for oscillator `o` with its start state, if there is room; returns the new count. */
+/** Lists the step for oscillator `o` with its start state; returns the new count. */
 @inline
-function list(candidates: usize, capacity: i32, found: i32, o: i32, step: f64, u0: f64, v0: f64): i32 {
-  if (found < capacity) {
-    const entry = candidates + ((<usize>found) << 5)
-    store<f64>(entry, <f64>o)
-    store<f64>(entry, step, 8)
-    store<f64>(entry, u0, 16)
-    store<f64>(entry, v0, 24)
-  }
+function list(candidates: usize, found: i32, o: i32, step: f64, u0: f64, v0: f64): i32 {
+  const entry = candidates + ((<usize>found) << 5)
+  if (entry + 32 > (<usize>memory.size()) << 16) makeRoom()
+  store<f64>(entry, <f64>o)
+  store<f64>(entry, step, 8)
+  store<f64>(entry, u0, 16)
+  store<f64>(entry, v0, 24)
   return found + 1
+}
+
+/** Grows the memory by a quarter (at least 1 MiB); traps where it cannot. */
+function makeRoom(): void {
+  if (memory.grow(max(16, memory.size() >> 2)) < 0) unreachable()
 }
 
 /** Two oscillators as one f64x2 vector; `c` and `r` point at their first coefficient and output. */
 function sweepTwo(
   stride: usize, samples: i32, subSteps: i32, invStep: f64, first: i32, c: usize, record: usize, r: usize,
-  scratch: usize, candidates: usize, capacity: i32, foundBefore: i32,
+  scratch: usize, candidates: usize, foundBefore: i32,
 ): i32 {
   for (let q: i32 = 0; q < 18; q++) v128.store(PAIR + ((<usize>q) << 4), v128.load(c + (<usize>q) * stride))
   const invH = f64x2.splat(invStep)
@@ -206,9 +210,9 @@ function sweepTwo(
         const hit = v128.and(flag, preciseTwo(u0, v0, f0, f1, invH, eu, ev, ea, mu, mv, ma))
         if (v128.any_true(hit)) {
           if (i64x2.extract_lane(hit, 0) != 0)
-            found = list(candidates, capacity, found, first, step, f64x2.extract_lane(u0, 0), f64x2.extract_lane(v0, 0))
+            found = list(candidates, found, first, step, f64x2.extract_lane(u0, 0), f64x2.extract_lane(v0, 0))
           if (i64x2.extract_lane(hit, 1) != 0)
-            found = list(candidates, capacity, found, first + 1, step, f64x2.extract_lane(u0, 1), f64x2.extract_lane(v0, 1))
+            found = list(candidates, found, first + 1, step, f64x2.extract_lane(u0, 1), f64x2.extract_lane(v0, 1))
         }
       }
     }

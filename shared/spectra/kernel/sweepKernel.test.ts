@@ -80,6 +80,26 @@ describe('sweep kernels', () => {
     expect(entries(wasmList.values, wasmFound)).toEqual(entries(jsList.values, jsFound))
   })
 
+  it('list every candidate step, enlarging a buffer too small for them (WebAssembly: its memory too)', () => {
+    const long = Float64Array.from({ length: 5000 }, () => random() - 0.5)
+    const roomy = () => ({ values: new Float64Array(CANDIDATE_VALUES * 100_000), capacity: 100_000 })
+    // A fresh instance: its memory starts at what the record, coefficients and 16 entries need.
+    for (const kernel of [createWasmKernel()!, createJsKernel()]) {
+      kernel.loadRecord(long)
+      const small = { values: new Float64Array(CANDIDATE_VALUES * 16), capacity: 16 }
+      const large = roomy()
+      const out = new Float64Array(OUTPUT_ARRAYS * count)
+      const found = kernel.sweep(count, 8, 0.01 / 8, coeffs, out, small)
+      // More entries than two 64 KiB pages hold, so the WebAssembly kernel had to grow its memory.
+      expect(found).toBeGreaterThan(5000)
+      expect(small.capacity).toBeGreaterThanOrEqual(found)
+      expect(small.values.length).toBeGreaterThanOrEqual(CANDIDATE_VALUES * found)
+      expect(kernel.sweep(count, 8, 0.01 / 8, coeffs, out, large)).toBe(found)
+      expect(large.capacity).toBe(100_000)
+      expect(entries(small.values, found)).toEqual(entries(large.values, found))
+    }
+  })
+
   it('rejects an odd oscillator count in WebAssembly', () => {
     const wasm = createWasmKernel()!
     wasm.loadRecord(record)

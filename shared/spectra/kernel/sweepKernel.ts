@@ -72,7 +72,7 @@ export interface PairEndState {
 /** Receives each block of histories with the number of sub-steps in it; the block is reused after the call. */
 export type HistoryFold = (block: HistoryBlock, count: number) => void
 
-/** Where the kernel lists candidate steps: `capacity` entries of CANDIDATE_VALUES values. */
+/** Where the kernel lists candidate steps: room for `capacity` entries of CANDIDATE_VALUES values. */
 export interface CandidateBuffer {
   values: Float64Array
   capacity: number
@@ -89,8 +89,9 @@ export interface SweepKernel {
   /** The array last loaded, so a caller can tell whether a nested sweep replaced it. */
   readonly loadedRecord: Float64Array | null
   /**
-   * Runs the sweep; returns how many candidate steps were found. Entries beyond
-   * the buffer's capacity are counted but not written (run again with a larger buffer).
+   * Runs the sweep; returns how many candidate steps were found, all listed in `candidates`:
+   * where they do not fit, the kernel replaces its `values` with a larger array (and raises
+   * `capacity`), so a sweep never has to run again for want of room.
    */
   sweep(
     count: number,
@@ -155,6 +156,15 @@ export function preciseCandidate(
   )
 }
 
+/** Gives `candidates` room for `capacity` entries, keeping the first `kept`; returns the new array. */
+function enlarged(candidates: CandidateBuffer, kept: number, capacity: number): Float64Array {
+  const values = new Float64Array(CANDIDATE_VALUES * capacity)
+  values.set(candidates.values.subarray(0, CANDIDATE_VALUES * kept))
+  candidates.values = values
+  candidates.capacity = capacity
+  return values
+}
+
 /** The JavaScript kernel, one oscillator at a time with its state in locals. */
 export function jsSweep(
   record: Float64Array,
@@ -168,8 +178,8 @@ export function jsSweep(
   const samples = record.length
   const m = subSteps
   const invH = 1 / stepS
-  const list = candidates.values
-  const capacity = Math.min(candidates.capacity, Math.floor(list.length / CANDIDATE_VALUES))
+  let list = candidates.values
+  let capacity = Math.min(candidates.capacity, Math.floor(list.length / CANDIDATE_VALUES))
   let found = 0
   for (let o = 0; o < count; o++) {
     const a11 = coeffs[o]!
@@ -238,13 +248,15 @@ export function jsSweep(
           if (
             preciseCandidate(u0, v0, f, fNext, invH, eu, ev, ea, maxU, maxV, maxA, om, q, sg, iwd, ik, ck, kk)
           ) {
-            if (found < capacity) {
-              const at = CANDIDATE_VALUES * found
-              list[at] = o
-              list[at + 1] = step
-              list[at + 2] = u0
-              list[at + 3] = v0
+            if (found === capacity) {
+              capacity = Math.max(1024, 2 * capacity)
+              list = enlarged(candidates, found, capacity)
             }
+            const at = CANDIDATE_VALUES * found
+            list[at] = o
+            list[at + 1] = step
+            list[at + 2] = u0
+            list[at + 3] = v0
             found++
           }
         }
@@ -390,7 +402,6 @@ interface KernelExports {
     out: number,
     scratch: number,
     candidates: number,
-    capacity: number,
   ): number
   pairHistories(
     record: number,
@@ -509,6 +520,7 @@ export function createWasmKernel(): SweepKernel | null {
       new Float64Array(exports.memory.buffer, coeffsAt, COEFFICIENT_ARRAYS * count).set(
         coeffs.subarray(0, COEFFICIENT_ARRAYS * count),
       )
+      // The kernel grows the memory itself where the candidates outrun this room.
       const found = exports.sweep(
         count,
         samples,
@@ -519,11 +531,10 @@ export function createWasmKernel(): SweepKernel | null {
         outAt,
         scratchAt,
         candidatesAt,
-        capacity,
       )
       out.set(new Float64Array(exports.memory.buffer, outAt, OUTPUT_ARRAYS * count))
-      const written = CANDIDATE_VALUES * Math.min(found, capacity)
-      candidates.values.set(new Float64Array(exports.memory.buffer, candidatesAt, written))
+      if (found > capacity) enlarged(candidates, 0, Math.max(found, 2 * capacity))
+      candidates.values.set(new Float64Array(exports.memory.buffer, candidatesAt, CANDIDATE_VALUES * found))
       return found
     },
     pairHistories(first, second, subSteps, coeffs, fold) {
