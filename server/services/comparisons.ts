@@ -21,6 +21,7 @@ import {
   commonPeriodGrid,
   interpolateLogLog,
   scaleSuite,
+  suiteCautions,
   suiteStatistics,
 } from '../../shared/spectra/suite.js'
 import { sheetReference } from '../../shared/sheets/sheetReference.js'
@@ -129,6 +130,8 @@ interface LoadedRun {
   name: string
   revision: number
   pair: boolean
+  /** The record, or the pair's two components, for the suite's cautions. */
+  records: { id: string; name: string }[]
   spectrum: StoredSpectrum
 }
 
@@ -140,6 +143,10 @@ function loadRuns(db: Tx, firmId: string, runIds: string[]): LoadedRun[] {
       projectId: runs.projectId,
       status: runs.status,
       pairId: runs.pairId,
+      recordId: runs.recordId,
+      recordName: records.name,
+      component1Id: recordPairs.record1Id,
+      component2Id: recordPairs.record2Id,
       revision: runs.revision,
       name: sql<string>`coalesce(${records.name}, ${recordPairs.name}, '')`,
       result: spectra.result,
@@ -151,6 +158,18 @@ function loadRuns(db: Tx, firmId: string, runIds: string[]): LoadedRun[] {
     .where(and(eq(runs.firmId, firmId), inArray(runs.id, runIds)))
     .all()
   const byId = new Map(rows.map((r) => [r.id, r]))
+  const componentIds = rows.flatMap((r) => (r.pairId ? [r.component1Id!, r.component2Id!] : []))
+  const componentNames = new Map(
+    componentIds.length === 0
+      ? []
+      : db
+          .select({ id: records.id, name: records.name })
+          .from(records)
+          .where(inArray(records.id, componentIds))
+          .all()
+          .map((r) => [r.id, r.name]),
+  )
+  const component = (id: string | null) => ({ id: id!, name: componentNames.get(id!) ?? '' })
   return runIds.map((id) => {
     const row = byId.get(id)
     if (!row) throw notFound(`The run ${id}`)
@@ -168,6 +187,9 @@ function loadRuns(db: Tx, firmId: string, runIds: string[]): LoadedRun[] {
       name: row.name,
       revision: row.revision,
       pair: !!row.pairId,
+      records: row.pairId
+        ? [component(row.component1Id), component(row.component2Id)]
+        : [{ id: row.recordId!, name: row.recordName ?? row.name }],
       spectrum,
     }
   })
@@ -356,6 +378,10 @@ function buildDrawing(
         : null,
       grid: `${grid.length} periods from ${first} s to ${last} s`,
     },
+    suiteCautions: suiteCautions(
+      curves.map((c, k) => ({ label: labels[k] as string, records: c.run.records, pair: c.run.pair })),
+      summary.target?.definition.kind ?? null,
+    ),
     caution: COMPARISON_CAUTION,
   }
 }

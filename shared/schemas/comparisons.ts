@@ -188,6 +188,8 @@ export const comparisonViewSchema = z.object({
     combination: z.string().nullable(),
     grid: z.string(),
   }),
+  /** The suite's make-up: a record counted twice, fewer subjects than the target code usually asks for. */
+  suiteCautions: z.array(z.string()),
   caution: z.string(),
 })
 export type ComparisonView = z.infer<typeof comparisonViewSchema>

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import {
+  suiteCautions,
   commonPeriodGrid,
   interpolateLogLog,
   logLeastSquaresScaleFactor,
@@ -180,5 +181,36 @@ describe('scaleSuite', () => {
     expect(s.factors[0]).toBeCloseTo(3.6, 12)
     expect(s.scaledMean[1]).toBeCloseTo(3.6 * Math.sqrt(3), 12)
     expect(s.check.passed).toBe(true)
+  })
+})
+
+describe('suiteCautions', () => {
+  const a = { id: 'a', name: 'Record A' }
+  const b = { id: 'b', name: 'Record B' }
+  const c = { id: 'c', name: 'Record C' }
+  it('names a record counted alone and inside a pair, and the places it is counted', () => {
+    const cautions = suiteCautions(
+      [
+        { label: 'Pair AB', records: [a, b], pair: true },
+        { label: 'Record A', records: [a], pair: false },
+        { label: 'Record C', records: [c], pair: false },
+      ],
+      null,
+    )
+    expect(cautions).toEqual([
+      'The record “Record A” is counted 2 times in this suite (inside the pair “Pair AB”; alone as “Record A”), which weights it in the mean more than the others.',
+    ])
+  })
+  it('compares the suite size with the code of the target (EN 1998-1: 3, ASCE 7: 11; from memory)', () => {
+    const two = [
+      { label: 'A', records: [a], pair: false },
+      { label: 'B', records: [b], pair: false },
+    ]
+    expect(suiteCautions(two, 'en1998-1')).toEqual([
+      'The suite has 2 of the 3 ground motions that EN 1998-1 usually asks for in response-history analysis (from memory; the locally adopted code governs).',
+    ])
+    expect(suiteCautions([...two, { label: 'C', records: [c], pair: false }], 'en1998-1')).toEqual([])
+    expect(suiteCautions(two, 'asce7-two-period')[0]).toMatch(/2 of the 11 ground motions/)
+    expect(suiteCautions(two, 'user')).toEqual([])
   })
 })

@@ -296,3 +296,52 @@ export function scaleSuite(
     check: suiteCheck(periodsS, scaledMean, target, fromS, toS, meanKind),
   }
 }
+
+/** One subject of a suite as its cautions see it: a run of one record, or of a pair of two. */
+export interface SuiteSubject {
+  /** The run's name in the comparison (its legend label). */
+  label: string
+  /** The record (one) or the pair's two components. */
+  records: { id: string; name: string }[]
+  pair: boolean
+}
+
+/**
+ * The usual smallest suite for response-history analysis under a code, by the target's kind:
+ * ASCE 7 asks for at least 11 ground motions (pairs, for three-dimensional analysis) and
+ * EN 1998-1 for at least 3 (both from memory; the locally adopted edition governs).
+ */
+export const SUITE_MINIMUMS: Readonly<Record<string, { code: string; count: number; unit: string }>> = {
+  'asce7-two-period': { code: 'ASCE 7', count: 11, unit: 'ground motions (pairs for 3-D analysis)' },
+  'en1998-1': { code: 'EN 1998-1', count: 3, unit: 'ground motions' },
+}
+
+/**
+ * Cautions about the make-up of a suite: a record counted more than once (alone and inside a
+ * pair, or in two runs), and fewer subjects than the target code's usual minimum.
+ */
+export function suiteCautions(subjects: readonly SuiteSubject[], targetKind: string | null): string[] {
+  const cautions: string[] = []
+  const seen = new Map<string, { name: string; in: string[] }>()
+  for (const subject of subjects) {
+    for (const record of subject.records) {
+      const entry = seen.get(record.id) ?? { name: record.name, in: [] }
+      entry.in.push(subject.pair ? `inside the pair “${subject.label}”` : `alone as “${subject.label}”`)
+      seen.set(record.id, entry)
+    }
+  }
+  for (const { name, in: places } of seen.values()) {
+    if (places.length > 1) {
+      cautions.push(
+        `The record “${name}” is counted ${places.length} times in this suite (${places.join('; ')}), which weights it in the mean more than the others.`,
+      )
+    }
+  }
+  const minimum = targetKind ? SUITE_MINIMUMS[targetKind] : undefined
+  if (minimum && subjects.length < minimum.count) {
+    cautions.push(
+      `The suite has ${subjects.length} of the ${minimum.count} ${minimum.unit} that ${minimum.code} usually asks for in response-history analysis (from memory; the locally adopted code governs).`,
+    )
+  }
+  return cautions
+}

@@ -1,7 +1,7 @@
 import { eq } from 'drizzle-orm'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type request from 'supertest'
-import { auditLog, reviews } from '../../server/db/schema.js'
+import { auditLog, recordPairs, reviews, runs } from '../../server/db/schema.js'
 import { insertSucceededRun, markRunQueued } from '../support/comparisonFixtures.js'
 import { createTestContext, signInDemoMembers, type TestContext } from '../support/testApp.js'
 
@@ -158,6 +158,45 @@ describe('POST /api/comparisons', () => {
       .send({ name: 'Pair gm', runIds: [pairRun], dampingRatio: 0.05, combination: 'geomean' })
     expect(missing.status).toBe(400)
     expect(missing.body.error.code).toBe('combination_not_in_run')
+  })
+
+  it('cautions when a record is counted twice and when the suite is smaller than the code usually asks for', async () => {
+    const owner = {
+      firmId: ctx.seed.firmIds[0] as string,
+      projectId: ctx.seed.projectIds[0] as string,
+      userId: ctx.seed.userIds['engineer@ordinate.test'] as string,
+    }
+    const curves = [{ dampingRatio: 0.05, combination: 'rotd100' as const, psaG: [0.8, 0.8, 0.8] }]
+    const pairRun = insertSucceededRun(ctx.db, owner, {
+      name: 'Synthetic pair Q',
+      periodsS,
+      pair: true,
+      curves,
+    })
+    const pair = ctx.db.select().from(runs).where(eq(runs.id, pairRun)).get()!
+    const component = ctx.db.select().from(recordPairs).where(eq(recordPairs.id, pair.pairId!)).get()!
+    const alone = insertSucceededRun(ctx.db, owner, {
+      name: 'Synthetic pair Q, first component',
+      periodsS,
+      recordId: component.record1Id,
+      curves: [{ dampingRatio: 0.05, psaG: [0.6, 0.6, 0.6] }],
+    })
+    const asce = { kind: 'asce7-two-period', sdsG: 1, sd1G: 0.6, tlS: 8 }
+    const res = await engineer
+      .post('/api/comparisons/preview')
+      .send({ name: 'Suite Q', runIds: [pairRun, alone], dampingRatio: 0.05, target: asce })
+    expect(res.status).toBe(200)
+    expect(res.body.suiteCautions).toHaveLength(2)
+    expect(res.body.suiteCautions[0]).toMatch(
+      /is counted 2 times in this suite \(inside the pair .*; alone as /,
+    )
+    // ASCE 7: at least 11 ground motions; from memory, as the caution says.
+    expect(res.body.suiteCautions[1]).toMatch(/has 2 of the 11 ground motions .* ASCE 7 usually asks for/)
+    // A suite of distinct records with no code target has nothing to caution about.
+    const plain = await engineer
+      .post('/api/comparisons/preview')
+      .send({ runIds: [runA, runB], dampingRatio: 0.05 })
+    expect(plain.body.suiteCautions).toEqual([])
   })
 
   it('responds 400 when a run has no curve at the damping ratio', async () => {

@@ -1,6 +1,6 @@
 import { eq } from 'drizzle-orm'
 import type { Db } from '../../server/db/client.js'
-import { recordPairs, runs, spectra } from '../../server/db/schema.js'
+import { recordPairs, records, runs, spectra } from '../../server/db/schema.js'
 import { newId } from '../../server/ids.js'
 import { STANDARD_GRAVITY_M_PER_S2 } from '../../shared/spectra/units.js'
 import { insertRecord } from './runFixtures.js'
@@ -20,10 +20,23 @@ export interface FixtureCurve {
 export function insertSucceededRun(
   db: Db,
   owner: { firmId: string; projectId: string; userId: string },
-  options: { name: string; periodsS: number[]; curves: FixtureCurve[]; pair?: boolean },
+  options: {
+    name: string
+    periodsS: number[]
+    curves: FixtureCurve[]
+    pair?: boolean
+    /** A run of this existing record (or a pair with it as first component) instead of a new one. */
+    recordId?: string
+  },
 ): string {
   const uploader = { firmId: owner.firmId, projectId: owner.projectId, uploadedBy: owner.userId }
-  const record = insertRecord(db, uploader, { name: options.name, points: 200 })
+  const record = options.recordId
+    ? db
+        .select({ id: records.id, sha256: records.sha256 })
+        .from(records)
+        .where(eq(records.id, options.recordId))
+        .get()!
+    : insertRecord(db, uploader, { name: options.name, points: 200 })
   let pairId: string | null = null
   if (options.pair) {
     const second = insertRecord(db, uploader, { name: `${options.name} (second component)`, points: 200 })
