@@ -22,14 +22,10 @@ export type Invitation = z.infer<typeof invitationSchema>
 export const invitationListSchema = listOf(invitationSchema)
 export type InvitationList = z.infer<typeof invitationListSchema>
 
-/** GET /api/invitations/:token: what the invitee sees before accepting. */
-export const invitationPreviewSchema = z.object({
-  email: z.string(),
-  firmName: z.string(),
-  roles: z.array(roleSchema),
-  invitedByName: z.string(),
-  expiresAt: z.number(),
-})
+/** GET /api/invitations/:token: what the invitee sees before accepting, and which firm it is. */
+export const invitationPreviewSchema = invitationSchema
+  .pick({ email: true, roles: true, invitedByName: true, expiresAt: true })
+  .extend({ firmName: z.string() })
 export type InvitationPreview = z.infer<typeof invitationPreviewSchema>
 
 /** POST /api/invitations/:token/accept */
