@@ -3,14 +3,13 @@ import { MAX_UPLOAD_BYTES } from '../../../shared/schemas/records'
 import { type RecordHeaderInfo, inspectRecordHeader } from '../../../shared/spectra/recordHeader'
 import { SOURCE_UNITS } from '../../../shared/spectra/units'
 import { ApiError } from '@/api/client'
-import type { Project } from '@/api/projects'
 import { messageFor } from '@/composables/useErrorReporter'
 import { SOURCE_UNIT_LABELS, formatBytes } from './recordFormat'
 
 /**
  * What the one-file and the many-file uploads share about a chosen file, before and after it is
- * sent: the name it suggests, what its first lines say, the words for its layout, the choices of
- * units and projects, and the server's refusal with the line of the file.
+ * sent: the name it suggests, what its first lines say, the words for its layout, the choice of
+ * units, and the server's refusal with the line of the file.
  */
 
 /** The file's name without its extension: the record's name unless the engineer gives one. */
@@ -57,10 +56,3 @@ export function refusalWithLine(err: unknown): string {
 }
 
 export const UNIT_OPTIONS = SOURCE_UNITS.map((u) => ({ label: SOURCE_UNIT_LABELS[u], value: u }))
-
-/** The projects a record may go to: the open ones, the default named as such. */
-export function projectOptions(projects: readonly Project[]) {
-  return projects
-    .filter((p) => !p.archived)
-    .map((p) => ({ label: p.isDefault ? `${p.name} (default)` : p.name, value: p.id }))
-}
