@@ -162,6 +162,61 @@ describe('rotatedPeaks', () => {
     }
   })
 
+  it('gives the peaks of a full scan in the same arithmetic, bit for bit, where the skip tests are at their edges', () => {
+    // The skip tests must never skip a sample that raises a peak, so the search must give exactly
+    // the definition max_i |x_i·cos θ + y_i·sin θ| computed the same way (cos 90° = 0, sin 90° = 1,
+    // as in rotd.ts), not merely something close: ties (repeated samples, an orbit traced twice),
+    // slow motion near the turning points, a sudden jump far outside, nearly polarised motion.
+    const scan = (h1: Float64Array, h2: Float64Array) => {
+      const out = new Float64Array(ROTATION_ANGLE_COUNT)
+      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+        const c = k === 90 ? 0 : Math.cos((k * Math.PI) / 180)
+        const s = k === 90 ? 1 : Math.sin((k * Math.PI) / 180)
+        for (let i = 0; i < h1.length; i++)
+          out[k] = Math.max(out[k] as number, Math.abs((h1[i] as number) * c + (h2[i] as number) * s))
+      }
+      return out
+    }
+    const random = mulberry32(2024)
+    const n = 12000
+    const families: [string, (i: number) => [number, number]][] = [
+      [
+        'slow growing orbit',
+        (i) => [(1 + i / n) * Math.cos(i * 0.002), 0.7 * (1 + i / n) * Math.sin(i * 0.002 + 0.3)],
+      ],
+      [
+        'each sample three times',
+        (i) => [Math.sin(Math.floor(i / 3) * 0.05), Math.cos(Math.floor(i / 3) * 0.031)],
+      ],
+      ['one orbit traced twice', (i) => [Math.cos((i % 3000) * 0.0021), 0.4 * Math.sin((i % 3000) * 0.0021)]],
+      [
+        'a jump a million times larger',
+        (i) => [(i === 7000 ? 1e6 : 1) * Math.sin(i * 0.013), Math.cos(i * 0.017)],
+      ],
+      ['nearly polarised', (i) => [Math.sin(i * 0.01), 0.5 * Math.sin(i * 0.01) + 1e-9 * Math.cos(i * 0.3)]],
+      ['noise', () => [random() - 0.5, random() - 0.5]],
+    ]
+    const lengths = [4096, 1, 65, 700, 64, 3000]
+    for (const [name, f] of families) {
+      const h1 = new Float64Array(n)
+      const h2 = new Float64Array(n)
+      for (let i = 0; i < n; i++) [h1[i], h2[i]] = f(i)
+      const expected = scan(h1, h2)
+      const blocks = new DirectionalPeaks()
+      for (let start = 0, b = 0; start < n; b++) {
+        const count = Math.min(lengths[b % lengths.length] as number, n - start)
+        blocks.addMany(h1.subarray(start), h2.subarray(start), count)
+        start += count
+      }
+      const single = new DirectionalPeaks()
+      for (let i = 0; i < n; i++) single.add(h1[i] as number, h2[i] as number)
+      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+        expect(blocks.peaks[k], `${name}, blocks, θ = ${k}°`).toBe(expected[k])
+        expect(single.peaks[k], `${name}, one at a time, θ = ${k}°`).toBe(expected[k])
+      }
+    }
+  })
+
   it('gives the same peak in every direction for circular motion', () => {
     // h₁ = cos ωt, h₂ = sin ωt: |cos(ωt − θ)| reaches 1 in every direction when ωt steps by 0.1°.
     const n = 3601

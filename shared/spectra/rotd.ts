@@ -33,266 +33,412 @@ const SECOND_COMPONENT = 90
 
 /** Directions around the full circle: j and j + 180 are opposite, with the same peak. */
 const FULL_TURN = 2 * ROTATION_ANGLE_COUNT
-/** The polygon is rebuilt after this many raised samples (a stale one is still exact, only looser). */
-const RAISES_PER_REBUILD = 16
+/** Direction cosines around the full circle; for j ≥ 180 the negated ones, so a projection there is exactly minus the one at j − 180. */
+const TURN_COS = new Float64Array(FULL_TURN)
+const TURN_SIN = new Float64Array(FULL_TURN)
+for (let j = 0; j < FULL_TURN; j++) {
+  const k = j % ROTATION_ANGLE_COUNT
+  TURN_COS[j] = j < ROTATION_ANGLE_COUNT ? (COS[k] as number) : -(COS[k] as number)
+  TURN_SIN[j] = j < ROTATION_ANGLE_COUNT ? (SIN[k] as number) : -(SIN[k] as number)
+}
+/**
+ * A sample is skipped only if it stays below SHRINK × the peaks it is tested against. Rounding
+ * moves a projection by about 1e-16 of the sample's length; with samples within NEAR × the
+ * largest peak and the smallest peak at least THIN_POLYGON × the largest, that is below 1e-13 of
+ * any peak, far inside the margin 2⁻²⁴ ≈ 6e-8, so a skipped sample provably raises no peak.
+ */
+const SHRINK = 1 - 2 ** -24
+/** The walk over the directions a sample may raise continues while it is within this (wider) margin of the peak. */
+const WALK_SHRINK = 1 - 2 ** -23
+/** The polygon tests are used for samples within this many times the largest peak (larger ones are scanned in full). */
+const NEAR = 4
+/** Smallest peak, relative to the largest, for the polygon tests to be used (a nearly polarised motion is scanned in full). */
+const THIN_POLYGON = 1e-6
+/** What a visit found: the sample is not within WALK_SHRINK of the peak, is within it, or raised it. */
+const NOT_NEAR = 0
+const NEAR_ONLY = 1
+const RAISED = 2
+/** Blocks longer than this are seeded with their extreme samples first (see addMany). */
+const SEEDED_BLOCK = 64
+/** The seeds are looked for among every SEED_STRIDE-th sample: any samples serve, the extremes only tighten the polygon. */
+const SEED_STRIDE = 8
 
 /**
  * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
- * sample at a time (add) or a block at a time (addMany, which feeds the block's extreme samples
- * first). Exact, and fast because most samples cannot raise any peak:
- * - |x cosθ + y sinθ| ≤ √(x² + y²), so a sample inside the circle of the smallest peak is skipped;
- * - the samples that set the peaks, with their mirror images, span a convex polygon Q inside the
- *   convex hull of every sample so far; a sample inside Q is a convex combination of earlier
- *   samples, so it cannot raise any peak and is skipped. Q's vertices are in angular order, so
- *   finding the edge facing a sample is a short walk from the edge that faced the previous one;
- * - a sample p outside Q can only beat Q's support h_Q(θ) (≤ the peak) on one arc of directions,
- *   the normals of the part of Q it sees, and that arc holds the normal of the edge it faces. The
- *   sampled directions in the arc are contiguous and include one of the two directions beside that
- *   normal (the last one set by the edge's first vertex, the first one set by the next), so the
- *   search walks outward from those two while p·d > h_Q and raises any peak p beats on the way.
- * Q is rebuilt from the current setters every few samples that raised a peak; between rebuilds it
- * is older and smaller, which keeps every test exact and only makes it looser.
+ * sample at a time (add) or a block at a time (addMany). Exact: the peaks are those of a full
+ * scan of every sample in every direction, bit for bit; most samples are skipped by tests that
+ * provably cannot skip one that raises a peak.
+ *
+ * The samples that raise nothing are those in the polygon C = {q : |q·d_k| ≤ peak_k for all k}
+ * (d_k the unit vector at k°). Around the full circle, directions j and j + 180 share a peak, and
+ * the sample that set direction j (its setter, signed so its projection is positive) touches C's
+ * edge line q·d_j = peak_j. Consecutive directions with the same setter form a run; the setters
+ * of the runs, in direction order, go round C counter-clockwise. Between the setters s_a and s_b
+ * of two neighbouring directions a and b = a + 1 (the last of one run, the first of the next), C's
+ * boundary runs along the two edge lines of a and b only, because no other direction lies between
+ * them. So within that wedge, a sample q is in C exactly when q·d_a ≤ peak_a and q·d_b ≤ peak_b:
+ * - the floor test: |q·d| ≤ |q|, so a sample inside the circle of the smallest peak is skipped;
+ * - the wedge test: a sample in the wedge of the last sample (two cross products with s_a and
+ *   s_b), within SHRINK of the peaks of a and b (two projections), is skipped;
+ * - otherwise the sample's wedge is found by walking from run to run; if it is still within the
+ *   wedge's two peaks it is skipped, else it beats (or nearly beats) a or b. The directions a
+ *   sample beats are one arc (C is convex), so the search walks outward from a or b while the
+ *   sample stays within WALK_SHRINK of the peak and raises every peak it beats on the way, then
+ *   makes the directions it now sets one run (and their opposites the mirror run).
+ * Samples far outside (NEAR), a polygon too thin for the tests (THIN_POLYGON), a wedge of 180°
+ * or more (a rounding tie) and the first samples, before every peak is positive, are scanned in
+ * full. The test sets are always those of the current peaks: nothing is rebuilt.
  */
 export class DirectionalPeaks {
   /** The peak in each direction θ = k°, k = 0…179. */
   readonly peaks = new Float64Array(ROTATION_ANGLE_COUNT)
-  /** The sample (signed so its projection is positive) that set each peak. */
-  private readonly setterX = new Float64Array(ROTATION_ANGLE_COUNT)
-  private readonly setterY = new Float64Array(ROTATION_ANGLE_COUNT)
-  /** The peaks when Q was built: Q's support in each direction. */
-  private readonly builtPeaks = new Float64Array(ROTATION_ANGLE_COUNT)
-  /** Q's vertices, counter-clockwise without repeats, and the first direction (0…359) each one set. */
-  private readonly vertexX = new Float64Array(FULL_TURN)
-  private readonly vertexY = new Float64Array(FULL_TURN)
-  private readonly vertexFirstDirection = new Int32Array(FULL_TURN)
-  private vertices = 0
-  private edge = 0
-  private floor2 = 0
-  private raisesSinceBuild = 0
-  /** The block's largest projections on the seed axes (both ways) and the samples that reach them. */
-  private readonly seedValue = new Float64Array(2 * SEED_AXES)
-  private readonly seedIndex = new Int32Array(2 * SEED_AXES)
-  /** Whether the current sample raised a peak (set by visit). */
-  private raised = false
+  /** The setter of each direction j = 0…359 (for j ≥ 180 the mirror image of that of j − 180). */
+  private readonly setterX = new Float64Array(FULL_TURN)
+  private readonly setterY = new Float64Array(FULL_TURN)
+  /** The first and last direction of the run that holds direction j. */
+  private readonly runStart = new Int32Array(FULL_TURN)
+  private readonly runEnd = new Int32Array(FULL_TURN)
+  /** Whether every peak is positive and the runs are set up. */
+  private usable = false
+  /** The current wedge, by the first direction b of its second run (a = b − 1). */
+  private boundary = 0
+  /** The current wedge's test values: s_a, s_b, then cos, sin and SHRINK × peak of a, then of b. */
+  private readonly wedge = new Float64Array(10)
+  /** A lower bound on the smallest peak (exact when refreshed), the direction that had it and whether that peak has risen since. */
+  private floor = 0
+  private floorDirection = 0
+  private floorStale = false
+  /** The largest peak. */
+  private top = 0
 
   reset(): void {
     this.peaks.fill(0)
     this.setterX.fill(0)
     this.setterY.fill(0)
-    this.builtPeaks.fill(0)
-    this.vertices = 0
-    this.edge = 0
-    this.floor2 = 0
-    this.raisesSinceBuild = 0
+    this.usable = false
+    this.boundary = 0
+    this.floor = 0
+    this.floorDirection = 0
+    this.floorStale = false
+    this.top = 0
+    this.loadWedge()
   }
 
   add(x: number, y: number): void {
-    if (x * x + y * y > this.floor2) this.addOutsideFloor(x, y)
+    const floor = this.floor * SHRINK
+    if (x * x + y * y > floor * floor) this.addOutsideFloor(x, y)
   }
 
   /**
    * Adds samples (xs[i], ys[i]) for i < count. The peaks are a maximum over a set of samples, so
    * the order does not change them: the block's extreme samples along 0°, 45°, 90° and 135° (both
-   * ways; among every fourth sample) go first and Q is rebuilt around them, so that most of the block then falls inside Q or
-   * the floor circle and is skipped (a tight loop, the rest out of line).
+   * ways; among every SEED_STRIDE-th sample) go first, so that most of the block then falls
+   * inside the floor circle or its wedge and is skipped in a tight loop (the rest out of line).
    */
   addMany(xs: Float64Array, ys: Float64Array, count: number): void {
     if (count > SEEDED_BLOCK) {
-      const best = this.seedValue
-      const at = this.seedIndex
-      best.fill(-Infinity)
-      at.fill(0)
-      for (let i = 0; i < count; i += SEED_STRIDE) {
-        const x = xs[i] as number
-        const y = ys[i] as number
-        for (let axis = 0; axis < SEED_AXES; axis++) {
-          const projection = x * (SEED_X[axis] as number) + y * (SEED_Y[axis] as number)
-          if (projection > (best[axis] as number)) {
-            best[axis] = projection
-            at[axis] = i
-          }
-          if (-projection > (best[axis + SEED_AXES] as number)) {
-            best[axis + SEED_AXES] = -projection
-            at[axis + SEED_AXES] = i
-          }
-        }
-      }
-      for (let seed = 0; seed < 2 * SEED_AXES; seed++) {
-        const i = at[seed] as number
+      const seeds = blockExtremes(xs, ys, count)
+      for (let seed = 0; seed < SEEDS; seed++) {
+        const i = seeds[seed] as number
         this.add(xs[i] as number, ys[i] as number)
       }
-      if (this.raisesSinceBuild > 0) this.rebuild()
     }
-    const vx = this.vertexX
-    const vy = this.vertexY
+    if (this.floorStale) this.refreshFloor()
+    // The tests' values in locals, reloaded after every sample handled out of line.
+    const w = this.wedge
+    let shrunk = this.floor * SHRINK
+    let floor2 = shrunk * shrunk
+    let x0 = w[0] as number
+    let y0 = w[1] as number
+    let x1 = w[2] as number
+    let y1 = w[3] as number
+    let ca = w[4] as number
+    let sa = w[5] as number
+    let ta = w[6] as number
+    let cb = w[7] as number
+    let sb = w[8] as number
+    let tb = w[9] as number
     for (let i = 0; i < count; i++) {
       const x = xs[i] as number
       const y = ys[i] as number
-      if (x * x + y * y <= this.floor2) continue
-      // In line, the first test of facingEdge: inside Q through the edge that faced the last sample.
-      const n = this.vertices
-      if (n >= 3) {
-        const e = this.edge
-        const next = e + 1 === n ? 0 : e + 1
-        const x0 = vx[e] as number
-        const y0 = vy[e] as number
-        const x1 = vx[next] as number
-        const y1 = vy[next] as number
-        if (x0 * y - y0 * x >= 0 && x1 * y - y1 * x <= 0 && (x1 - x0) * (y - y0) - (y1 - y0) * (x - x0) >= 0)
-          continue
-      }
+      if (x * x + y * y <= floor2) continue
+      if (x0 * y - y0 * x >= 0 && x1 * y - y1 * x <= 0 && x * ca + y * sa <= ta && x * cb + y * sb <= tb)
+        continue
       this.addOutsideFloor(x, y)
+      shrunk = this.floor * SHRINK
+      floor2 = shrunk * shrunk
+      x0 = w[0] as number
+      y0 = w[1] as number
+      x1 = w[2] as number
+      y1 = w[3] as number
+      ca = w[4] as number
+      sa = w[5] as number
+      ta = w[6] as number
+      cb = w[7] as number
+      sb = w[8] as number
+      tb = w[9] as number
     }
   }
 
+  /** A sample outside the floor circle that the current wedge's test did not skip. */
   private addOutsideFloor(x: number, y: number): void {
-    if (this.vertices < 3) {
+    const near = NEAR * this.top
+    if (!this.usable || !(x * x + y * y <= near * near) || !this.locate(x, y)) {
       this.raiseEverywhere(x, y)
       return
     }
-    const facing = this.facingEdge(x, y)
-    if (facing === INSIDE) return
-    if (facing === UNKNOWN) this.raiseEverywhere(x, y)
-    else this.raiseAround(x, y, facing)
+    const b = this.boundary
+    const a = b === 0 ? FULL_TURN - 1 : b - 1
+    const alongA = x * (TURN_COS[a] as number) + y * (TURN_SIN[a] as number)
+    const alongB = x * (TURN_COS[b] as number) + y * (TURN_SIN[b] as number)
+    if (alongA > (this.peaks[a % ROTATION_ANGLE_COUNT] as number) * SHRINK) this.raiseFrom(x, y, a)
+    else if (alongB > (this.peaks[b % ROTATION_ANGLE_COUNT] as number) * SHRINK) this.raiseFrom(x, y, b)
   }
 
   /**
-   * INSIDE when (x, y) is inside Q; else the index of the edge it lies beyond; UNKNOWN when the walk
-   * finds no wedge (a polygon too thin to tell, for a nearly polarised motion).
+   * Finds the wedge that holds (x, y), walking run by run from the current one, and makes it the
+   * current wedge; false if the walk fails or the wedge is 180° or wider.
    */
-  private facingEdge(x: number, y: number): number {
-    const vx = this.vertexX
-    const vy = this.vertexY
-    const n = this.vertices
-    let e = this.edge
-    for (let steps = 0; steps <= n; steps++) {
-      const next = e + 1 === n ? 0 : e + 1
-      const x0 = vx[e] as number
-      const y0 = vy[e] as number
-      if (x0 * y - y0 * x < 0) {
-        e = e === 0 ? n - 1 : e - 1
+  private locate(x: number, y: number): boolean {
+    const sx = this.setterX
+    const sy = this.setterY
+    let b = this.boundary
+    for (let steps = 0; steps < FULL_TURN; steps++) {
+      const a = b === 0 ? FULL_TURN - 1 : b - 1
+      if ((sx[a] as number) * y - (sy[a] as number) * x < 0) {
+        b = this.runStart[a] as number
         continue
       }
-      const x1 = vx[next] as number
-      const y1 = vy[next] as number
-      if (x1 * y - y1 * x > 0) {
-        e = next
+      if ((sx[b] as number) * y - (sy[b] as number) * x > 0) {
+        const end = this.runEnd[b] as number
+        b = end + 1 === FULL_TURN ? 0 : end + 1
         continue
       }
-      this.edge = e
-      return (x1 - x0) * (y - y0) - (y1 - y0) * (x - x0) >= 0 ? INSIDE : e
+      if (!((sx[a] as number) * (sy[b] as number) - (sy[a] as number) * (sx[b] as number) > 0)) return false
+      if (b !== this.boundary) {
+        this.boundary = b
+        this.loadWedge()
+      }
+      return true
     }
-    return UNKNOWN
+    return false
   }
 
-  /** Raises direction j (0…359) if (x, y) beats it; returns whether (x, y) beats Q's support there. */
-  private visit(x: number, y: number, j: number): boolean {
+  /** The current wedge's test values; ones no sample passes while the polygon is not usable. */
+  private loadWedge(): void {
+    const w = this.wedge
+    if (!this.usable || !(this.floor > THIN_POLYGON * this.top)) {
+      w.fill(0)
+      w[6] = -Infinity
+      w[9] = -Infinity
+      return
+    }
+    const b = this.boundary
+    const a = b === 0 ? FULL_TURN - 1 : b - 1
+    w[0] = this.setterX[a] as number
+    w[1] = this.setterY[a] as number
+    w[2] = this.setterX[b] as number
+    w[3] = this.setterY[b] as number
+    w[4] = TURN_COS[a] as number
+    w[5] = TURN_SIN[a] as number
+    w[6] = (this.peaks[a % ROTATION_ANGLE_COUNT] as number) * SHRINK
+    w[7] = TURN_COS[b] as number
+    w[8] = TURN_SIN[b] as number
+    w[9] = (this.peaks[b % ROTATION_ANGLE_COUNT] as number) * SHRINK
+  }
+
+  /** Raises direction j (0…359) if (x, y) beats its peak; says whether it did, or came within WALK_SHRINK of it. */
+  private visit(x: number, y: number, j: number): number {
+    const along = x * (TURN_COS[j] as number) + y * (TURN_SIN[j] as number)
     const k = j < ROTATION_ANGLE_COUNT ? j : j - ROTATION_ANGLE_COUNT
-    const projection = x * (COS[k] as number) + y * (SIN[k] as number)
-    const along = j < ROTATION_ANGLE_COUNT ? projection : -projection
-    if (!(along > (this.builtPeaks[k] as number))) return false
-    if (along > (this.peaks[k] as number)) {
-      this.setPeak(k, x, y, projection)
-      this.raised = true
+    const peak = this.peaks[k] as number
+    if (along > peak) {
+      this.peaks[k] = along
+      if (along > this.top) this.top = along
+      if (k === this.floorDirection) this.floorStale = true
+      const opposite = j < ROTATION_ANGLE_COUNT ? j + ROTATION_ANGLE_COUNT : k
+      this.setterX[j] = x
+      this.setterY[j] = y
+      this.setterX[opposite] = -x
+      this.setterY[opposite] = -y
+      return RAISED
     }
-    return true
+    return along > peak * WALK_SHRINK ? NEAR_ONLY : NOT_NEAR
   }
 
-  private setPeak(k: number, x: number, y: number, projection: number): void {
-    this.peaks[k] = Math.abs(projection)
-    this.setterX[k] = projection >= 0 ? x : -x
-    this.setterY[k] = projection >= 0 ? y : -y
+  /**
+   * Walks outward from direction `start` (one the sample comes within SHRINK of) while the sample
+   * stays within WALK_SHRINK of the peak, raising the peaks it beats, then makes each stretch of
+   * directions it now sets a run. The wider walking margin keeps rounding from ending the walk
+   * before the arc of directions the sample beats.
+   */
+  private raiseFrom(x: number, y: number, start: number): void {
+    let raised = false
+    let last = start
+    for (let count = 0; count < ROTATION_ANGLE_COUNT; count++) {
+      const found = this.visit(x, y, last)
+      if (found === NOT_NEAR) break
+      if (found === RAISED) raised = true
+      last = last + 1 === FULL_TURN ? 0 : last + 1
+    }
+    let first = start
+    for (let count = 0; count < ROTATION_ANGLE_COUNT; count++) {
+      const j = first === 0 ? FULL_TURN - 1 : first - 1
+      const found = this.visit(x, y, j)
+      if (found === NOT_NEAR) break
+      if (found === RAISED) raised = true
+      first = j
+    }
+    if (!raised) return
+    // Directions first … last − 1 were visited: the stretches among them that (x, y) now sets.
+    let from = -1
+    for (let j = first; j !== last; j = j + 1 === FULL_TURN ? 0 : j + 1) {
+      const mine = this.setterX[j] === x && this.setterY[j] === y
+      if (mine && from < 0) from = j
+      if (!mine && from >= 0) {
+        this.makeRun(from, j === 0 ? FULL_TURN - 1 : j - 1)
+        from = -1
+      }
+    }
+    if (from >= 0) this.makeRun(from, last === 0 ? FULL_TURN - 1 : last - 1)
+    this.loadWedge()
   }
 
-  /** Walks outward from the two directions beside the facing edge's normal (see the class comment). */
-  private raiseAround(x: number, y: number, edge: number): void {
-    const next = edge + 1 === this.vertices ? 0 : edge + 1
-    const after = this.vertexFirstDirection[next] as number
-    const before = after === 0 ? FULL_TURN - 1 : after - 1
-    this.raised = false
-    let j = after
-    for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j + 1 === FULL_TURN ? 0 : j + 1
-    j = before
-    for (let count = 0; count < FULL_TURN && this.visit(x, y, j); count++) j = j === 0 ? FULL_TURN - 1 : j - 1
-    if (this.raised) this.afterRaise()
+  /** Makes directions from … to (cyclic) one run, and their opposites another; the current wedge starts at `from`. */
+  private makeRun(from: number, to: number): void {
+    this.splitRuns(from, to)
+    this.splitRuns((from + ROTATION_ANGLE_COUNT) % FULL_TURN, (to + ROTATION_ANGLE_COUNT) % FULL_TURN)
+    this.boundary = from
   }
 
+  /** Makes directions from … to one run: the run before it now ends at from − 1, the one after starts at to + 1. */
+  private splitRuns(from: number, to: number): void {
+    const start = this.runStart
+    const end = this.runEnd
+    const before = from === 0 ? FULL_TURN - 1 : from - 1
+    const after = to + 1 === FULL_TURN ? 0 : to + 1
+    if (end[before] !== before) {
+      for (let j = start[before] as number; ; j = j + 1 === FULL_TURN ? 0 : j + 1) {
+        end[j] = before
+        if (j === before) break
+      }
+    }
+    if (start[after] !== after) {
+      const last = end[after] as number
+      for (let j = after; ; j = j + 1 === FULL_TURN ? 0 : j + 1) {
+        start[j] = after
+        if (j === last) break
+      }
+    }
+    for (let j = from; ; j = j + 1 === FULL_TURN ? 0 : j + 1) {
+      start[j] = from
+      end[j] = to
+      if (j === to) break
+    }
+  }
+
+  /** The definition: (x, y) against every direction; then the runs afresh. */
   private raiseEverywhere(x: number, y: number): void {
     let raised = false
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
       const projection = x * (COS[k] as number) + y * (SIN[k] as number)
       if (Math.abs(projection) > (this.peaks[k] as number)) {
-        this.setPeak(k, x, y, projection)
+        this.peaks[k] = Math.abs(projection)
+        const sx = projection >= 0 ? x : -x
+        const sy = projection >= 0 ? y : -y
+        this.setterX[k] = sx
+        this.setterY[k] = sy
+        this.setterX[k + ROTATION_ANGLE_COUNT] = -sx
+        this.setterY[k + ROTATION_ANGLE_COUNT] = -sy
         raised = true
       }
     }
-    if (raised) this.afterRaise()
+    if (raised) this.rebuildRuns()
   }
 
-  /** Counts a sample that raised a peak; Q is rebuilt only then (unchanged setters give the same Q). */
-  private afterRaise(): void {
-    this.raisesSinceBuild++
-    if (this.vertices < 3 || this.raisesSinceBuild >= RAISES_PER_REBUILD) this.rebuild()
-  }
-
-  /** Q from the current setters: θ = 0°…179°, then their mirror images for 180°…359°. */
-  private rebuild(): void {
-    const vx = this.vertexX
-    const vy = this.vertexY
-    const first = this.vertexFirstDirection
-    let n = 0
+  private refreshFloor(): void {
     let floor = Infinity
-    let top = 0
+    let at = 0
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
       const peak = this.peaks[k] as number
-      if (peak < floor) floor = peak
-      if (peak > top) top = peak
-      const x = this.setterX[k] as number
-      const y = this.setterY[k] as number
-      if (x === 0 && y === 0) continue
-      if (n > 0 && x === vx[n - 1] && y === vy[n - 1]) continue
-      vx[n] = x
-      vy[n] = y
-      first[n] = k
-      n++
+      if (peak < floor) {
+        floor = peak
+        at = k
+      }
     }
-    // The mirror images, in the same order: the same runs, shifted by 180°.
-    const half = n
-    const from =
-      half > 0 && -(vx[0] as number) === vx[half - 1] && -(vy[0] as number) === vy[half - 1] ? 1 : 0
-    for (let i = from; i < half; i++) {
-      vx[n] = -(vx[i] as number)
-      vy[n] = -(vy[i] as number)
-      first[n] = (first[i] as number) + ROTATION_ANGLE_COUNT
-      n++
+    this.floor = floor
+    this.floorDirection = at
+    this.floorStale = false
+  }
+
+  /** The runs from the setters: a new run wherever the setter changes. */
+  private rebuildRuns(): void {
+    this.refreshFloor()
+    let top = 0
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) top = Math.max(top, this.peaks[k] as number)
+    this.top = top
+    const sx = this.setterX
+    const sy = this.setterY
+    let from = -1
+    for (let j = 0; j < FULL_TURN && from < 0; j++) if (!sameSetter(sx, sy, j)) from = j
+    this.usable = this.floor > 0 && from >= 0
+    if (this.usable) {
+      let runFrom = from
+      for (let step = 0; step < FULL_TURN; step++) {
+        const j = (from + step) % FULL_TURN
+        if (step > 0 && !sameSetter(sx, sy, j)) runFrom = j
+        this.runStart[j] = runFrom
+      }
+      let runTo = from === 0 ? FULL_TURN - 1 : from - 1
+      for (let step = 0; step < FULL_TURN; step++) {
+        const j = (from + FULL_TURN - 1 - step) % FULL_TURN
+        if (step > 0 && !sameSetter(sx, sy, j + 1 === FULL_TURN ? 0 : j + 1)) runTo = j
+        this.runEnd[j] = runTo
+      }
+      this.boundary = from
     }
-    if (n > 1 && this.vertexX[0] === this.vertexX[n - 1] && this.vertexY[0] === this.vertexY[n - 1]) {
-      // The last run wraps around to the first: it starts where the last vertex's run started.
-      this.vertexFirstDirection[0] = this.vertexFirstDirection[n - 1] as number
-      n--
-    }
-    this.builtPeaks.set(this.peaks)
-    // A polygon thinner than this (a nearly polarised motion) is too flat for the wedge tests to
-    // be trusted in floating point; every sample outside the floor circle is then scanned in full.
-    this.vertices = floor > THIN_POLYGON * top ? n : 0
-    if (this.edge >= n) this.edge = 0
-    this.floor2 = floor * floor
-    this.raisesSinceBuild = 0
+    this.loadWedge()
   }
 }
 
-/** Blocks longer than this are seeded with their extreme samples first (see addMany). */
-const SEEDED_BLOCK = 64
-/** The seeds are looked for among every SEED_STRIDE-th sample: any samples serve, the extremes only tighten Q. */
-const SEED_STRIDE = 4
-/** The seed axes 0°, 45°, 90° and 135°, unnormalised (only the order of projections matters). */
+/** Whether direction j has the same setter as direction j − 1. */
+function sameSetter(sx: Float64Array, sy: Float64Array, j: number): boolean {
+  const i = j === 0 ? FULL_TURN - 1 : j - 1
+  return sx[i] === sx[j] && sy[i] === sy[j]
+}
+
+/** The seed axes 0°, 45°, 90° and 135°, unnormalised (only the order of projections matters), both ways. */
 const SEED_AXES = 4
 const SEED_X = Float64Array.of(1, 1, 0, -1)
 const SEED_Y = Float64Array.of(0, 1, 1, 1)
-/** Smallest width of Q, relative to its largest, for the polygon tests to be used. */
-const THIN_POLYGON = 1e-6
-const INSIDE = -1
-const UNKNOWN = -2
+const SEEDS = 2 * SEED_AXES
+const seedValue = new Float64Array(SEEDS)
+const seedIndex = new Int32Array(SEEDS)
+
+/**
+ * The indices of a block's extreme samples along the seed axes, both ways, among every
+ * SEED_STRIDE-th sample (shared scratch, read before the next call).
+ */
+function blockExtremes(xs: Float64Array, ys: Float64Array, count: number): Int32Array {
+  const best = seedValue.fill(-Infinity)
+  const at = seedIndex.fill(0)
+  for (let i = 0; i < count; i += SEED_STRIDE) {
+    const x = xs[i] as number
+    const y = ys[i] as number
+    for (let axis = 0; axis < SEED_AXES; axis++) {
+      const projection = x * (SEED_X[axis] as number) + y * (SEED_Y[axis] as number)
+      if (projection > (best[axis] as number)) {
+        best[axis] = projection
+        at[axis] = i
+      }
+      if (-projection > (best[axis + SEED_AXES] as number)) {
+        best[axis + SEED_AXES] = -projection
+        at[axis + SEED_AXES] = i
+      }
+    }
+  }
+  return at
+}
 
 /**
  * Peaks max_t |h₁(t)cosθ + h₂(t)sinθ| for θ = 0°…179°, into `out` (length 180); exact
