@@ -238,6 +238,21 @@ describe('rotDFromPeaks', () => {
     const peaks = Float64Array.from({ length: 180 }, (_, i) => 180 - i)
     expect(rotDFromPeaks(peaks)).toEqual({ rotD50: 90.5, rotD100: 180 })
   })
+
+  it('gives the middle and largest values of a full sort, with ties and any order', () => {
+    const random = mulberry32(77)
+    for (let trial = 0; trial < 300; trial++) {
+      const levels = trial % 3 === 0 ? 4 : 0
+      const peaks = Float64Array.from({ length: 180 }, () =>
+        levels ? Math.floor(random() * levels) : random(),
+      )
+      const sorted = Float64Array.from(peaks).sort()
+      expect(rotDFromPeaks(peaks)).toEqual({
+        rotD50: ((sorted[89] as number) + (sorted[90] as number)) / 2,
+        rotD100: sorted[179],
+      })
+    }
+  })
 })
 
 describe('computeSpectrum of a pair', () => {

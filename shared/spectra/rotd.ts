@@ -459,20 +459,53 @@ export function rotatedPeaks(
   return out
 }
 
-/** RotD100 and RotD50 of a set of 180 rotated peaks. `scratch` avoids an allocation per call. */
+/**
+ * RotD100 and RotD50 of a set of 180 rotated peaks. `scratch` avoids an allocation per call. The
+ * middle values are found by selection, not a full sort: the same values, so the same bits.
+ */
 export function rotDFromPeaks(
   peaks: Float64Array,
   scratch: Float64Array = new Float64Array(ROTATION_ANGLE_COUNT),
 ): { rotD50: number; rotD100: number } {
   scratch.set(peaks)
-  scratch.sort()
   const n = scratch.length
-  const rotD100 = scratch[n - 1] as number
-  const rotD50 =
-    n % 2 === 0
-      ? ((scratch[n / 2 - 1] as number) + (scratch[n / 2] as number)) / 2
-      : (scratch[(n - 1) / 2] as number)
-  return { rotD50, rotD100 }
+  let rotD100 = -Infinity
+  for (let i = 0; i < n; i++) rotD100 = Math.max(rotD100, scratch[i] as number)
+  if (n % 2 === 1) return { rotD50: selectSmallest(scratch, (n - 1) / 2), rotD100 }
+  // The lower middle value; every value after it is at least as large, so the upper one is their minimum.
+  const lower = selectSmallest(scratch, n / 2 - 1)
+  let upper = Infinity
+  for (let i = n / 2; i < n; i++) upper = Math.min(upper, scratch[i] as number)
+  return { rotD50: (lower + upper) / 2, rotD100 }
+}
+
+/**
+ * The k-th smallest of `values` (from 0), which it reorders so that no value before index k is
+ * larger and none after it smaller (Hoare's selection with a middle pivot). For peaks: no NaN.
+ */
+function selectSmallest(values: Float64Array, k: number): number {
+  let lo = 0
+  let hi = values.length - 1
+  while (lo < hi) {
+    const pivot = values[(lo + hi) >>> 1] as number
+    let i = lo
+    let j = hi
+    while (i <= j) {
+      while ((values[i] as number) < pivot) i++
+      while ((values[j] as number) > pivot) j--
+      if (i <= j) {
+        const swap = values[i] as number
+        values[i] = values[j] as number
+        values[j] = swap
+        i++
+        j--
+      }
+    }
+    if (k <= j) hi = j
+    else if (k >= i) lo = i
+    else break
+  }
+  return values[k] as number
 }
 
 /** RotD50 and RotD100 of two response histories of one oscillator. */
