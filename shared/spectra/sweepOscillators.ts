@@ -126,12 +126,8 @@ export function sweepOscillators(
       }
       // A nested sweep (from onProgress) may have loaded another record meanwhile.
       if (kernel.loadedRecord !== accel) kernel.loadRecord(accel)
-      let found = kernel.sweep(padded, subSteps, stepS, coeffs, out, candidates)
-      if (found > candidates.capacity) {
-        candidates.capacity = found
-        candidates.values = new Float64Array(CANDIDATE_VALUES * found)
-        found = kernel.sweep(padded, subSteps, stepS, coeffs, out, candidates)
-      }
+      // The kernels enlarge the buffer as they go, so every candidate step is listed in one sweep.
+      const found = kernel.sweep(padded, subSteps, stepS, coeffs, out, candidates)
       const chunkPeaks = members.map((_, slot) => ({
         sd: out[slot]!,
         sdTimeS: out[3 * padded + slot]! * stepS,
