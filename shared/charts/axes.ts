@@ -145,3 +145,17 @@ export function yAxisMarkup(map: (v: number) => number, ticks: Ticks, plot: Plot
   )
   return parts.join('')
 }
+
+/** The frame of a plot with its two axes: the last layer over the data of a single-panel chart. */
+export function framedAxesMarkup(
+  x: (v: number) => number,
+  xTicks: Ticks,
+  y: (v: number) => number,
+  yTicks: Ticks,
+  plot: PlotRect,
+  labels: { x: string; y: string },
+): string {
+  return (
+    plotFrameMarkup(plot) + xAxisMarkup(x, xTicks, plot, labels.x) + yAxisMarkup(y, yTicks, plot, labels.y)
+  )
+}

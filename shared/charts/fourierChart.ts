@@ -4,16 +4,7 @@
  */
 import { scaleLog } from 'd3-scale'
 import { line } from 'd3-shape'
-import {
-  type PlotRect,
-  formatTick,
-  gridMarkup,
-  logTicks,
-  plotClipMarkup,
-  plotFrameMarkup,
-  xAxisMarkup,
-  yAxisMarkup,
-} from './axes.js'
+import { type PlotRect, formatTick, framedAxesMarkup, gridMarkup, logTicks, plotClipMarkup } from './axes.js'
 import { palette } from './palette.js'
 import { FONT_FAMILY, escapeXml, px, safeId } from './svgMarkup.js'
 
@@ -117,9 +108,7 @@ export function buildFourierChart(input: FourierChartInput): string {
   }
   parts.push('</g>')
   parts.push(
-    plotFrameMarkup(plot),
-    xAxisMarkup(x, xTicks, plot, 'Frequency (Hz)'),
-    yAxisMarkup(y, yTicks, plot, 'Fourier amplitude (m/s)'),
+    framedAxesMarkup(x, xTicks, y, yTicks, plot, { x: 'Frequency (Hz)', y: 'Fourier amplitude (m/s)' }),
   )
   if (input.gain) {
     const right = plot.left + plot.width

@@ -10,13 +10,11 @@ import {
   type AxisScale,
   type PlotRect,
   type Ticks,
+  framedAxesMarkup,
   gridMarkup,
   linearTicks,
   logTicks,
   plotClipMarkup,
-  plotFrameMarkup,
-  xAxisMarkup,
-  yAxisMarkup,
 } from './axes.js'
 import { layoutLegend, wrapText } from './legendLayout.js'
 import { palette, seriesColours } from './palette.js'
@@ -378,9 +376,12 @@ export function buildSpectrumChart(data: SpectrumChartData, options: SpectrumCha
     }
   }
 
-  parts.push(plotFrameMarkup(plot))
-  parts.push(xAxisMarkup(x, xTicks, plot, 'Period T (s)'))
-  parts.push(yAxisMarkup(y, yTicks, plot, spectrumAxisLabel(options.quantity, unit)))
+  parts.push(
+    framedAxesMarkup(x, xTicks, y, yTicks, plot, {
+      x: 'Period T (s)',
+      y: spectrumAxisLabel(options.quantity, unit),
+    }),
+  )
   if (options.title) {
     parts.push(
       `<text x="${px(plot.left)}" y="22" fill="${palette.text}" font-size="15" font-weight="600">${escapeXml(options.title)}</text>`,

@@ -72,6 +72,16 @@ export interface PairEndState {
 /** Receives each block of histories with the number of sub-steps in it; the block is reused after the call. */
 export type HistoryFold = (block: HistoryBlock, count: number) => void
 
+/** One sweep of `count` oscillators over the loaded record (SweepKernel.sweep; layout above). */
+export type SweepCall = (
+  count: number,
+  subSteps: number,
+  stepS: number,
+  coeffs: Float64Array,
+  out: Float64Array,
+  candidates: CandidateBuffer,
+) => number
+
 /** Where the kernel lists candidate steps: room for `capacity` entries of CANDIDATE_VALUES values. */
 export interface CandidateBuffer {
   values: Float64Array
@@ -93,14 +103,7 @@ export interface SweepKernel {
    * where they do not fit, the kernel replaces its `values` with a larger array (and raises
    * `capacity`), so a sweep never has to run again for want of room.
    */
-  sweep(
-    count: number,
-    subSteps: number,
-    stepS: number,
-    coeffs: Float64Array,
-    out: Float64Array,
-    candidates: CandidateBuffer,
-  ): number
+  sweep: SweepCall
   /**
    * History mode: one oscillator (coefficients `coeffs`, PAIR_COEFFICIENTS values) from rest under
    * the components `first` and `second` (same length) with `subSteps` sub-steps per interval;
@@ -168,12 +171,7 @@ function enlarged(candidates: CandidateBuffer, kept: number, capacity: number): 
 /** The JavaScript kernel, one oscillator at a time with its state in locals. */
 export function jsSweep(
   record: Float64Array,
-  count: number,
-  subSteps: number,
-  stepS: number,
-  coeffs: Float64Array,
-  out: Float64Array,
-  candidates: CandidateBuffer,
+  ...[count, subSteps, stepS, coeffs, out, candidates]: Parameters<SweepCall>
 ): number {
   const samples = record.length
   const m = subSteps
