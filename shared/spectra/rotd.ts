@@ -43,9 +43,10 @@ for (let j = 0; j < FULL_TURN; j++) {
 }
 /**
  * A sample is skipped only if it stays below SHRINK × the peaks it is tested against. Rounding
- * moves a projection by about 1e-16 of the sample's length; with samples within NEAR × the
- * largest peak and the smallest peak at least THIN_POLYGON × the largest, that is below 1e-13 of
- * any peak, far inside the margin 2⁻²⁴ ≈ 6e-8, so a skipped sample provably raises no peak.
+ * moves a projection or a cross product by a few units of 1.1e-16 of the sample's length (times
+ * the setter's, for a cross product); with samples within NEAR × the largest peak and the
+ * smallest peak at least THIN_POLYGON × the largest, that is below 2e-9 of any peak, more than
+ * 30 times inside the margin 2⁻²⁴ ≈ 6e-8, so a skipped sample provably raises no peak.
  */
 const SHRINK = 1 - 2 ** -24
 /** The walk over the directions a sample may raise continues while it is within this (wider) margin of the peak. */
@@ -87,7 +88,8 @@ const SEED_STRIDE = 8
  *   makes the directions it now sets one run (and their opposites the mirror run).
  * Samples far outside (NEAR), a polygon too thin for the tests (THIN_POLYGON), a wedge of 180°
  * or more (a rounding tie) and the first samples, before every peak is positive, are scanned in
- * full. The test sets are always those of the current peaks: nothing is rebuilt.
+ * full. The tests always use the current peaks and setters: the runs are updated in place as
+ * peaks rise (and rebuilt from the setters only after a full scan).
  */
 export class DirectionalPeaks {
   /** The peak in each direction θ = k°, k = 0…179. */
