@@ -15,7 +15,8 @@
  * 2. where the pair's time goes, from a replay of its first pass with the engine's parts: the two
  *    components' response histories a block at a time on the kernel's history mode
  *    (SweepKernel.pairHistories, the engine's default kernel), then the directional peak search
- *    (DirectionalPeaks.addMany) on them; and the histories alone on each kernel.
+ *    (DirectionalPeaks.addMany) on them; and the histories alone on each kernel; then the search's
+ *    CPU time, the replay's less that of the histories alone (less disturbed by a shared machine).
  */
 import { computeSpectrum, planSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../shared/spectra/demo/demoRecords.js'
@@ -115,9 +116,10 @@ const trackers = [new DirectionalPeaks(), new DirectionalPeaks(), new Directiona
 const plan = planSpectrum(accel1.length, dtS, settings, 'step-ends')
 const periods = settings.periodsS.length
 const coeffs = new Float64Array(PAIR_COEFFICIENTS)
-/** Runs the first pass's histories on `kernel`, folding each block with `fold`; returns the ms taken. */
-const replay = (kernel: SweepKernel, fold: HistoryFold) => {
+/** Runs the first pass's histories on `kernel`, folding each block with `fold`; returns the wall and CPU ms taken. */
+const replay = (kernel: SweepKernel, fold: HistoryFold): [number, number] => {
   const start = performance.now()
+  const cpu = process.cpuUsage()
   for (let index = 0; index < plan.subSteps.length; index++) {
     const subSteps = plan.subSteps[index]!
     const periodS = settings.periodsS[index % periods]!
@@ -126,12 +128,13 @@ const replay = (kernel: SweepKernel, fold: HistoryFold) => {
     pairCoefficients(settings.method, periodS, zeta, dtS / subSteps, coeffs)
     kernel.pairHistories(accel1, accel2, subSteps, coeffs, fold)
   }
-  return performance.now() - start
+  const used = process.cpuUsage(cpu)
+  return [performance.now() - start, (used.user + used.system) / 1000]
 }
 let searchMs = 0
 let replaySteps = 0
 const engineKernel = defaultKernel()
-const totalMs = replay(engineKernel, (block, count) => {
+const [totalMs, totalCpuMs] = replay(engineKernel, (block, count) => {
   const t0 = performance.now()
   trackers[0].addMany(block.u1, block.u2, count)
   trackers[1].addMany(block.v1, block.v2, count)
@@ -149,9 +152,16 @@ console.log(
   `   directional peak search (u, v, A):   ${searchMs.toFixed(0)} ms (${((searchMs * 1e6) / (replaySteps / 2)).toFixed(2)} ns per time step of the pair)`,
 )
 const noFold: HistoryFold = () => {}
+let historiesCpuMs = 0
 for (const kernel of new Set([engineKernel, jsKernel()])) {
-  const ms = replay(kernel, noFold)
+  const [ms, cpuMs] = replay(kernel, noFold)
+  if (kernel === engineKernel) historiesCpuMs = cpuMs
   console.log(
     `   histories alone, kernel ${kernel.name}: ${ms.toFixed(0)} ms (${perStep(ms)} ns per oscillator-step)`,
   )
 }
+// CPU time, less disturbed by other work on the machine than the wall times above.
+const searchCpuMs = totalCpuMs - historiesCpuMs
+console.log(
+  `   CPU time: replay with the search ${totalCpuMs.toFixed(0)} ms − histories alone ${historiesCpuMs.toFixed(0)} ms = peak search ${searchCpuMs.toFixed(0)} ms (${((searchCpuMs * 1e6) / (1.5 * replaySteps)).toFixed(2)} ns per sample of each of u, v, A)`,
+)
