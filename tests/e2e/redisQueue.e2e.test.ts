@@ -12,7 +12,8 @@ import { startServer, type RunningServer } from './harness.js'
  * The distributed run queue against a real redis-server on a loopback port (persistence off),
  * the built web server and compute nodes started with node itself (`npm run worker` runs the
  * same file). Short BullMQ locks (QUEUE_LOCK_MS, QUEUE_STALLED_MS) so a killed node's run is
- * noticed in seconds. After each scenario the SQLite ledger is audited: one reservation per
+ * noticed in seconds, though not so short that a node starved of CPU on a loaded 2-core machine
+ * misses its lock renewals (2 s was seen to lose a run's three attempts in CI). After each scenario the SQLite ledger is audited: one reservation per
  * run, a return for each failed run only, one spectrum for each succeeded run only.
  */
 interface Body {
@@ -61,6 +62,8 @@ afterAll(async () => {
 })
 
 /** A web server's environment on a fresh data folder: Redis with no local threads, or the embedded queue. */
+const QUEUE_TIMING = { QUEUE_LOCK_MS: '8000', QUEUE_STALLED_MS: '2000' }
+
 async function webEnv(queue: 'redis' | 'embedded' = 'redis') {
   const dir = await mkdtemp(path.join(tmpdir(), 'ordinate-redis-web-'))
   dirs.push(dir)
@@ -70,8 +73,7 @@ async function webEnv(queue: 'redis' | 'embedded' = 'redis') {
     ...base,
     REDIS_URL: redis.url,
     WORKER_THREADS: '0',
-    QUEUE_LOCK_MS: '2000',
-    QUEUE_STALLED_MS: '1000',
+    ...QUEUE_TIMING,
   }
 }
 
@@ -85,8 +87,7 @@ async function computeNode() {
   const node = await startComputeNode({
     REDIS_URL: redis.url,
     WORKER_THREADS: '1',
-    QUEUE_LOCK_MS: '2000',
-    QUEUE_STALLED_MS: '1000',
+    ...QUEUE_TIMING,
   })
   nodes.push(node)
   return node
@@ -109,6 +110,8 @@ async function allSucceeded(api: HttpApi<Body>, ids: string[], timeout = 180_000
   await vi.waitFor(
     async () => {
       const list = (await api('GET', '/runs')).body.items.filter((r) => ids.includes(r.id))
+      const failed = list.filter((r) => r.status === 'failed')
+      expect(failed.map((r) => `${r.id}: ${String((r as { error?: unknown }).error)}`)).toEqual([])
       expect(list.map((r) => r.status)).toEqual(ids.map(() => 'succeeded'))
     },
     { timeout, interval: 250 },
