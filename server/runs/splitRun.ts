@@ -19,7 +19,8 @@ export interface RunPart {
 
 /**
  * Splits a single-record run into at most `parts` contiguous period ranges of about equal planned
- * work (planSpectrum's oscillator-steps, summed over the damping ratios). Each oscillator's
+ * work (planSpectrum's sub-steps, plus the exact check of each Newmark oscillator, summed over the
+ * damping ratios). Each oscillator's
  * sub-steps and peaks depend only on its own period, damping, Δt, duration and method
  * (shared/spectra/computeSpectrum.ts), so the parts computed apart and put back in period order
  * give the same bits as the whole run. Answers one part (the whole run) when splitting cannot
@@ -47,8 +48,13 @@ export function planRunParts(
   }
   if (plan.oscillatorSteps < MIN_SPLIT_STEPS || plan.capped.length > 0) return whole
 
+  // A Newmark oscillator also runs once on the exact recurrence, one step per sample (its check,
+  // computeSpectrum.ts): at long periods, where m is 1 or 2, that doubles its work.
   const cost = settings.periodsS.map((_, p) =>
-    settings.dampingRatios.reduce((sum, _z, d) => sum + plan.subSteps[d * periods + p]!, 0),
+    settings.dampingRatios.reduce((sum, _z, d) => {
+      const index = d * periods + p
+      return sum + plan.subSteps[index]! + (plan.recurrences[index] === 'piecewise-exact' ? 0 : 1)
+    }, 0),
   )
   const total = cost.reduce((a, b) => a + b, 0)
   const ends: number[] = []
