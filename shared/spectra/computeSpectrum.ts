@@ -50,9 +50,11 @@ import {
   sweepOscillators,
 } from './sweepOscillators.js'
 import type { SpectrumWarning } from './warnings.js'
+import { PEAK_SEARCH_SUMMARY } from './methodSummary.js'
 
 export type { SpectrumMethod } from './oscillatorRecurrence.js'
 export type { PairRecord } from './rotd.js'
+export { PEAK_SEARCH_SUMMARY } from './methodSummary.js'
 
 /** Version of the numerical engine, stated with every result. */
 export const ENGINE_VERSION = 'ordinate-spectra 1.0.0'
@@ -160,20 +162,6 @@ const SOLVER_TEXT: Record<SpectrumMethod, string> = {
   'newmark-linear': 'Newmark-β, linear acceleration (γ = 1/2, β = 1/6), stable for h/T ≤ √3/π (Newmark 1959)',
   'piecewise-exact':
     'Piecewise-exact recurrence, exact at step ends for ground acceleration linear between samples (Nigam & Jennings 1969)',
-}
-
-const NEWMARK_SUMMARY =
-  `Sub-steps only as many as the guarantee needs: every ordinate is checked against the exact solution of the ` +
-  `same record (piecewise-exact recurrence) and sub-stepped until within ${100 * ACCURACY_TARGET}%; peaks between ` +
-  `steps are read from cubic Hermite interpolants.`
-
-/** One or two sentences for pages: how a record's peaks are found, per method. */
-export const PEAK_SEARCH_SUMMARY: Record<SpectrumMethod, string> = {
-  'piecewise-exact':
-    'No sub-steps: every peak between samples is found from the exact solution of each interval, searched ' +
-    'wherever a rigorous bound cannot rule out a new peak.',
-  'newmark-average': NEWMARK_SUMMARY,
-  'newmark-linear': NEWMARK_SUMMARY,
 }
 
 const SEARCH_RULE =

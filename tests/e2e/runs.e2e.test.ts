@@ -57,6 +57,13 @@ describe('runs in the browser', () => {
     expect(shownPsaG).toBe(formatSignificant(psaG, 4))
 
     await expect(page.locator('[data-test="cautions"]').innerText()).resolves.toMatch(/calculation aid/)
+    // The method card gives the sub-step rule's summary; the full rule is in the JSON and the sheet.
+    const method = await page.locator('.method-card').innerText()
+    expect(method).toContain('every ordinate is checked against the exact solution of the same record')
+    expect(method).toContain('The full rule is in the calc sheet')
+    expect(api.methodStatement.subStepRule).toContain(
+      'Each oscillator is also run once on the piecewise-exact',
+    )
     // One CSV on the page: the export menu's (the same file as GET /api/runs/:id/spectrum.csv).
     await expect(page.locator('[data-test="download-csv"]').count()).resolves.toBe(0)
     await page.screenshot({ path: artifactPath('runs-run-page.png'), fullPage: true })
