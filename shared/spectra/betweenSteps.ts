@@ -117,40 +117,26 @@ export function stepBounds(
   const { u0, v0, f0, f1, stepS, omega, zeta } = state
   const s = (f1 - f0) / stepS
   const w = sinusoidAmplitude(u0, v0, f0, s, omega, zeta)
-  return boundsFrom(
-    ends.u,
-    ends.v,
-    ends.a,
-    w,
-    Math.max(Math.abs(f0), Math.abs(f1)),
-    Math.abs(s),
-    stepS,
-    omega,
-    zeta,
-  )
-}
-
-/** The three bounds of stepBounds from the larger end values, W, max|f| and |s| over the step. */
-function boundsFrom(
-  eu: number,
-  ev: number,
-  ea: number,
-  w: number,
-  fm: number,
-  as: number,
-  h: number,
-  omega: number,
-  zeta: number,
-): { u: number; v: number; a: number } {
+  const fm = Math.max(Math.abs(f0), Math.abs(f1))
+  const as = Math.abs(s)
   const k = omega * omega
   const c = 2 * zeta * omega
-  const q = ((omega * h) ** 2 / 8) * MARGIN_RAISE
+  const q = ((omega * stepS) ** 2 / 8) * MARGIN_RAISE
   return {
-    u: Math.min(eu + q * w, fm / k + (c * as) / (k * k) + w),
-    v: Math.min(ev + q * omega * w, as / k + omega * w),
-    a: Math.min(ea + q * k * w, fm + k * w),
+    u: Math.min(ends.u + q * w, fm / k + (c * as) / (k * k) + w),
+    v: Math.min(ends.v + q * omega * w, as / k + omega * w),
+    a: Math.min(ends.a + q * k * w, fm + k * w),
   }
 }
+
+/** Which of u, v and A a step's search is wanted for (all, unless a bound rules some out). */
+export interface Wanted {
+  u: boolean
+  v: boolean
+  a: boolean
+}
+
+const ALL: Wanted = { u: true, v: true, a: true }
 
 export interface Extreme {
   value: number
@@ -245,8 +231,14 @@ function interiorExtreme(
   return bestValue > 0 ? { value: bestValue, tauS: bestTau } : NONE
 }
 
-/** Interior extremes of |u|, |v| and |A| in one step of the exact solution (closed form above). */
-export function exactStepExtremes(state: StepState): { u: Extreme; v: Extreme; a: Extreme } {
+/**
+ * Interior extremes of |u|, |v| and |A| in one step of the exact solution (closed form above);
+ * a quantity not wanted answers NONE without a search.
+ */
+export function exactStepExtremes(
+  state: StepState,
+  wanted: Wanted = ALL,
+): { u: Extreme; v: Extreme; a: Extreme } {
   const { u0, v0, f0, f1, stepS: h, omega, zeta } = state
   const k = omega * omega
   const c = 2 * zeta * omega
@@ -261,9 +253,9 @@ export function exactStepExtremes(state: StepState): { u: Extreme; v: Extreme; a
   const p2 = -sigma * p1 + omegaD * q1
   const q2 = -sigma * q1 - omegaD * p1
   return {
-    u: interiorExtreme(up0, -s / k, p, q, sigma, omegaD, h),
-    v: interiorExtreme(-s / k, 0, p1, q1, sigma, omegaD, h),
-    a: interiorExtreme(-f0, -s, -p2, -q2, sigma, omegaD, h),
+    u: wanted.u ? interiorExtreme(up0, -s / k, p, q, sigma, omegaD, h) : NONE,
+    v: wanted.v ? interiorExtreme(-s / k, 0, p1, q1, sigma, omegaD, h) : NONE,
+    a: wanted.a ? interiorExtreme(-f0, -s, -p2, -q2, sigma, omegaD, h) : NONE,
   }
 }
 
@@ -307,11 +299,15 @@ function hermiteValue(x0: number, m0: number, x1: number, m1: number, t: number)
   )
 }
 
-/** Interior extremes of the Newmark step from (u0, v0) to (u1, v1), read from Hermite interpolants. */
+/**
+ * Interior extremes of the Newmark step from (u0, v0) to (u1, v1), read from Hermite
+ * interpolants; a quantity not wanted answers NONE without a search.
+ */
 export function hermiteStepExtremes(
   state: StepState,
   u1: number,
   v1: number,
+  wanted: Wanted = ALL,
 ): { u: Extreme; v: Extreme; a: Extreme } {
   const { u0, v0, f0, f1, stepS: h, omega, zeta } = state
   const k = omega * omega
@@ -321,9 +317,9 @@ export function hermiteStepExtremes(
   const r0 = -f0 - a0
   const r1 = -f1 - a1
   return {
-    u: hermiteExtreme(u0, v0, u1, v1, h),
-    v: hermiteExtreme(v0, r0, v1, r1, h),
-    a: hermiteExtreme(a0, c * r0 + k * v0, a1, c * r1 + k * v1, h),
+    u: wanted.u ? hermiteExtreme(u0, v0, u1, v1, h) : NONE,
+    v: wanted.v ? hermiteExtreme(v0, r0, v1, r1, h) : NONE,
+    a: wanted.a ? hermiteExtreme(a0, c * r0 + k * v0, a1, c * r1 + k * v1, h) : NONE,
   }
 }
 
@@ -398,67 +394,24 @@ export function raisePeaksBetweenSteps(
     const { a11, a12, b1, c1, a21, a22, b2, c2 } = oscillator.coefficients
     const u1 = a11 * u0 + a12 * v0 + b1 * f0 + c1 * f1
     const v1 = a21 * u0 + a22 * v0 + b2 * f0 + c2 * f1
-    const k = omega * omega
     const c = 2 * zeta * omega
-    const a0 = c * v0 + k * u0
-    const a1 = c * v1 + k * u1
-    // The kernel listed the step against the running peaks; the same bounds (stepBounds) held
-    // against the peaks of the whole record, per quantity, leave out what cannot beat them.
-    const slopeS = (f1 - f0) / h
-    const bound = boundsFrom(
-      Math.max(Math.abs(u0), Math.abs(u1)),
-      Math.max(Math.abs(v0), Math.abs(v1)),
-      Math.max(Math.abs(a0), Math.abs(a1)),
-      sinusoidAmplitude(u0, v0, f0, slopeS, omega, zeta),
-      Math.max(Math.abs(f0), Math.abs(f1)),
-      Math.abs(slopeS),
-      h,
-      omega,
-      zeta,
-    )
-    const needU = bound.u >= target.sd
-    const needV = bound.v >= target.sv
-    const needA = bound.a >= target.sa
-    if (!(needU || needV || needA)) continue
-    if (oscillator.method === 'piecewise-exact') {
-      // exactStepExtremes, inlined, for the quantities that need it.
-      const sigma = zeta * omega
-      const omegaD = omega * Math.sqrt(1 - zeta * zeta)
-      const up0 = -(f0 - (c * slopeS) / k) / k
-      const p0 = u0 - up0
-      const q0 = (v0 + slopeS / k + sigma * p0) / omegaD
-      const p1 = -sigma * p0 + omegaD * q0
-      const q1 = -sigma * q0 - omegaD * p0
-      if (needU) {
-        const u = interiorExtreme(up0, -slopeS / k, p0, q0, sigma, omegaD, h)
-        raiseSd(target, u.value, startS + u.tauS)
-      }
-      if (needV) {
-        const v = interiorExtreme(-slopeS / k, 0, p1, q1, sigma, omegaD, h)
-        if (v.value > target.sv) target.sv = v.value
-      }
-      if (needA) {
-        const p2 = -sigma * p1 + omegaD * q1
-        const q2 = -sigma * q1 - omegaD * p1
-        const a = interiorExtreme(-f0, -slopeS, -p2, -q2, sigma, omegaD, h)
-        raiseSa(target, a.value, startS + a.tauS)
-      }
-      continue
-    }
-    // hermiteStepExtremes, inlined: (u, u'), (v, v') and (A, A') at both ends.
-    const r0 = -f0 - a0
-    const r1 = -f1 - a1
-    if (needU) {
-      const u = hermiteExtreme(u0, v0, u1, v1, h)
-      raiseSd(target, u.value, startS + u.tauS)
-    }
-    if (needV) {
-      const v = hermiteExtreme(v0, r0, v1, r1, h)
-      if (v.value > target.sv) target.sv = v.value
-    }
-    if (needA) {
-      const a = hermiteExtreme(a0, c * r0 + k * v0, a1, c * r1 + k * v1, h)
-      raiseSa(target, a.value, startS + a.tauS)
-    }
+    const k = omega * omega
+    const state: StepState = { u0, v0, f0, f1, stepS: h, omega, zeta }
+    // The kernel listed the step against the running peaks; the same bounds held against the
+    // peaks of the whole record, per quantity, leave out what cannot beat them.
+    const bound = stepBounds(state, {
+      u: Math.max(Math.abs(u0), Math.abs(u1)),
+      v: Math.max(Math.abs(v0), Math.abs(v1)),
+      a: Math.max(Math.abs(c * v0 + k * u0), Math.abs(c * v1 + k * u1)),
+    })
+    const wanted = { u: bound.u >= target.sd, v: bound.v >= target.sv, a: bound.a >= target.sa }
+    if (!(wanted.u || wanted.v || wanted.a)) continue
+    const extremes =
+      oscillator.method === 'piecewise-exact'
+        ? exactStepExtremes(state, wanted)
+        : hermiteStepExtremes(state, u1, v1, wanted)
+    raiseSd(target, extremes.u.value, startS + extremes.u.tauS)
+    if (extremes.v.value > target.sv) target.sv = extremes.v.value
+    raiseSa(target, extremes.a.value, startS + extremes.a.tauS)
   }
 }
