@@ -358,8 +358,6 @@ export interface ForcingBounds {
   maxSlopeMPerS3: number
   /** Bound on the free-vibration amplitude of an oscillator, from the motion's kinks (a pass over the record). */
   freeAmplitudeM(periodS: number, dampingRatio: number): number
-  /** The motion's duration, (points − 1)·Δt. */
-  durationS: number
 }
 
 /** An oscillator's peaks as the bound reads them. */
@@ -422,7 +420,6 @@ export function seriesForcing(accelMPerS2: Float64Array, dtS: number): ForcingBo
   return {
     pgaMPerS2: pga,
     maxSlopeMPerS3: slope / dtS,
-    durationS: (accelMPerS2.length - 1) * dtS,
     freeAmplitudeM: memoised((periodS, dampingRatio) => {
       changes ??= slopeChanges(accelMPerS2, dtS)
       return freeAmplitudeBound(accelMPerS2, changes, dtS, periodS, dampingRatio)
@@ -452,7 +449,6 @@ export function resultantForcing(pair: PairRecord): ForcingBounds {
   return {
     pgaMPerS2: pga,
     maxSlopeMPerS3: slope / dtS,
-    durationS: (g1.length - 1) * dtS,
     freeAmplitudeM: memoised((periodS, dampingRatio) => {
       if (!changes) {
         const c1 = slopeChanges(g1, dtS)
@@ -554,7 +550,7 @@ function recordSolver(
   const count = oscillators.length
   const peaks = oscillatorPeaks(count)
   const intervals = record.accelMPerS2.length - 1
-  let exact: { peaks: OscillatorPeaks; slotOf: Int32Array } | null = null
+  let exact: ReturnType<typeof exactPeaks> | null = null
   const solver = {
     peaks,
     stepsRun: 0,
@@ -571,7 +567,10 @@ function recordSolver(
     peakBound(index: number) {
       // The exact search leaves nothing between steps unread (subSteps.ts).
       if ((oscillators[index]!.recurrence ?? method) === 'piecewise-exact') return 0
-      exact ??= exactPeaks(record, oscillators, method, kernel, () => (solver.stepsRun += intervals))
+      if (!exact) {
+        exact = exactPeaks(record, oscillators, method, kernel)
+        solver.stepsRun += intervals * exact.count
+      }
       return relativeDifference(peaks, exact.peaks, index, exact.slotOf[index]!)
     },
   }
@@ -584,8 +583,7 @@ function exactPeaks(
   oscillators: readonly OscillatorSpec[],
   method: SpectrumMethod,
   kernel: SweepKernel,
-  countStep: () => void,
-): { peaks: OscillatorPeaks; slotOf: Int32Array } {
+): { peaks: OscillatorPeaks; slotOf: Int32Array; count: number } {
   const slotOf = new Int32Array(oscillators.length).fill(-1)
   const specs: OscillatorSpec[] = []
   oscillators.forEach((oscillator, index) => {
@@ -598,9 +596,12 @@ function exactPeaks(
       recurrence: 'piecewise-exact',
       reading: 'between-steps',
     })
-    countStep()
   })
-  return { peaks: sweepOscillators(record, specs, 'piecewise-exact', { kernel }), slotOf }
+  return {
+    peaks: sweepOscillators(record, specs, 'piecewise-exact', { kernel }),
+    slotOf,
+    count: specs.length,
+  }
 }
 
 /** Largest ratio of the maximum-direction peaks to RotD50's (how much smaller RotD50's ordinates are). */
