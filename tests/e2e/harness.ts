@@ -176,29 +176,40 @@ export function artifactPath(name: string): string {
  * cookies are cleared and the page loaded once more, so a second stall fails with the page's
  * state in the message instead of a bare timeout.
  */
+/**
+ * Opens `url` with no session. The current page is left first: its requests still in flight
+ * would answer with the rolling session cookie (server/app.ts) and sign the old member in
+ * again after the cookies are cleared.
+ */
+async function openSignedOut(page: Page, url: string): Promise<void> {
+  await page.goto('about:blank')
+  await page.context().clearCookies()
+  await page.goto(url)
+}
+
+/** What a page shows, for a failure message. */
+function shownText(page: Page): Promise<string> {
+  return page
+    .locator('body')
+    .innerText({ timeout: 5_000 })
+    .catch(() => '(no body)')
+}
+
 async function waitForSignInForm(page: Page, signInUrl: string): Promise<void> {
   const field = page.getByLabel('E-mail')
   try {
     await field.waitFor({ timeout: 20_000 })
     return
   } catch {
-    const shown = await page
-      .locator('body')
-      .innerText({ timeout: 5_000 })
-      .catch(() => '(no body)')
+    const shown = await shownText(page)
     process.stderr.write(`sign-in form not drawn within 20 s at ${page.url()}; the page showed:\n${shown}\n`)
     await page.screenshot({ path: artifactPath('sign-in-stall.png') }).catch(() => undefined)
   }
-  await page.goto('about:blank')
-  await page.context().clearCookies()
-  await page.goto(signInUrl)
+  await openSignedOut(page, signInUrl)
   try {
     await field.waitFor({ timeout: 40_000 })
   } catch (err) {
-    const shown = await page
-      .locator('body')
-      .innerText({ timeout: 5_000 })
-      .catch(() => '(no body)')
+    const shown = await shownText(page)
     throw new Error(`sign-in form not drawn after a reload at ${page.url()}; the page showed: ${shown}`, {
       cause: err,
     })
@@ -215,11 +226,7 @@ export async function signInThroughForm(
   email: string,
   password = DEMO_PASSWORD,
 ) {
-  // Leave the current page first: its requests still in flight would answer with the rolling
-  // session cookie (server/app.ts) and sign the old member in again after the cookies are cleared.
-  await page.goto('about:blank')
-  await page.context().clearCookies()
-  await page.goto(`${baseUrl}/sign-in`)
+  await openSignedOut(page, `${baseUrl}/sign-in`)
   await waitForSignInForm(page, `${baseUrl}/sign-in`)
   await page.getByLabel('E-mail').fill(email)
   await page.getByLabel('Password').fill(password)
