@@ -171,15 +171,22 @@ interface LedgerCheck {
   runsByStatus: Record<string, number>
 }
 
+/** The demo firm's id: the firm of admin@ordinate.test. */
+function demoFirmId(db: Database.Database): string {
+  return (
+    db
+      .prepare(
+        "select firm_id as f from memberships m join users u on u.id = m.user_id where u.email = 'admin@ordinate.test'",
+      )
+      .get() as { f: string }
+  ).f
+}
+
 /** The ids of the demo firm's runs (those the demo data seeded, read before the load starts). */
 function demoFirmRunIds(databasePath: string): Set<string> {
   const db = new Database(databasePath, { readonly: true })
   try {
-    const rows = db
-      .prepare(
-        "select r.id as id from runs r join memberships m on m.firm_id = r.firm_id join users u on u.id = m.user_id where u.email = 'admin@ordinate.test'",
-      )
-      .all() as { id: string }[]
+    const rows = db.prepare('select id from runs where firm_id = ?').all(demoFirmId(db)) as { id: string }[]
     return new Set(rows.map((row) => row.id))
   } finally {
     db.close()
@@ -200,15 +207,7 @@ function checkLedger(
   const db = new Database(databasePath, { readonly: true })
   try {
     const problems: string[] = []
-    const firmId = (
-      db
-        .prepare(
-          "select firm_id as f from memberships m join users u on u.id = m.user_id where u.email = 'admin@ordinate.test'",
-        )
-        .get() as {
-        f: string
-      }
-    ).f
+    const firmId = demoFirmId(db)
     const balance = (
       db.prepare('select coalesce(sum(delta), 0) as b from credit_ledger where firm_id = ?').get(firmId) as {
         b: number
