@@ -215,22 +215,36 @@ export class RedisRunQueue implements RunScheduler {
     if (!ids) return
     const run = known ?? this.store.running().find((r) => r.id === ids.runId && r.attempt === ids.attempt)
     if (!run) return
+    // The state first, then the job: a job read while still active and found completed a moment
+    // later has no return value yet (a reconcile racing the worker's finish once failed a good
+    // run that way). A finished job no longer changes, so reading it after its state is safe.
+    let state: Awaited<ReturnType<Queue['getJobState']>>
+    try {
+      state = await this.queue.getJobState(jobId)
+    } catch {
+      return
+    }
+    if (state === 'unknown') {
+      await this.handOff(run)
+      return
+    }
+    if (state !== 'completed' && state !== 'failed') return
     let job: Job | undefined
     try {
       job = await Job.fromId(this.queue, jobId)
     } catch {
       return
     }
-    if (!job) {
-      await this.handOff(run)
-      return
-    }
-    const state = await job.getState().catch(() => 'unknown')
+    // Removed since its state was read: another collect of the same job settled it.
+    if (!job) return
     if (state === 'completed') {
       const parsed = workerReplySchema.safeParse(decodeFromQueue(job.returnvalue))
-      if (!parsed.success || parsed.data.type === 'progress')
+      if (!parsed.success || parsed.data.type === 'progress') {
+        this.log(
+          `Run ${run.id}: job ${jobId} completed with an unreadable result: ${parsed.success ? 'a progress message' : parsed.error.message}`,
+        )
         this.finishFailed(run, 'The computation sent back a result that could not be read.')
-      else if (parsed.data.type === 'error')
+      } else if (parsed.data.type === 'error')
         this.finishFailed(run, `The computation failed: ${parsed.data.message}`)
       else {
         const finishedAt = Date.now()
