@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core'
-import { describe, expect, it } from 'vitest'
+import { describe, expect, it, vi } from 'vitest'
 import { creditPacks } from '../../shared/credits/creditPacks.js'
 import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
 
@@ -8,49 +8,69 @@ const env = useBrowserTestEnvironment()
 
 const small = creditPacks[0]
 
-/** Chooses a test card, buys the chosen pack, confirms the charge and waits for the outcome. */
+/**
+ * Chooses a test card, buys the chosen pack, confirms the charge and waits for the outcome. Each
+ * step is checked before the next, and a wrong or missing outcome fails with the text the page
+ * shows (a CI run once timed out here with nothing to go on).
+ */
 async function buyWithTestCard(page: Page, card: string, outcome: RegExp) {
-  await page.locator('[data-test="test-card"]', { hasText: card }).click()
-  await page.locator('[data-test="buy-credits"]').click()
+  const choice = page.locator('[data-test="test-card"]', { hasText: card })
+  await choice.click()
+  await vi.waitFor(async () => expect(await choice.locator('input').isChecked()).toBe(true), {
+    timeout: 10_000,
+  })
+  await page.locator('[data-test="buy-credits"]:not([disabled])').click()
   await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
     /Charge .* run credits\?/,
   )
   await page.getByRole('button', { name: 'Charge the card' }).click()
-  await page.locator('[data-test="purchase-outcome"]').getByText(outcome).waitFor()
+  const shown = page.locator('[data-test="purchase-outcome"]')
+  await vi.waitFor(
+    async () => {
+      const text = (await shown.count()) > 0 ? await shown.innerText() : '(no outcome shown)'
+      expect(text).toMatch(outcome)
+    },
+    // Beyond the server's 30 s payment timeout, so a slow payment server shows its own message.
+    { timeout: 40_000, interval: 250 },
+  )
 }
 
 describe('the credits page', () => {
-  it('lets the admin buy a pack with a test card, and the balance goes up by its credits', async () => {
-    expect(env.server.output()).toMatch(
-      /Payments: test mode, through in-process Stripe mock at http:\/\/127\.0\.0\.1:\d+/,
-    )
-    const page = await env.browser.newPage()
-    await signInThroughForm(page, env.server.url, demoMembers.admin.email)
-    await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Credits' }).click()
-    await page.waitForURL((u) => u.pathname === '/credits')
+  it(
+    'lets the admin buy a pack with a test card, and the balance goes up by its credits',
+    { timeout: 120_000 },
+    async () => {
+      expect(env.server.output()).toMatch(
+        /Payments: test mode, through in-process Stripe mock at http:\/\/127\.0\.0\.1:\d+/,
+      )
+      const page = await env.browser.newPage()
+      await signInThroughForm(page, env.server.url, demoMembers.admin.email)
+      await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Credits' }).click()
+      await page.waitForURL((u) => u.pathname === '/credits')
 
-    await expect(page.locator('[data-test="test-mode-banner"]').innerText()).resolves.toMatch(/TEST MODE/)
-    const balance = page.locator('[data-test="credit-balance"]')
-    await expect(balance.innerText()).resolves.toBe('25')
+      await expect(page.locator('[data-test="test-mode-banner"]').innerText()).resolves.toMatch(/TEST MODE/)
+      const balance = page.locator('[data-test="credit-balance"]')
+      await expect(balance.innerText()).resolves.toBe('25')
 
-    // naive-ui hides the native radio inputs; a person clicks the visible choice.
-    await page.locator('[data-test="pack-choice"]', { hasText: small.name }).click()
-    await buyWithTestCard(page, 'test card: succeeds', /Bought 10 run credits/)
-    await page.waitForFunction(
-      () => document.querySelector('[data-test="credit-balance"]')?.textContent === '35',
-    )
-    expect(await page.locator('[data-test="ledger-table"]').innerText()).toContain('Credits bought')
-    expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/paid/)
-    await page.screenshot({ path: artifactPath('credits-admin-bought.png'), fullPage: true })
+      // naive-ui hides the native radio inputs; a person clicks the visible choice.
+      await page.locator('[data-test="pack-choice"]', { hasText: small.name }).click()
+      await buyWithTestCard(page, 'test card: succeeds', /Bought 10 run credits/)
+      await page.waitForFunction(
+        () => document.querySelector('[data-test="credit-balance"]')?.textContent === '35',
+      )
+      expect(await page.locator('[data-test="ledger-table"]').innerText()).toContain('Credits bought')
+      expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/paid/)
+      await page.screenshot({ path: artifactPath('credits-admin-bought.png'), fullPage: true })
 
-    await buyWithTestCard(page, 'declined (insufficient funds)', /insufficient funds/)
-    expect(await balance.innerText()).toBe('35')
-    expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/declined/)
-    await page.screenshot({ path: artifactPath('credits-admin-declined.png'), fullPage: true })
-    await page.getByRole('button', { name: 'Sign out' }).click()
-    await page.waitForURL(/\/sign-in/)
-    await page.close()
-  })
+      await buyWithTestCard(page, 'declined (insufficient funds)', /insufficient funds/)
+      expect(await balance.innerText()).toBe('35')
+      expect(await page.locator('[data-test="purchase-history"]').innerText()).toMatch(/declined/)
+      await page.screenshot({ path: artifactPath('credits-admin-declined.png'), fullPage: true })
+      await page.getByRole('button', { name: 'Sign out' }).click()
+      await page.waitForURL(/\/sign-in/)
+      await page.close()
+    },
+  )
 
   it('shows an engineer the balance and who can buy, with no card form', async () => {
     const page = await env.browser.newPage()
