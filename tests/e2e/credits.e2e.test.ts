@@ -1,4 +1,4 @@
-import type { Page } from 'playwright-core'
+import type { Page, Request } from 'playwright-core'
 import { describe, expect, it, vi } from 'vitest'
 import { creditPacks } from '../../shared/credits/creditPacks.js'
 import { artifactPath, demoMembers, signInThroughForm, useBrowserTestEnvironment } from './harness.js'
@@ -19,20 +19,33 @@ async function buyWithTestCard(page: Page, card: string, outcome: RegExp) {
   await vi.waitFor(async () => expect(await choice.locator('input').isChecked()).toBe(true), {
     timeout: 10_000,
   })
+  // The last purchase's confirm box must be gone, not still fading out: naive-ui ignores a click
+  // on the button of a box that is closing, and a click on Buy meanwhile can reopen that one.
+  await page.locator('[data-test="purchase-confirm"]').waitFor({ state: 'detached', timeout: 10_000 })
   await page.locator('[data-test="buy-credits"]:not([disabled])').click()
   await expect(page.locator('[data-test="purchase-confirm"]').innerText()).resolves.toMatch(
     /Charge .* run credits\?/,
   )
+  const requests: string[] = []
+  const seen = (r: Request) => {
+    if (r.url().includes('/api/')) requests.push(`${r.method()} ${new URL(r.url()).pathname}`)
+  }
+  page.on('request', seen)
+  const confirms = await page.locator('[data-test="purchase-confirm"]').count()
   await page.getByRole('button', { name: 'Charge the card' }).click()
   const shown = page.locator('[data-test="purchase-outcome"]')
   await vi.waitFor(
     async () => {
       const text = (await shown.count()) > 0 ? await shown.innerText() : '(no outcome shown)'
-      expect(text).toMatch(outcome)
+      expect(
+        text,
+        `requests since the confirm: ${requests.join(', ') || 'none'}; confirm boxes: ${confirms}`,
+      ).toMatch(outcome)
     },
     // Beyond the server's 30 s payment timeout, so a slow payment server shows its own message.
     { timeout: 40_000, interval: 250 },
   )
+  page.off('request', seen)
 }
 
 describe('the credits page', () => {
