@@ -109,11 +109,18 @@ function sinusoidAmplitude(
   return Math.sqrt(p * p + r * r)
 }
 
-/** Upper bounds on max|u|, max|v| and max|A| inside a step, given the larger end values (see above). */
-export function stepBounds(
-  state: StepState,
-  ends: { u: number; v: number; a: number },
-): { u: number; v: number; a: number } {
+/** Bounds on max|u|, max|v| and max|A|, or the larger end values they start from. */
+export interface StepMaxima {
+  u: number
+  v: number
+  a: number
+}
+
+/**
+ * Upper bounds on max|u|, max|v| and max|A| inside a step, given the larger end values (see
+ * above), written into `out` so the hot path allocates nothing.
+ */
+function stepBoundsInto(out: StepMaxima, state: StepState, ends: StepMaxima): StepMaxima {
   const { u0, v0, f0, f1, stepS, omega, zeta } = state
   const s = (f1 - f0) / stepS
   const w = sinusoidAmplitude(u0, v0, f0, s, omega, zeta)
@@ -122,11 +129,15 @@ export function stepBounds(
   const k = omega * omega
   const c = 2 * zeta * omega
   const q = ((omega * stepS) ** 2 / 8) * MARGIN_RAISE
-  return {
-    u: Math.min(ends.u + q * w, fm / k + (c * as) / (k * k) + w),
-    v: Math.min(ends.v + q * omega * w, as / k + omega * w),
-    a: Math.min(ends.a + q * k * w, fm + k * w),
-  }
+  out.u = Math.min(ends.u + q * w, fm / k + (c * as) / (k * k) + w)
+  out.v = Math.min(ends.v + q * omega * w, as / k + omega * w)
+  out.a = Math.min(ends.a + q * k * w, fm + k * w)
+  return out
+}
+
+/** Upper bounds on max|u|, max|v| and max|A| inside a step, given the larger end values (see above). */
+export function stepBounds(state: StepState, ends: StepMaxima): StepMaxima {
+  return stepBoundsInto({ u: 0, v: 0, a: 0 }, state, ends)
 }
 
 /** Which of u, v and A a step's search is wanted for (all, unless a bound rules some out). */
@@ -373,6 +384,12 @@ export function raisePeaksBetweenSteps(
 ): void {
   const m = subSteps
   const h = stepS
+  // One state, one set of end values and bounds, one wanted set, reused for every listed step:
+  // most listed steps are ruled out by the bounds, and the loop then allocates nothing.
+  const state: StepState = { u0: 0, v0: 0, f0: 0, f1: 0, stepS: h, omega: 0, zeta: 0 }
+  const ends: StepMaxima = { u: 0, v: 0, a: 0 }
+  const bound: StepMaxima = { u: 0, v: 0, a: 0 }
+  const wanted: Wanted = { u: false, v: false, a: false }
   for (let e = 0; e < found; e++) {
     const at = CANDIDATE_VALUES * e
     const slot = values[at]! | 0
@@ -389,23 +406,29 @@ export function raisePeaksBetweenSteps(
     const f0 = j === 0 ? start : start + slope * j
     const f1 = j + 1 === m ? end : start + slope * (j + 1)
     const oscillator = oscillators[slot]!
-    const startS = (step - 1) * h
     const { omega, zeta } = oscillator
     const { a11, a12, b1, c1, a21, a22, b2, c2 } = oscillator.coefficients
     const u1 = a11 * u0 + a12 * v0 + b1 * f0 + c1 * f1
     const v1 = a21 * u0 + a22 * v0 + b2 * f0 + c2 * f1
     const c = 2 * zeta * omega
     const k = omega * omega
-    const state: StepState = { u0, v0, f0, f1, stepS: h, omega, zeta }
+    state.u0 = u0
+    state.v0 = v0
+    state.f0 = f0
+    state.f1 = f1
+    state.omega = omega
+    state.zeta = zeta
     // The kernel listed the step against the running peaks; the same bounds held against the
     // peaks of the whole record, per quantity, leave out what cannot beat them.
-    const bound = stepBounds(state, {
-      u: Math.max(Math.abs(u0), Math.abs(u1)),
-      v: Math.max(Math.abs(v0), Math.abs(v1)),
-      a: Math.max(Math.abs(c * v0 + k * u0), Math.abs(c * v1 + k * u1)),
-    })
-    const wanted = { u: bound.u >= target.sd, v: bound.v >= target.sv, a: bound.a >= target.sa }
+    ends.u = Math.max(Math.abs(u0), Math.abs(u1))
+    ends.v = Math.max(Math.abs(v0), Math.abs(v1))
+    ends.a = Math.max(Math.abs(c * v0 + k * u0), Math.abs(c * v1 + k * u1))
+    stepBoundsInto(bound, state, ends)
+    wanted.u = bound.u >= target.sd
+    wanted.v = bound.v >= target.sv
+    wanted.a = bound.a >= target.sa
     if (!(wanted.u || wanted.v || wanted.a)) continue
+    const startS = (step - 1) * h
     const extremes =
       oscillator.method === 'piecewise-exact'
         ? exactStepExtremes(state, wanted)
