@@ -26,6 +26,19 @@ export interface OscillatorSpec {
   recurrence?: SpectrumMethod
   /** How the sweep reads this oscillator's peaks (default 'step-ends'; see subSteps.ts). */
   reading?: PeakReading
+  /**
+   * Expected lower bounds on the peaks over the record (from an earlier pass), which spare the
+   * kernel from listing steps that cannot reach them. They never change a result: a peak that
+   * does not end above its start value is swept again from 0 (see sweepOscillators).
+   */
+  start?: StartValues
+}
+
+/** Values the running peaks of |u|, |v| and |A| start from in the kernel. */
+export interface StartValues {
+  sd: number
+  sv: number
+  sa: number
 }
 
 /** Peaks per oscillator, in the order the oscillators were given. */
@@ -53,6 +66,8 @@ export interface SweepOptions {
   onProgress?: (fraction: number) => void
   /** Add the free vibration after the record (default true). */
   freeVibrationTail?: boolean
+  /** Told the oscillator-steps of oscillators swept again because a start value proved too high. */
+  onSweptAgain?: (oscillatorSteps: number) => void
 }
 
 /** Oscillator-steps per kernel call, about 10 ms of work, so progress moves often. */
@@ -89,6 +104,8 @@ export function sweepOscillators(
   let totalSteps = 0
   for (const oscillator of oscillators) totalSteps += intervals * oscillator.subSteps
   let doneSteps = 0
+  /** Oscillators whose start values proved too high: swept again from 0 at the end. */
+  const sweepAgain: number[] = []
 
   kernel.loadRecord(accel)
   const { lanes, width } = kernel
@@ -121,6 +138,7 @@ export function sweepOscillators(
         const omega = (2 * Math.PI) / oscillator.periodS
         const c = recurrenceCoefficients(recurrence, omega, oscillator.dampingRatio, stepS)
         const values = kernelCoefficients(c, omega, oscillator.dampingRatio, stepS, bounds)
+        values.push(oscillator.start?.sd ?? 0, oscillator.start?.sv ?? 0, oscillator.start?.sa ?? 0)
         for (let q = 0; q < COEFFICIENT_ARRAYS; q++) coeffs[q * padded + slot] = values[q]!
         solved.push({ method: recurrence, coefficients: c, omega, zeta: oscillator.dampingRatio })
       }
@@ -148,6 +166,20 @@ export function sweepOscillators(
       )
       members.forEach((index, slot) => {
         const oscillator = oscillators[index]!
+        const start = oscillator.start
+        // Steps left out for a start value were below it; it was a lower bound on the peak (so
+        // they cannot hold one) only if the peak over the record ends above it.
+        if (
+          start &&
+          !(
+            startHeld(chunkPeaks[slot]!.sd, start.sd) &&
+            startHeld(chunkPeaks[slot]!.sv, start.sv) &&
+            startHeld(chunkPeaks[slot]!.sa, start.sa)
+          )
+        ) {
+          sweepAgain.push(index)
+          return
+        }
         let { sd, sdTimeS: sdTime, sv, sa, saTimeS: saTime } = chunkPeaks[slot]!
         if (withTail) {
           const omega = (2 * Math.PI) / oscillator.periodS
@@ -178,5 +210,21 @@ export function sweepOscillators(
     }
     next = groupEnd
   }
+  if (sweepAgain.length > 0) {
+    const again = sweepAgain.map((index) => ({ ...oscillators[index]!, start: undefined }))
+    const swept = sweepOscillators(record, again, method, { ...options, onProgress: undefined })
+    sweepAgain.forEach((index, slot) => {
+      for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const)
+        peaks[key][index] = swept[key][slot]!
+    })
+    let steps = 0
+    for (const oscillator of again) steps += intervals * oscillator.subSteps
+    options.onSweptAgain?.(steps)
+  }
   return peaks
+}
+
+/** Whether a peak ended strictly above the value its running maximum started from (or that was 0). */
+function startHeld(peak: number, start: number): boolean {
+  return start === 0 || peak > start
 }

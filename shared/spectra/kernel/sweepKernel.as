@@ -27,7 +27,8 @@
 // exactly, so both kernels give the same bits (IEEE-754 double, no fused multiply-add).
 //
 // Memory layout (arrays of `count` f64, count even; scratch holds 4097 f64):
-//   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp
+//   coeffs: a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp,
+//           then the starting values of max|u|, max|v|, max|A| (0, or a lower bound the caller checks)
 //   out:    max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end
 //   candidates: (oscillator, step, u at start, v at start), the last area in use: the kernel
 //               grows the memory where the entries reach its end
@@ -44,7 +45,7 @@ function lin(a: v128, x: v128, b: v128, y: v128, c: v128, f0: v128, d: v128, f1:
 }
 
 /** The coefficients of the pair being swept, in the order of `coeffs`, one vector each. */
-const PAIR = memory.data(18 * 16, 16)
+const PAIR = memory.data(21 * 16, 16)
 
 /** Coefficient `q` of the pair being swept (a fixed address once inlined). */
 @inline
@@ -54,6 +55,7 @@ function coefficient(q: i32): v128 {
 
 const A11 = 0, A12 = 1, B1 = 2, C1 = 3, A21 = 4, A22 = 5, B2 = 6, C2 = 7, CC = 8, KK = 9
 const OMEGA = 10, MARGIN = 11, SIGMA = 12, INV_OMEGA_D = 13, INV_K = 14, C_OVER_K2 = 15, UP = 16, VP = 17
+const START_U = 18, START_V = 19, START_A = 20
 
 /** Sub-steps of forcing interpolated per block (the scratch area holds one more value). */
 const BLOCK_STEPS: i32 = 4096
@@ -161,11 +163,14 @@ function sweepTwo(
   stride: usize, samples: i32, subSteps: i32, invStep: f64, first: i32, c: usize, record: usize, r: usize,
   scratch: usize, candidates: usize, foundBefore: i32,
 ): i32 {
-  for (let q: i32 = 0; q < 18; q++) v128.store(PAIR + ((<usize>q) << 4), v128.load(c + (<usize>q) * stride))
+  for (let q: i32 = 0; q < 21; q++) v128.store(PAIR + ((<usize>q) << 4), v128.load(c + (<usize>q) * stride))
   const invH = f64x2.splat(invStep)
 
   const zero = f64x2.splat(0)
-  let u = zero, v = zero, mu = zero, mv = zero, ma = zero, ku = zero, ka = zero, la = zero
+  // The running maxima start at the given values: 0, or lower bounds on the peaks that only
+  // thin out the listed steps (the caller checks that each peak ends above its start).
+  let u = zero, v = zero, ku = zero, ka = zero, la = zero
+  let mu = coefficient(START_U), mv = coefficient(START_V), ma = coefficient(START_A)
   let step: f64 = 0
   let found = foundBefore
   const blockIntervals = max(1, BLOCK_STEPS / subSteps)

@@ -30,9 +30,43 @@ describe('sweep kernels', () => {
   // Coefficients of stable-looking recurrences; the kernels must agree on any numbers. The
   // bound coefficients (ω onwards) are positive, the margin factor q small enough that some
   // steps are listed and some are not.
+  // The last three arrays, the running peaks' start values, are 0 here (see the test of them).
   const coeffs = Float64Array.from({ length: COEFFICIENT_ARRAYS * count }, (_, i) =>
-    i < 10 * count ? 0.5 * (random() - 0.5) : i < 11 * count || i >= 12 * count ? random() : 0.01 * random(),
+    i >= 18 * count
+      ? 0
+      : i < 10 * count
+        ? 0.5 * (random() - 0.5)
+        : i < 11 * count || i >= 12 * count
+          ? random()
+          : 0.01 * random(),
   )
+
+  it('start the running peaks from given values: the same bits in both kernels, fewer steps listed, and the same peaks where the values lie below them', () => {
+    const wasm = createWasmKernel()!
+    const js = createJsKernel()
+    const sweep = (kernel: ReturnType<typeof createJsKernel>, c: Float64Array) => {
+      const out = new Float64Array(OUTPUT_ARRAYS * count)
+      const list = { values: new Float64Array(CANDIDATE_VALUES * 20_000), capacity: 20_000 }
+      kernel.loadRecord(record)
+      const found = kernel.sweep(count, 3, 0.01 / 3, c, out, list)
+      return { out, found, list: entries(list.values, found) }
+    }
+    const fromZero = sweep(js, coeffs)
+    // Start each peak at 90% of the peak the sweep from 0 found.
+    const started = coeffs.slice()
+    for (let q = 0; q < 3; q++)
+      for (let o = 0; o < count; o++) started[(18 + q) * count + o] = 0.9 * fromZero.out[q * count + o]!
+    const fromStartJs = sweep(js, started)
+    const fromStartWasm = sweep(wasm, started)
+    expect(Array.from(fromStartWasm.out)).toEqual(Array.from(fromStartJs.out))
+    expect(fromStartWasm.list).toEqual(fromStartJs.list)
+    // Below the peaks, the start values change no peak, no peak step and no end state...
+    expect(Array.from(fromStartJs.out)).toEqual(Array.from(fromZero.out))
+    // ...and list a subset of the steps.
+    expect(fromStartJs.found).toBeLessThan(fromZero.found)
+    const listed = new Set(fromZero.list.map((entry) => JSON.stringify(entry)))
+    expect(fromStartJs.list.every((entry) => listed.has(JSON.stringify(entry)))).toBe(true)
+  })
 
   it('the WebAssembly SIMD kernel and the JavaScript kernel give the same bits', () => {
     const wasm = createWasmKernel()

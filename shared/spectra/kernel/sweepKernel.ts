@@ -28,7 +28,10 @@
  * branch, and evaluates W exactly only where that fails.
  *
  * Layout, structure of arrays, `count` oscillators:
- * - coeffs (18·count): a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp;
+ * - coeffs (21·count): a11, a12, b1, c1, a21, a22, b2, c2, cc, kk, ω, q, σ, 1/ω_D, 1/k, c/k², up, vp,
+ *   then the values max|u|, max|v| and max|A| start from: 0, or lower bounds on the peaks, which
+ *   only thin out the listed steps; the caller checks that each peak ends above its start and
+ *   sweeps again from 0 where one does not (sweepOscillators.ts);
  * - out (7·count): max|u|, max|v|, max|A|, step of max|u|, step of max|A|, u at end, v at end;
  * - candidates (4 per entry): oscillator index, step, u and v at the step's start.
  *
@@ -41,7 +44,7 @@ import { SWEEP_KERNEL_WASM_BASE64 } from './sweepKernelWasm.generated.js'
 
 export type KernelName = 'wasm-simd' | 'js'
 
-export const COEFFICIENT_ARRAYS = 18
+export const COEFFICIENT_ARRAYS = 21
 export const OUTPUT_ARRAYS = 7
 /** Values per candidate entry. */
 export const CANDIDATE_VALUES = 4
@@ -200,9 +203,9 @@ export function jsSweep(
     const vp = coeffs[17 * count + o]!
     let u = 0
     let v = 0
-    let maxU = 0
-    let maxV = 0
-    let maxA = 0
+    let maxU = coeffs[18 * count + o]!
+    let maxV = coeffs[19 * count + o]!
+    let maxA = coeffs[20 * count + o]!
     let stepU = 0
     let stepA = 0
     let pu = 0
