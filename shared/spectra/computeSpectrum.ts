@@ -557,12 +557,20 @@ function recordSolver(
     peaks,
     stepsRun: 0,
     solve(indices: readonly number[], onProgress?: (fraction: number) => void) {
-      // A pass after the first starts the kernel's running peaks just below the last pass's.
-      const specs = indices.map((index) =>
-        solvedBefore[index]
-          ? { ...oscillators[index]!, start: startBelow(peaks, index) }
-          : oscillators[index]!,
-      )
+      // For a Newmark method the exact check runs first, so that the first Newmark pass can
+      // start the kernel's running peaks just below the exact ones; a later pass starts them
+      // just below the last pass's. Neither changes a result (see START_BELOW).
+      if (!exact && method !== 'piecewise-exact') {
+        exact = exactPeaks(record, oscillators, method, kernel, (steps) => (solver.stepsRun += steps))
+        solver.stepsRun += intervals * exact.count
+      }
+      const checked = exact
+      const specs = indices.map((index): OscillatorSpec => {
+        const oscillator = oscillators[index]!
+        if (solvedBefore[index]) return { ...oscillator, start: startBelow(peaks, index) }
+        const slot = checked?.slotOf[index] ?? -1
+        return slot >= 0 ? { ...oscillator, start: startBelow(checked!.peaks, slot) } : oscillator
+      })
       const solved = sweepOscillators(record, specs, method, {
         kernel,
         onProgress,
@@ -579,10 +587,7 @@ function recordSolver(
     peakBound(index: number) {
       // The exact search leaves nothing between steps unread (subSteps.ts).
       if ((oscillators[index]!.recurrence ?? method) === 'piecewise-exact') return 0
-      if (!exact) {
-        exact = exactPeaks(record, oscillators, method, kernel, peaks, (steps) => (solver.stepsRun += steps))
-        solver.stepsRun += intervals * exact.count
-      }
+      if (!exact) throw new Error('the exact check runs before the first Newmark pass')
       return relativeDifference(peaks, exact.peaks, index, exact.slotOf[index]!)
     },
   }
@@ -590,10 +595,11 @@ function recordSolver(
 }
 
 /**
- * Where a later pass starts an oscillator's running peaks: a little below the last pass's
- * peaks, which a Newmark pass or the exact recurrence rarely undercuts by more than a few
- * tenths of a percent. Only the kernel's listing of steps depends on it, never a result
- * (sweepOscillators.ts sweeps again from 0 where a peak does not end above its start).
+ * Where a pass starts an oscillator's running peaks: a little below peaks it is expected to
+ * reach (the exact check's, for the first Newmark pass; the last pass's, for a later one), which
+ * it rarely undercuts by more than a few tenths of a percent. Only the kernel's listing of steps
+ * depends on it, never a result (sweepOscillators.ts sweeps again from 0 where a peak does not
+ * end above its start).
  */
 const START_BELOW = 0.9
 
@@ -605,16 +611,12 @@ function startBelow(peaks: OscillatorPeaks, index: number): StartValues {
   }
 }
 
-/**
- * The peaks of a sweep's Newmark oscillators on the piecewise-exact recurrence, one step per
- * sample, its kernel's running peaks started just below the Newmark ones (`newmark`).
- */
+/** The peaks of a sweep's Newmark oscillators on the piecewise-exact recurrence, one step per sample. */
 function exactPeaks(
   record: SpectrumRecord,
   oscillators: readonly OscillatorSpec[],
   method: SpectrumMethod,
   kernel: SweepKernel,
-  newmark: OscillatorPeaks,
   onSweptAgain: (steps: number) => void,
 ): { peaks: OscillatorPeaks; slotOf: Int32Array; count: number } {
   const slotOf = new Int32Array(oscillators.length).fill(-1)
@@ -628,7 +630,6 @@ function exactPeaks(
       subSteps: 1,
       recurrence: 'piecewise-exact',
       reading: 'between-steps',
-      start: startBelow(newmark, index),
     })
   })
   return {
