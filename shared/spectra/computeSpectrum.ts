@@ -49,6 +49,7 @@ import {
   type StartValues,
   oscillatorPeaks,
   sweepOscillators,
+  sweepOscillatorsStaged,
 } from './sweepOscillators.js'
 import type { SpectrumWarning } from './warnings.js'
 import { PEAK_SEARCH_SUMMARY } from './methodSummary.js'
@@ -571,7 +572,10 @@ function recordSolver(
         const slot = checked?.slotOf[index] ?? -1
         return slot >= 0 ? { ...oscillator, start: startBelow(checked!.peaks, slot) } : oscillator
       })
-      const solved = sweepOscillators(record, specs, method, {
+      // With nothing earlier to start from (the first pass of the piecewise-exact method), the
+      // pass starts from its own first stage (sweepOscillatorsStaged).
+      const sweep = specs.some((spec) => spec.start) ? sweepOscillators : sweepOscillatorsStaged
+      const solved = sweep(record, specs, method, {
         kernel,
         onProgress,
         onSweptAgain: (steps) => (solver.stepsRun += steps),
@@ -633,7 +637,7 @@ function exactPeaks(
     })
   })
   return {
-    peaks: sweepOscillators(record, specs, 'piecewise-exact', { kernel, onSweptAgain }),
+    peaks: sweepOscillatorsStaged(record, specs, 'piecewise-exact', { kernel, onSweptAgain }),
     slotOf,
     count: specs.length,
   }

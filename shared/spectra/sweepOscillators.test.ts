@@ -2,7 +2,8 @@ import { describe, expect, it } from 'vitest'
 import { demoRecord } from './demo/demoRecords.js'
 import { jsKernel, wasmKernel } from './kernel/sweepKernel.js'
 import { parseRecord } from './parseRecord.js'
-import { type OscillatorSpec, sweepOscillators } from './sweepOscillators.js'
+import { type OscillatorSpec, sweepOscillators, sweepOscillatorsStaged } from './sweepOscillators.js'
+import { logPeriodGrid } from './periods.js'
 
 /**
  * Start values of the running peaks (OscillatorSpec.start) only thin out the steps the kernel
@@ -57,4 +58,21 @@ describe('sweepOscillators with start values', () => {
       }
     })
   }
+
+  it('in two stages (neighbours first), gives the peaks of one sweep, bit for bit, on fine, coarse and unsorted grids', () => {
+    const grids = [
+      logPeriodGrid(0.01, 10, 120),
+      logPeriodGrid(0.05, 5, 12),
+      [3, 0.02, 0.5, 0.07, 1.1, 0.3, 8, 0.011, 2, 0.15, 0.04, 5],
+    ]
+    for (const grid of grids) {
+      const specs: OscillatorSpec[] = [0, 0.05, 0.2].flatMap((dampingRatio) =>
+        grid.map((periodS) => ({ periodS, dampingRatio, subSteps: 1, reading: 'between-steps' as const })),
+      )
+      const whole = sweepOscillators(job, specs, 'piecewise-exact')
+      const staged = sweepOscillatorsStaged(job, specs, 'piecewise-exact')
+      for (const key of ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const)
+        expect(Array.from(staged[key]), `${grid.length} periods, ${key}`).toEqual(Array.from(whole[key]))
+    }
+  })
 })

@@ -228,3 +228,90 @@ export function sweepOscillators(
 function startHeld(peak: number, start: number): boolean {
   return start === 0 || peak > start
 }
+
+/** Every STAGE_STRIDE-th oscillator of a damping ratio, in period order, is swept first, from 0. */
+const STAGE_STRIDE = 8
+/** The rest start at this share of the smaller of their nearest swept neighbours' peaks... */
+const NEIGHBOUR_SHARE = 0.5
+/** ...when those neighbours' periods lie within this ratio of theirs (else from 0). */
+const NEIGHBOUR_PERIOD_RATIO = 1.5
+
+/**
+ * sweepOscillators in two stages, for a pass with nothing earlier to start its running peaks
+ * from: every STAGE_STRIDE-th oscillator of each damping ratio (in period order) first, from 0;
+ * then the rest, each started at NEIGHBOUR_SHARE of the smaller peak of its nearest neighbours in
+ * period from the first stage (the spectrum seldom falls by half between them), where those lie
+ * within NEIGHBOUR_PERIOD_RATIO of its period. Start values
+ * only thin out the listed steps and never change a result (see OscillatorSpec.start), so the
+ * peaks are those of sweepOscillators, bit for bit.
+ */
+export function sweepOscillatorsStaged(
+  record: { accelMPerS2: Float64Array; dtS: number },
+  oscillators: readonly OscillatorSpec[],
+  method: SpectrumMethod,
+  options: SweepOptions = {},
+): OscillatorPeaks {
+  const count = oscillators.length
+  const byDamping = new Map<number, number[]>()
+  oscillators.forEach((oscillator, index) => {
+    const list = byDamping.get(oscillator.dampingRatio) ?? []
+    list.push(index)
+    byDamping.set(oscillator.dampingRatio, list)
+  })
+  const first: number[] = []
+  const rest: number[] = []
+  const neighbours = new Map<number, [number, number]>()
+  for (const list of byDamping.values()) {
+    list.sort((a, b) => oscillators[a]!.periodS - oscillators[b]!.periodS || a - b)
+    const chosen = list.filter((_, at) => at % STAGE_STRIDE === 0 || at === list.length - 1)
+    first.push(...chosen)
+    list.forEach((index, at) => {
+      if (at % STAGE_STRIDE === 0 || at === list.length - 1) return
+      const below = list[at - (at % STAGE_STRIDE)]!
+      const above = list[Math.min(list.length - 1, at - (at % STAGE_STRIDE) + STAGE_STRIDE)]!
+      rest.push(index)
+      const periodS = oscillators[index]!.periodS
+      const near =
+        periodS / oscillators[below]!.periodS <= NEIGHBOUR_PERIOD_RATIO &&
+        oscillators[above]!.periodS / periodS <= NEIGHBOUR_PERIOD_RATIO
+      if (near) neighbours.set(index, [below, above])
+    })
+  }
+  if (rest.length === 0 || first.length === 0) return sweepOscillators(record, oscillators, method, options)
+  let firstSteps = 0
+  let totalSteps = 0
+  for (const index of first) firstSteps += oscillators[index]!.subSteps
+  for (const oscillator of oscillators) totalSteps += oscillator.subSteps
+  const share = firstSteps / totalSteps
+  const progress = options.onProgress
+  const early = sweepOscillators(
+    record,
+    first.map((index) => oscillators[index]!),
+    method,
+    { ...options, onProgress: progress && ((fraction) => progress(share * fraction)) },
+  )
+  const peaks = oscillatorPeaks(count)
+  const keys = ['sdM', 'svMPerS', 'saMPerS2', 'sdTimeS', 'saTimeS'] as const
+  const slotOf = new Map<number, number>()
+  first.forEach((index, slot) => {
+    slotOf.set(index, slot)
+    for (const key of keys) peaks[key][index] = early[key][slot]!
+  })
+  const lower = (key: 'sdM' | 'svMPerS' | 'saMPerS2', [a, b]: [number, number]) =>
+    NEIGHBOUR_SHARE * Math.min(early[key][slotOf.get(a)!]!, early[key][slotOf.get(b)!]!)
+  const late = sweepOscillators(
+    record,
+    rest.map((index) => {
+      const pair = neighbours.get(index)
+      if (!pair) return oscillators[index]!
+      const start = { sd: lower('sdM', pair), sv: lower('svMPerS', pair), sa: lower('saMPerS2', pair) }
+      return { ...oscillators[index]!, start }
+    }),
+    method,
+    { ...options, onProgress: progress && ((fraction) => progress(share + (1 - share) * fraction)) },
+  )
+  rest.forEach((index, slot) => {
+    for (const key of keys) peaks[key][index] = late[key][slot]!
+  })
+  return peaks
+}
