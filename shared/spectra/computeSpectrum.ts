@@ -684,6 +684,7 @@ function pairSolver(
         method,
         kernel,
         onProgress,
+        (steps) => (solver.stepsRun += steps),
       ).forEach((solved, slot) => {
         peaks[indices[slot]!] = solved
       })

@@ -162,6 +162,42 @@ describe('rotatedPeaks', () => {
     }
   })
 
+  it('started from half of another polygon, gives the same bits where every peak rises above its start, and says when one does not', () => {
+    const n = 3000
+    const random = mulberry32(11)
+    const h1 = Float64Array.from({ length: n }, (_, i) => Math.sin(i * 0.05) + 0.3 * (random() - 0.5))
+    const h2 = Float64Array.from({ length: n }, (_, i) => 0.7 * Math.cos(i * 0.043) + 0.3 * (random() - 0.5))
+    const fromZero = new DirectionalPeaks()
+    fromZero.addMany(h1, h2, n)
+    // A related motion, a little weaker: half its polygon lies well inside this one's.
+    const other = new DirectionalPeaks()
+    other.addMany(
+      h1.map((x) => 0.9 * x),
+      h2.map((y) => 0.8 * y),
+      n,
+    )
+    const started = new DirectionalPeaks()
+    const start = other.snapshot()
+    started.startFrom(start)
+    // Before any sample the peaks are exactly half the other's.
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) expect(started.peaks[k]).toBe(0.5 * other.peaks[k]!)
+    for (let at = 0; at < n; at += 500)
+      started.addMany(h1.subarray(at), h2.subarray(at), Math.min(500, n - at))
+    expect(started.heldAbove(start)).toBe(true)
+    expect(Buffer.from(started.peaks.buffer)).toEqual(Buffer.from(fromZero.peaks.buffer))
+    // Started from a polygon more than twice as large, the peaks stay at its half: not the samples' own.
+    const large = new DirectionalPeaks()
+    large.addMany(
+      h1.map((x) => 3 * x),
+      h2.map((y) => 3 * y),
+      n,
+    )
+    const tooHigh = new DirectionalPeaks()
+    tooHigh.startFrom(large.snapshot())
+    tooHigh.addMany(h1, h2, n)
+    expect(tooHigh.heldAbove(large.snapshot())).toBe(false)
+  })
+
   it('gives the peaks of a full scan in the same arithmetic, bit for bit, where the skip tests are at their edges', () => {
     // The skip tests must never skip a sample that raises a peak, so the search must give exactly
     // the definition max_i |x_i·cos θ + y_i·sin θ| computed the same way (cos 90° = 0, sin 90° = 1,
@@ -445,6 +481,48 @@ describe('computeSpectrum of a pair', () => {
       'damping-above-accuracy-limit',
       'peak-bound-above-budget',
     ])
+  })
+
+  it('solved in two stages, started from neighbours, gives each oscillator the bits it has solved alone, and runs again from 0 where a start was too high', () => {
+    // Two sinusoids at 1 s and 1.4 s: with 2% damping the first-stage oscillators (the 1st, the
+    // 9th and the last, here at the two resonances) respond several times more than the ones
+    // between them, so those starts are too high and must be run again from 0.
+    const dtS = 0.01
+    const n = 3001
+    const wave = (phase: number) =>
+      Float64Array.from(
+        { length: n },
+        (_, i) =>
+          Math.sin((2 * Math.PI * i * dtS) / 1 + phase) + Math.sin((2 * Math.PI * i * dtS) / 1.4 + 2 * phase),
+      )
+    const pair = { accel1MPerS2: wave(0), accel2MPerS2: wave(1), dtS }
+    const oscillators = Array.from({ length: 9 }, (_, p) => ({
+      periodS: 1 * 1.4 ** (p / 8),
+      dampingRatio: 0.02,
+      subSteps: 2,
+    }))
+    // Periods near each other, with starts that hold: the neighbours of a smooth stretch.
+    const smooth = Array.from({ length: 12 }, (_, p) => ({
+      periodS: 2 + 0.05 * p,
+      dampingRatio: 0.05,
+      subSteps: 1,
+    }))
+    for (const list of [oscillators, smooth]) {
+      let again = 0
+      const staged = solvePairOscillators(pair, list, 'newmark-average', jsKernel(), undefined, (steps) => {
+        again += steps
+      })
+      list.forEach((oscillator, index) => {
+        const [alone] = solvePairOscillators(pair, [oscillator], 'newmark-average', jsKernel())
+        for (const key of ['u', 'v', 'a'] as const) {
+          expect(Buffer.from(staged[index]![key].buffer), `oscillator ${index} ${key}`).toEqual(
+            Buffer.from(alone![key].buffer),
+          )
+        }
+      })
+      if (list === oscillators) expect(again).toBeGreaterThan(0)
+      else expect(again).toBe(0)
+    }
   })
 
   it('runs the histories on the kernel it is given, with the same bits, and names it in the method statement', () => {

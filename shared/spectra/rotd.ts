@@ -14,9 +14,14 @@
 import type { Combination } from '../vocabulary/combinations.js'
 import type { OrdinatePeaks } from './computeSpectrum.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
-import { type HistoryFold, PAIR_COEFFICIENTS, type SweepKernel } from './kernel/sweepKernel.js'
+import {
+  type HistoryFold,
+  type HistorySkip,
+  PAIR_COEFFICIENTS,
+  type SweepKernel,
+} from './kernel/sweepKernel.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
-import type { OscillatorSpec } from './sweepOscillators.js'
+import { type OscillatorSpec, stagedOrder } from './sweepOscillators.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
 export const ROTATION_ANGLE_COUNT = 180
@@ -63,6 +68,17 @@ const RAISED = 2
 const SEEDED_BLOCK = 64
 /** The seeds are looked for among every SEED_STRIDE-th sample: any samples serve, the extremes only tighten the polygon. */
 const SEED_STRIDE = 8
+
+/**
+ * A tracker's peaks and setters, to start another from. START_SHARE is a power of two, so scaling
+ * by it is exact: the scaled setters' projections are exactly the scaled peaks.
+ */
+export interface DirectionalStart {
+  peaks: Float64Array
+  setterX: Float64Array
+  setterY: Float64Array
+}
+const START_SHARE = 0.5
 
 /**
  * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
@@ -124,6 +140,46 @@ export class DirectionalPeaks {
     this.floorStale = false
     this.top = 0
     this.loadWedge()
+  }
+
+  /** The peaks and their setters, for starting another tracker from them ({@link startFrom}). */
+  snapshot(): DirectionalStart {
+    return { peaks: this.peaks.slice(), setterX: this.setterX.slice(), setterY: this.setterY.slice() }
+  }
+
+  /**
+   * Starts from START_SHARE × a polygon taken from another tracker: the peaks and the setters
+   * scaled by a power of two, so exactly (the scaled setters still touch the scaled polygon's
+   * edges, and every test below holds as for samples seen). Samples inside it are then skipped
+   * from the first one. The peaks end exact wherever they rise above their start
+   * ({@link heldAbove}); where one does not, the caller starts again from 0.
+   */
+  startFrom(start: DirectionalStart): void {
+    this.reset()
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) this.peaks[k] = START_SHARE * (start.peaks[k] as number)
+    for (let j = 0; j < FULL_TURN; j++) {
+      this.setterX[j] = START_SHARE * (start.setterX[j] as number)
+      this.setterY[j] = START_SHARE * (start.setterY[j] as number)
+    }
+    this.rebuildRuns()
+  }
+
+  /** Whether every peak ended strictly above where startFrom(start) put it, so is the samples' own. */
+  heldAbove(start: DirectionalStart): boolean {
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      if (!((this.peaks[k] as number) > START_SHARE * (start.peaks[k] as number))) return false
+    }
+    return true
+  }
+
+  /**
+   * The squared radius of the circle inside the peaks that addMany skips at once (the floor, less
+   * the rounding margin): a sample within it can raise no peak now or later, as peaks only rise.
+   */
+  skipBelow(): number {
+    if (this.floorStale) this.refreshFloor()
+    const shrunk = this.floor * SHRINK
+    return shrunk * shrunk
   }
 
   add(x: number, y: number): void {
@@ -602,12 +658,21 @@ export function pairCoefficients(
   return out
 }
 
+/** Where an oscillator's directional peaks start: START_SHARE × another oscillator's, for u, v and A. */
+interface PairStart {
+  u: DirectionalStart
+  v: DirectionalStart
+  a: DirectionalStart
+}
+
 /**
  * Solves one oscillator under both components on the kernel's history mode (the same recurrence
  * and sub-steps as the single-record sweep, with the ground acceleration interpolated linearly
  * between samples), folding each block of the histories into the directional peaks, then adds
  * the closed-form peaks of the free vibration after the record in every direction
- * (freeVibration.ts).
+ * (freeVibration.ts). With a start, the peaks begin there, and if any of them does not end above
+ * it the histories are run again from 0 (`onSolvedAgain` says so), so the peaks are the same
+ * bits either way. Returns the snapshot of the histories' own peaks when `keep` is set.
  */
 function solvePairOscillator(
   record: PairRecord,
@@ -618,17 +683,32 @@ function solvePairOscillator(
   coeffs: Float64Array,
   out: OscillatorDirections,
   fold: HistoryFold,
-): void {
-  out.u.reset()
-  out.v.reset()
-  out.a.reset()
-  const { u1, v1, u2, v2 } = kernel.pairHistories(
-    record.accel1MPerS2,
-    record.accel2MPerS2,
-    subSteps,
-    coeffs,
-    fold,
-  )
+  skip: HistorySkip,
+  refreshSkip: () => void,
+  start: PairStart | undefined,
+  keep: boolean,
+  onSolvedAgain: (() => void) | undefined,
+): PairStart | undefined {
+  const run = (from: PairStart | undefined) => {
+    if (from) {
+      out.u.startFrom(from.u)
+      out.v.startFrom(from.v)
+      out.a.startFrom(from.a)
+    } else {
+      out.u.reset()
+      out.v.reset()
+      out.a.reset()
+    }
+    refreshSkip()
+    return kernel.pairHistories(record.accel1MPerS2, record.accel2MPerS2, subSteps, coeffs, fold, skip)
+  }
+  let end = run(start)
+  if (start && !(out.u.heldAbove(start.u) && out.v.heldAbove(start.v) && out.a.heldAbove(start.a))) {
+    onSolvedAgain?.()
+    end = run(undefined)
+  }
+  const kept = keep ? { u: out.u.snapshot(), v: out.v.snapshot(), a: out.a.snapshot() } : undefined
+  const { u1, v1, u2, v2 } = end
   const omega = (2 * Math.PI) / periodS
   for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
     const c = COS[k] as number
@@ -638,6 +718,14 @@ function solvePairOscillator(
     if (tail.v.value > (out.v.peaks[k] as number)) out.v.peaks[k] = tail.v.value
     if (tail.a.value > (out.a.peaks[k] as number)) out.a.peaks[k] = tail.a.value
   }
+  return kept
+}
+
+/** Of two starts, the one with the smaller peaks in all (their sum), for each of u, v and A. */
+function smallerStart(one: PairStart, other: PairStart): PairStart {
+  const sum = (start: DirectionalStart) => start.peaks.reduce((total, peak) => total + peak, 0)
+  const pick = (a: DirectionalStart, b: DirectionalStart) => (sum(a) <= sum(b) ? a : b)
+  return { u: pick(one.u, other.u), v: pick(one.v, other.v), a: pick(one.a, other.a) }
 }
 
 /** An oscillator's peaks in the 180 directions: relative displacement u, relative velocity v, absolute acceleration a. */
@@ -653,7 +741,11 @@ const STEPS_PER_REPORT = 3_000_000
 /**
  * Solves each oscillator under both components of the pair on `kernel`'s history mode (both
  * components at once, with the oscillator's own sub-steps) and returns its peaks in every
- * direction, in the order given.
+ * direction, in the order given. In two stages, as the record sweep (stagedOrder): every 8th
+ * period of each damping ratio first, from 0; then the rest, each started at half the directional
+ * peaks of the smaller of its two nearest first-stage neighbours. Starting points only let the
+ * search skip more samples; the peaks are the same bits as from 0 (see solvePairOscillator).
+ * `onSolvedAgain` gets the oscillator-steps of each oscillator run again from 0.
  */
 export function solvePairOscillators(
   pair: PairRecord,
@@ -661,16 +753,26 @@ export function solvePairOscillators(
   method: SpectrumMethod,
   kernel: SweepKernel,
   onProgress?: (fraction: number) => void,
+  onSolvedAgain?: (oscillatorSteps: number) => void,
 ): PairPeaks[] {
   const work: OscillatorDirections = {
     u: new DirectionalPeaks(),
     v: new DirectionalPeaks(),
     a: new DirectionalPeaks(),
   }
-  const fold: HistoryFold = (block, count) => {
-    work.u.addMany(block.u1, block.u2, count)
-    work.v.addMany(block.v1, block.v2, count)
-    work.a.addMany(block.a1, block.a2, count)
+  // The kernel leaves out the samples inside each tracker's floor circle (as addMany would skip
+  // them first), from radii refreshed after every block.
+  const skip = new Float64Array(3)
+  const refreshSkip = () => {
+    skip[0] = work.u.skipBelow()
+    skip[1] = work.v.skipBelow()
+    skip[2] = work.a.skipBelow()
+  }
+  const fold: HistoryFold = (block) => {
+    work.u.addMany(block.u1, block.u2, block.kept[0]!)
+    work.v.addMany(block.v1, block.v2, block.kept[1]!)
+    work.a.addMany(block.a1, block.a2, block.kept[2]!)
+    refreshSkip()
   }
   const coeffs = new Float64Array(PAIR_COEFFICIENTS)
   const intervals = pair.accel1MPerS2.length - 1
@@ -678,16 +780,43 @@ export function solvePairOscillators(
   for (const { subSteps } of oscillators) total += intervals * subSteps
   let done = 0
   let reported = 0
-  return oscillators.map(({ periodS, dampingRatio, subSteps }) => {
+  const { first, rest, neighbours } = stagedOrder(oscillators)
+  const kept = new Map<number, PairStart>()
+  const results: PairPeaks[] = new Array<PairPeaks>(oscillators.length)
+  const solve = (index: number, start: PairStart | undefined, keep: boolean) => {
+    const { periodS, dampingRatio, subSteps } = oscillators[index]!
     pairCoefficients(method, periodS, dampingRatio, pair.dtS / subSteps, coeffs)
-    solvePairOscillator(pair, kernel, periodS, dampingRatio, subSteps, coeffs, work, fold)
+    const snapshot = solvePairOscillator(
+      pair,
+      kernel,
+      periodS,
+      dampingRatio,
+      subSteps,
+      coeffs,
+      work,
+      fold,
+      skip,
+      refreshSkip,
+      start,
+      keep,
+      onSolvedAgain && (() => onSolvedAgain(2 * intervals * subSteps)),
+    )
+    if (snapshot) kept.set(index, snapshot)
+    results[index] = { u: work.u.peaks.slice(), v: work.v.peaks.slice(), a: work.a.peaks.slice() }
     done += intervals * subSteps
     if (onProgress && done - reported >= STEPS_PER_REPORT) {
       reported = done
       onProgress(done / total)
     }
-    return { u: work.u.peaks.slice(), v: work.v.peaks.slice(), a: work.a.peaks.slice() }
-  })
+  }
+  const seeding = new Set<number>()
+  for (const [below, above] of neighbours.values()) seeding.add(below).add(above)
+  for (const index of first) solve(index, undefined, seeding.has(index))
+  for (const index of rest) {
+    const pairOf = neighbours.get(index)
+    solve(index, pairOf && smallerStart(kept.get(pairOf[0])!, kept.get(pairOf[1])!), false)
+  }
+  return results
 }
 
 /** The components' own peaks: the 0° and 90° directions. */

@@ -232,26 +232,24 @@ function startHeld(peak: number, start: number): boolean {
 /** Every STAGE_STRIDE-th oscillator of a damping ratio, in period order, is swept first, from 0. */
 const STAGE_STRIDE = 8
 /** The rest start at this share of the smaller of their nearest swept neighbours' peaks... */
-const NEIGHBOUR_SHARE = 0.5
+export const NEIGHBOUR_SHARE = 0.5
 /** ...when those neighbours' periods lie within this ratio of theirs (else from 0). */
 const NEIGHBOUR_PERIOD_RATIO = 1.5
 
-/**
- * sweepOscillators in two stages, for a pass with nothing earlier to start its running peaks
- * from: every STAGE_STRIDE-th oscillator of each damping ratio (in period order) first, from 0;
- * then the rest, each started at NEIGHBOUR_SHARE of the smaller peak of its nearest neighbours in
- * period from the first stage (the spectrum seldom falls by half between them), where those lie
- * within NEIGHBOUR_PERIOD_RATIO of its period. Start values
- * only thin out the listed steps and never change a result (see OscillatorSpec.start), so the
- * peaks are those of sweepOscillators, bit for bit.
- */
-export function sweepOscillatorsStaged(
-  record: { accelMPerS2: Float64Array; dtS: number },
-  oscillators: readonly OscillatorSpec[],
-  method: SpectrumMethod,
-  options: SweepOptions = {},
-): OscillatorPeaks {
-  const count = oscillators.length
+/** The two stages of a staged pass (see sweepOscillatorsStaged), by index into the oscillators. */
+export interface StagedOrder {
+  /** Swept first, from 0: every STAGE_STRIDE-th oscillator of each damping ratio in period order, and the last. */
+  first: number[]
+  /** The rest, in the same order. */
+  rest: number[]
+  /** For those of the rest whose nearest first-stage neighbours lie within NEIGHBOUR_PERIOD_RATIO: the two. */
+  neighbours: Map<number, [number, number]>
+}
+
+/** Splits a pass's oscillators into its two stages (shared by the record sweep and the pair solve). */
+export function stagedOrder(
+  oscillators: readonly Pick<OscillatorSpec, 'periodS' | 'dampingRatio'>[],
+): StagedOrder {
   const byDamping = new Map<number, number[]>()
   oscillators.forEach((oscillator, index) => {
     const list = byDamping.get(oscillator.dampingRatio) ?? []
@@ -277,6 +275,26 @@ export function sweepOscillatorsStaged(
       if (near) neighbours.set(index, [below, above])
     })
   }
+  return { first, rest, neighbours }
+}
+
+/**
+ * sweepOscillators in two stages, for a pass with nothing earlier to start its running peaks
+ * from: every STAGE_STRIDE-th oscillator of each damping ratio (in period order) first, from 0;
+ * then the rest, each started at NEIGHBOUR_SHARE of the smaller peak of its nearest neighbours in
+ * period from the first stage (the spectrum seldom falls by half between them), where those lie
+ * within NEIGHBOUR_PERIOD_RATIO of its period. Start values
+ * only thin out the listed steps and never change a result (see OscillatorSpec.start), so the
+ * peaks are those of sweepOscillators, bit for bit.
+ */
+export function sweepOscillatorsStaged(
+  record: { accelMPerS2: Float64Array; dtS: number },
+  oscillators: readonly OscillatorSpec[],
+  method: SpectrumMethod,
+  options: SweepOptions = {},
+): OscillatorPeaks {
+  const count = oscillators.length
+  const { first, rest, neighbours } = stagedOrder(oscillators)
   if (rest.length === 0 || first.length === 0) return sweepOscillators(record, oscillators, method, options)
   let firstSteps = 0
   let totalSteps = 0

@@ -241,13 +241,25 @@ function sweepTwo(
 // Memory layout:
 //   coeffs (10 f64): a11, a12, b1, c1, a21, a22, b2, c2, cc, kk
 //   state (4 f64, read and written): u₁, u₂, v₁, v₂
+//   skip (3 f64): for u, v and A, a squared radius; a sample (x₁, x₂) with x₁² + x₂² ≤ it is left
+//        out of that quantity's arrays (the caller's directional peaks provably cannot rise there)
+//   kept (3 i32, written): how many samples of u, v and A were kept
 //   out: six arrays of `stride` f64 — u₁, u₂, v₁, v₂, A₁, A₂ (A = cc·v + kk·u, signed) — with the
-//        values at the ends of the sub-steps of intervals [first, first + intervals).
+//        kept values at the ends of the sub-steps of intervals [first, first + intervals), in order.
+// Every sample is stored, and the count of a quantity moves on only past one that is kept, so
+// there is no branch in the loop.
 
 @inline
 function storeLanes(at: usize, stride: usize, x: v128): void {
   store<f64>(at, f64x2.extract_lane(x, 0))
   store<f64>(at + stride, f64x2.extract_lane(x, 1))
+}
+
+/** 8 (one f64 further) when x₁² + x₂² (lane 0 squared plus lane 1 squared, in that order) exceeds `skip`, else 0. */
+@inline
+function keep(x: v128, skip: f64): usize {
+  const square = f64x2.mul(x, x)
+  return select<usize>(8, 0, f64x2.extract_lane(square, 0) + f64x2.extract_lane(square, 1) > skip)
 }
 
 export function pairHistories(
@@ -259,6 +271,8 @@ export function pairHistories(
   state: usize,
   out: usize,
   stride: usize,
+  skip: usize,
+  kept: usize,
 ): void {
   const a11 = f64x2.splat(load<f64>(coeffs))
   const a12 = f64x2.splat(load<f64>(coeffs, 8))
@@ -270,10 +284,18 @@ export function pairHistories(
   const c2 = f64x2.splat(load<f64>(coeffs, 56))
   const cc = f64x2.splat(load<f64>(coeffs, 64))
   const kk = f64x2.splat(load<f64>(coeffs, 72))
+  const skipU = load<f64>(skip)
+  const skipV = load<f64>(skip, 8)
+  const skipA = load<f64>(skip, 16)
   const m = f64x2.splat(<f64>subSteps)
   let u = v128.load(state)
   let v = v128.load(state, 16)
-  let at = out
+  const outU = out
+  const outV = out + 2 * stride
+  const outA = out + 4 * stride
+  let atU: usize = 0
+  let atV: usize = 0
+  let atA: usize = 0
   let start = v128.load(record + ((<usize>first) << 4))
   for (let i: i32 = 1; i <= intervals; i++) {
     const end = v128.load(record + ((<usize>(first + i)) << 4))
@@ -285,14 +307,20 @@ export function pairHistories(
       const v0 = v
       u = lin(a11, u0, a12, v0, b1, f, c1, next)
       v = lin(a21, u0, a22, v0, b2, f, c2, next)
-      storeLanes(at, stride, u)
-      storeLanes(at + 2 * stride, stride, v)
-      storeLanes(at + 4 * stride, stride, f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u)))
-      at += 8
+      const a = f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u))
+      storeLanes(outU + atU, stride, u)
+      storeLanes(outV + atV, stride, v)
+      storeLanes(outA + atA, stride, a)
+      atU += keep(u, skipU)
+      atV += keep(v, skipV)
+      atA += keep(a, skipA)
       f = next
     }
     start = end
   }
   v128.store(state, u)
   v128.store(state, v, 16)
+  store<i32>(kept, <i32>(atU >> 3))
+  store<i32>(kept, <i32>(atV >> 3), 4)
+  store<i32>(kept, <i32>(atA >> 3), 8)
 }

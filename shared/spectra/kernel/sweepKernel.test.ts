@@ -159,13 +159,16 @@ describe('history mode (pairs)', () => {
   const keys = ['u1', 'u2', 'v1', 'v2', 'a1', 'a2'] as const
 
   /** Every block's values joined into whole histories, with the block lengths and the end state. */
+  type Whole = Record<(typeof keys)[number], Float64Array>
   function histories(kernel: SweepKernel, subSteps: number) {
     const total = (samples - 1) * subSteps
     const make = () => new Float64Array(total)
-    const whole: HistoryBlock = { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
+    const whole: Whole = { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
     const counts: number[] = []
     let at = 0
-    const end = kernel.pairHistories(first, second, subSteps, coeffs, (block, count) => {
+    const end = kernel.pairHistories(first, second, subSteps, coeffs, (block: HistoryBlock, count) => {
+      // With no skip, every sample of every quantity is kept.
+      expect(Array.from(block.kept)).toEqual([count, count, count])
       counts.push(count)
       for (const key of keys) whole[key].set(block[key].subarray(0, count), at)
       at += count
@@ -173,7 +176,75 @@ describe('history mode (pairs)', () => {
     return { whole, counts, end, written: at }
   }
   /** The histories' bytes, for a fast bit-for-bit comparison of long arrays. */
-  const bytes = (whole: HistoryBlock) => keys.map((key) => Buffer.from(whole[key].buffer).toString('base64'))
+  const bytes = (whole: Whole) => keys.map((key) => Buffer.from(whole[key].buffer).toString('base64'))
+
+  /** With a skip that rises from block to block: each quantity's kept samples, joined. */
+  function keptSamples(kernel: SweepKernel, subSteps: number, radii: (block: number) => number[]) {
+    const kept: Whole = {
+      u1: new Float64Array(0),
+      u2: new Float64Array(0),
+      v1: new Float64Array(0),
+      v2: new Float64Array(0),
+      a1: new Float64Array(0),
+      a2: new Float64Array(0),
+    }
+    const skip = Float64Array.from(radii(0))
+    const perBlock: number[][] = []
+    let blocks = 0
+    kernel.pairHistories(
+      first,
+      second,
+      subSteps,
+      coeffs,
+      (block) => {
+        perBlock.push(Array.from(skip))
+        keys.forEach((key, k) => {
+          const count = block.kept[Math.floor(k / 2)]!
+          const joined = new Float64Array(kept[key].length + count)
+          joined.set(kept[key])
+          joined.set(block[key].subarray(0, count), kept[key].length)
+          kept[key] = joined
+        })
+        blocks++
+        skip.set(radii(blocks))
+      },
+      skip,
+    )
+    return { kept, perBlock }
+  }
+
+  it('with a skip, both kernels keep the same samples: those outside the radius read before each block', () => {
+    const subSteps = 8
+    const { whole } = histories(createJsKernel(), subSteps)
+    const square = (x: number, y: number) => x * x + y * y
+    // A typical squared radius of each quantity, raised block by block as the peaks would be.
+    const scale = (x: Float64Array, y: Float64Array) => square(x[100]!, y[100]!) + square(x[500]!, y[500]!)
+    const base = [scale(whole.u1, whole.u2), scale(whole.v1, whole.v2), scale(whole.a1, whole.a2)]
+    const radii = (block: number) => base.map((value) => value * (0.2 + 0.1 * block))
+    const fromWasm = keptSamples(createWasmKernel()!, subSteps, radii)
+    const fromJs = keptSamples(createJsKernel(), subSteps, radii)
+    expect(bytes(fromWasm.kept)).toEqual(bytes(fromJs.kept))
+    expect(fromJs.perBlock.length).toBeGreaterThan(1)
+    // The same samples as filtering the whole histories by hand.
+    const expected: Record<string, number[]> = { u1: [], u2: [], v1: [], v2: [], a1: [], a2: [] }
+    const blockLength = Math.floor(HISTORY_BLOCK / subSteps) * subSteps
+    for (let n = 0; n < whole.u1.length; n++) {
+      const limits = fromJs.perBlock[Math.floor(n / blockLength)]!
+      ;(['u', 'v', 'a'] as const).forEach((q, k) => {
+        const x = whole[`${q}1`][n]!
+        const y = whole[`${q}2`][n]!
+        if (square(x, y) > limits[k]!) {
+          expected[`${q}1`]!.push(x)
+          expected[`${q}2`]!.push(y)
+        }
+      })
+    }
+    for (const key of keys) {
+      expect(Array.from(fromJs.kept[key])).toEqual(expected[key])
+      expect(fromJs.kept[key].length).toBeGreaterThan(0)
+      expect(fromJs.kept[key].length).toBeLessThan(whole[key].length)
+    }
+  })
 
   it('the WebAssembly SIMD kernel and the JavaScript kernel give the same bits, over several blocks', () => {
     const wasm = createWasmKernel()!

@@ -39,6 +39,8 @@
  * order of operations, writing u, v and A = cc·v + kk·u (signed) of both components at every
  * sub-step end, a block of HISTORY_BLOCK sub-steps at a time, for the directional peak search
  * (rotd.ts). The WebAssembly kernel advances the two components as the two lanes of one vector.
+ * Each quantity's samples within a radius the caller gives (the circle inside its directional
+ * peaks) are left out of the block, so the search sees only those that might raise a peak.
  */
 import { SWEEP_KERNEL_WASM_BASE64 } from './sweepKernelWasm.generated.js'
 
@@ -53,8 +55,15 @@ export const CANDIDATE_VALUES = 4
 export const PAIR_COEFFICIENTS = 10
 /** Sub-steps of response history per block (at least MAX_SUB_STEPS of subSteps.ts, so one interval always fits). */
 export const HISTORY_BLOCK = 4096
+/** Keeps every sample of a history (no squared radius is below −1). */
+const KEEP_ALL: HistorySkip = Float64Array.of(-1, -1, -1)
+/** Bytes of the history mode's coefficients, state, skip and kept, before its arrays (a multiple of 16). */
+const PAIR_HEADER_BYTES = (PAIR_COEFFICIENTS + 4 + 4) * 8 + 4 * 4
 
-/** One block of a pair oscillator's response histories: u, v and A of the first and second components. */
+/**
+ * One block of a pair oscillator's response histories: u, v and A of the first and second
+ * components, each kept sample in time order; `kept` says how many of each (u, v, A).
+ */
 export interface HistoryBlock {
   u1: Float64Array
   u2: Float64Array
@@ -62,7 +71,14 @@ export interface HistoryBlock {
   v2: Float64Array
   a1: Float64Array
   a2: Float64Array
+  kept: Int32Array
 }
+
+/**
+ * For u, v and A, a squared radius: a sample (x₁, x₂) with x₁² + x₂² ≤ it is left out of that
+ * quantity's block (−1 keeps every sample). The caller may change it between blocks.
+ */
+export type HistorySkip = Float64Array
 
 /** The end of a pair oscillator's histories: the state of each component at the last sample. */
 export interface PairEndState {
@@ -72,7 +88,7 @@ export interface PairEndState {
   v2: number
 }
 
-/** Receives each block of histories with the number of sub-steps in it; the block is reused after the call. */
+/** Receives each block of histories with the number of sub-steps it covers; the block is reused after the call. */
 export type HistoryFold = (block: HistoryBlock, count: number) => void
 
 /** One sweep of `count` oscillators over the loaded record (SweepKernel.sweep; layout above). */
@@ -110,8 +126,9 @@ export interface SweepKernel {
   /**
    * History mode: one oscillator (coefficients `coeffs`, PAIR_COEFFICIENTS values) from rest under
    * the components `first` and `second` (same length) with `subSteps` sub-steps per interval;
-   * hands each block of histories to `fold` in time order and returns the end state. May replace
-   * the loaded record (loadedRecord then becomes null).
+   * hands each block of histories to `fold` in time order and returns the end state. With `skip`
+   * (3 values, read before each block), samples inside its radii are left out of the blocks. May
+   * replace the loaded record (loadedRecord then becomes null).
    */
   pairHistories(
     first: Float64Array,
@@ -119,6 +136,7 @@ export interface SweepKernel {
     subSteps: number,
     coeffs: Float64Array,
     fold: HistoryFold,
+    skip?: HistorySkip,
   ): PairEndState
 }
 
@@ -289,7 +307,7 @@ function checkPairHistories(first: Float64Array, second: Float64Array, subSteps:
 /** Zeroed buffers for one block of histories. */
 export function historyBlock(): HistoryBlock {
   const make = () => new Float64Array(HISTORY_BLOCK)
-  return { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
+  return { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make(), kept: new Int32Array(3) }
 }
 
 /** The JavaScript history mode, both components in locals: the reference for the WebAssembly one. */
@@ -300,6 +318,7 @@ export function jsPairHistories(
   coeffs: Float64Array,
   block: HistoryBlock,
   fold: HistoryFold,
+  skip: HistorySkip = KEEP_ALL,
 ): PairEndState {
   checkPairHistories(first, second, subSteps)
   const a11 = coeffs[0]!
@@ -323,6 +342,12 @@ export function jsPairHistories(
   let i = 1
   while (i < first.length) {
     let n = 0
+    let nu = 0
+    let nv = 0
+    let na = 0
+    const skipU = skip[0]!
+    const skipV = skip[1]!
+    const skipA = skip[2]!
     for (; i < first.length && n + m <= HISTORY_BLOCK; i++) {
       const end1 = first[i]!
       const end2 = second[i]!
@@ -341,12 +366,17 @@ export function jsPairHistories(
         v1 = nv1
         u2 = nu2
         v2 = nv2
-        hu1[n] = u1
-        hu2[n] = u2
-        hv1[n] = v1
-        hv2[n] = v2
-        ha1[n] = cc * v1 + kk * u1
-        ha2[n] = cc * v2 + kk * u2
+        const a1 = cc * v1 + kk * u1
+        const a2 = cc * v2 + kk * u2
+        hu1[nu] = u1
+        hu2[nu] = u2
+        hv1[nv] = v1
+        hv2[nv] = v2
+        ha1[na] = a1
+        ha2[na] = a2
+        if (u1 * u1 + u2 * u2 > skipU) nu++
+        if (v1 * v1 + v2 * v2 > skipV) nv++
+        if (a1 * a1 + a2 * a2 > skipA) na++
         n++
         f1 = next1
         f2 = next2
@@ -354,6 +384,9 @@ export function jsPairHistories(
       start1 = end1
       start2 = end2
     }
+    block.kept[0] = nu
+    block.kept[1] = nv
+    block.kept[2] = na
     fold(block, n)
   }
   return { u1, v1, u2, v2 }
@@ -377,9 +410,9 @@ export function createJsKernel(): SweepKernel {
     sweep(count, subSteps, stepS, coeffs, out, candidates) {
       return jsSweep(record, count, subSteps, stepS, coeffs, out, candidates)
     },
-    pairHistories(first, second, subSteps, coeffs, fold) {
+    pairHistories(first, second, subSteps, coeffs, fold, skip) {
       block ??= historyBlock()
-      return jsPairHistories(first, second, subSteps, coeffs, block, fold)
+      return jsPairHistories(first, second, subSteps, coeffs, block, fold, skip)
     },
   }
 }
@@ -413,6 +446,8 @@ interface KernelExports {
     state: number,
     out: number,
     stride: number,
+    skip: number,
+    kept: number,
   ): void
 }
 
@@ -458,18 +493,25 @@ export function createWasmKernel(): SweepKernel | null {
     if (missing > 0) exports.memory.grow(Math.ceil(missing / PAGE_BYTES))
   }
   const recordBytes = () => samples * 8
-  // History mode: the pair interleaved at `base` (over any record), then coefficients, state and
-  // the six history arrays, each HISTORY_BLOCK values.
+  // History mode: the pair interleaved at `base` (over any record), then coefficients (10 f64),
+  // state (4 f64), skip (3 f64 and a spare), kept (3 i32 and a spare) and the six history arrays,
+  // each HISTORY_BLOCK values.
   let pairFirst: Float64Array | null = null
   let pairSecond: Float64Array | null = null
   let pairCoeffsAt = 0
-  let views: { buffer: ArrayBuffer; block: HistoryBlock; coeffs: Float64Array; state: Float64Array } | null =
-    null
+  let views: {
+    buffer: ArrayBuffer
+    block: HistoryBlock
+    coeffs: Float64Array
+    state: Float64Array
+    skip: Float64Array
+    kept: Int32Array
+  } | null = null
   const historyBytes = HISTORY_BLOCK * 8
   const loadPair = (first: Float64Array, second: Float64Array) => {
     const pairSamples = first.length
     pairCoeffsAt = align16(base + 2 * pairSamples * 8)
-    ensureBytes(pairCoeffsAt + (PAIR_COEFFICIENTS + 4) * 8 + 6 * historyBytes)
+    ensureBytes(pairCoeffsAt + PAIR_HEADER_BYTES + 6 * historyBytes)
     const interleaved = new Float64Array(exports.memory.buffer, base, 2 * pairSamples)
     for (let i = 0; i < pairSamples; i++) {
       interleaved[2 * i] = first[i]!
@@ -484,13 +526,26 @@ export function createWasmKernel(): SweepKernel | null {
     const buffer = exports.memory.buffer
     if (views?.buffer !== buffer) {
       const stateAt = pairCoeffsAt + PAIR_COEFFICIENTS * 8
-      const outAt = stateAt + 4 * 8
+      const skipAt = stateAt + 4 * 8
+      const keptAt = skipAt + 4 * 8
+      const outAt = pairCoeffsAt + PAIR_HEADER_BYTES
       const array = (k: number) => new Float64Array(buffer, outAt + k * historyBytes, HISTORY_BLOCK)
+      const kept = new Int32Array(buffer, keptAt, 4)
       views = {
         buffer,
         coeffs: new Float64Array(buffer, pairCoeffsAt, PAIR_COEFFICIENTS),
         state: new Float64Array(buffer, stateAt, 4),
-        block: { u1: array(0), u2: array(1), v1: array(2), v2: array(3), a1: array(4), a2: array(5) },
+        skip: new Float64Array(buffer, skipAt, 3),
+        kept,
+        block: {
+          u1: array(0),
+          u2: array(1),
+          v1: array(2),
+          v2: array(3),
+          a1: array(4),
+          a2: array(5),
+          kept: kept.subarray(0, 3),
+        },
       }
     }
     return views
@@ -538,11 +593,11 @@ export function createWasmKernel(): SweepKernel | null {
       candidates.values.set(new Float64Array(exports.memory.buffer, candidatesAt, CANDIDATE_VALUES * found))
       return found
     },
-    pairHistories(first, second, subSteps, coeffs, fold) {
+    pairHistories(first, second, subSteps, coeffs, fold, skip = KEEP_ALL) {
       checkPairHistories(first, second, subSteps)
       // A nested sweep (from a progress report between oscillators) may have loaded a record meanwhile.
       if (pairFirst !== first || pairSecond !== second) loadPair(first, second)
-      const { coeffs: coeffsIn, state, block } = pairViews()
+      const { coeffs: coeffsIn, state, block, skip: skipIn, kept } = pairViews()
       coeffsIn.set(coeffs.subarray(0, PAIR_COEFFICIENTS))
       state.fill(0)
       const stateAt = state.byteOffset
@@ -551,7 +606,19 @@ export function createWasmKernel(): SweepKernel | null {
       const perBlock = Math.floor(HISTORY_BLOCK / subSteps)
       for (let done = 0; done < intervals; done += perBlock) {
         const count = Math.min(perBlock, intervals - done)
-        exports.pairHistories(base, done, count, subSteps, pairCoeffsAt, stateAt, outAt, historyBytes)
+        skipIn.set(skip.subarray(0, 3))
+        exports.pairHistories(
+          base,
+          done,
+          count,
+          subSteps,
+          pairCoeffsAt,
+          stateAt,
+          outAt,
+          historyBytes,
+          skipIn.byteOffset,
+          kept.byteOffset,
+        )
         fold(block, count * subSteps)
       }
       return { u1: state[0]!, v1: state[2]!, u2: state[1]!, v2: state[3]! }
