@@ -12,11 +12,12 @@
  * 1. each job's times over `--runs` (default 3) alternating runs, their medians, and the ratio of
  *    the medians (the issue's target: pair ≤ 3× record); the machine may be shared, so medians and
  *    ratios are what to quote, and the same for the process's CPU time, which load disturbs less;
- * 2. where the pair's time goes, from a replay of its first pass with the engine's parts: the two
- *    components' response histories a block at a time on the kernel's history mode
- *    (SweepKernel.pairHistories, the engine's default kernel), then the directional peak search
- *    (DirectionalPeaks.addMany) on them; and the histories alone on each kernel; then the search's
- *    CPU time, the replay's less that of the histories alone (less disturbed by a shared machine).
+ * 2. where the pair's time goes, in its first pass: the engine's own solve (solvePairOscillators:
+ *    two stages, each oscillator of the second started from half a neighbour's directional peaks,
+ *    and the kernel leaving out the samples inside each tracker's floor circle); the same pass
+ *    with every oscillator from 0 and every sample handed to the search (DirectionalPeaks.addMany);
+ *    the histories alone on each kernel; then the search's CPU time in both ways, less that of the
+ *    histories alone (CPU time is less disturbed by a shared machine).
  */
 import { computeSpectrum, planSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../shared/spectra/demo/demoRecords.js'
@@ -29,7 +30,7 @@ import {
   defaultKernel,
   jsKernel,
 } from '../shared/spectra/kernel/sweepKernel.js'
-import { DirectionalPeaks, pairCoefficients } from '../shared/spectra/rotd.js'
+import { DirectionalPeaks, pairCoefficients, solvePairOscillators } from '../shared/spectra/rotd.js'
 import { COMBINATIONS } from '../shared/vocabulary/combinations.js'
 
 const runsArg = process.argv.indexOf('--runs')
@@ -111,45 +112,52 @@ console.log(
 )
 console.log('')
 
-/** Replay of the pair's first pass: the engine's history blocks, timing the peak search apart. */
+/** The pair's first pass, in the engine's way and in the plain way, timing the directional search apart. */
 const trackers = [new DirectionalPeaks(), new DirectionalPeaks(), new DirectionalPeaks()] as const
 const plan = planSpectrum(accel1.length, dtS, settings, 'step-ends')
 const periods = settings.periodsS.length
+const oscillators = Array.from(plan.subSteps, (subSteps, index) => ({
+  periodS: settings.periodsS[index % periods]!,
+  dampingRatio: settings.dampingRatios[Math.floor(index / periods)]!,
+  subSteps,
+}))
+const firstPassSteps = oscillators.reduce((total, o) => total + 2 * (accel1.length - 1) * o.subSteps, 0)
 const coeffs = new Float64Array(PAIR_COEFFICIENTS)
-/** Runs the first pass's histories on `kernel`, folding each block with `fold`; returns the wall and CPU ms taken. */
-const replay = (kernel: SweepKernel, fold: HistoryFold): [number, number] => {
+/** The wall and CPU ms of `run`. */
+const clock = (run: () => void): [number, number] => {
   const start = performance.now()
   const cpu = process.cpuUsage()
-  for (let index = 0; index < plan.subSteps.length; index++) {
-    const subSteps = plan.subSteps[index]!
-    const periodS = settings.periodsS[index % periods]!
-    const zeta = settings.dampingRatios[Math.floor(index / periods)]!
-    for (const t of trackers) t.reset()
-    pairCoefficients(settings.method, periodS, zeta, dtS / subSteps, coeffs)
-    kernel.pairHistories(accel1, accel2, subSteps, coeffs, fold)
-  }
+  run()
   const used = process.cpuUsage(cpu)
   return [performance.now() - start, (used.user + used.system) / 1000]
 }
-let searchMs = 0
-let replaySteps = 0
+/** Every oscillator from 0 in the plan's order, every sample handed to `fold`. */
+const replay = (kernel: SweepKernel, fold: HistoryFold) =>
+  clock(() => {
+    oscillators.forEach(({ periodS, dampingRatio, subSteps }) => {
+      for (const t of trackers) t.reset()
+      pairCoefficients(settings.method, periodS, dampingRatio, dtS / subSteps, coeffs)
+      kernel.pairHistories(accel1, accel2, subSteps, coeffs, fold)
+    })
+  })
 const engineKernel = defaultKernel()
-const [totalMs, totalCpuMs] = replay(engineKernel, (block, count) => {
-  const t0 = performance.now()
+const [engineMs, engineCpuMs] = clock(() =>
+  solvePairOscillators(pair, oscillators, settings.method, engineKernel),
+)
+const [plainMs, plainCpuMs] = replay(engineKernel, (block, count) => {
   trackers[0].addMany(block.u1, block.u2, count)
   trackers[1].addMany(block.v1, block.v2, count)
   trackers[2].addMany(block.a1, block.a2, count)
-  searchMs += performance.now() - t0
-  replaySteps += 2 * count
 })
-const historyMs = totalMs - searchMs
-const perStep = (ms: number) => ((ms * 1e6) / replaySteps).toFixed(2)
-console.log('2. Where the pair time goes (replay of the first pass):')
+const perStep = (ms: number) => ((ms * 1e6) / firstPassSteps).toFixed(2)
 console.log(
-  `   response histories, both components (kernel ${engineKernel.name}): ${historyMs.toFixed(0)} ms for ${(replaySteps / 1e6).toFixed(1)} M oscillator-steps (${perStep(historyMs)} ns each)`,
+  `2. Where the pair time goes (its first pass: ${oscillators.length} oscillators, ${(firstPassSteps / 1e6).toFixed(1)} M oscillator-steps, kernel ${engineKernel.name}):`,
 )
 console.log(
-  `   directional peak search (u, v, A):   ${searchMs.toFixed(0)} ms (${((searchMs * 1e6) / (replaySteps / 2)).toFixed(2)} ns per time step of the pair)`,
+  `   the engine's solve (two stages, each started from half a neighbour's directional peaks; samples inside each floor circle left out by the kernel): ${engineMs.toFixed(0)} ms, CPU ${engineCpuMs.toFixed(0)} ms`,
+)
+console.log(
+  `   the same with every oscillator from 0 and every sample searched: ${plainMs.toFixed(0)} ms, CPU ${plainCpuMs.toFixed(0)} ms`,
 )
 const noFold: HistoryFold = () => {}
 let historiesCpuMs = 0
@@ -161,7 +169,8 @@ for (const kernel of new Set([engineKernel, jsKernel()])) {
   )
 }
 // CPU time, less disturbed by other work on the machine than the wall times above.
-const searchCpuMs = totalCpuMs - historiesCpuMs
+const searchCpu = (cpuMs: number) =>
+  `${(cpuMs - historiesCpuMs).toFixed(0)} ms (${(((cpuMs - historiesCpuMs) * 1e6) / (firstPassSteps / 2)).toFixed(2)} ns per time step of the pair)`
 console.log(
-  `   CPU time: replay with the search ${totalCpuMs.toFixed(0)} ms − histories alone ${historiesCpuMs.toFixed(0)} ms = peak search ${searchCpuMs.toFixed(0)} ms (${((searchCpuMs * 1e6) / (1.5 * replaySteps)).toFixed(2)} ns per sample of each of u, v, A)`,
+  `   directional search, CPU time less the histories alone: the engine's ${searchCpu(engineCpuMs)}; every sample from 0 ${searchCpu(plainCpuMs)}`,
 )
