@@ -21,7 +21,7 @@ import {
   type SweepKernel,
 } from './kernel/sweepKernel.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
-import { type OscillatorSpec, stagedOrder } from './sweepOscillators.js'
+import { NEIGHBOUR_PERIOD_RATIO, type OscillatorSpec } from './sweepOscillators.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
 export const ROTATION_ANGLE_COUNT = 180
@@ -721,11 +721,17 @@ function solvePairOscillator(
   return kept
 }
 
-/** Of two starts, the one with the smaller peaks in all (their sum), for each of u, v and A. */
-function smallerStart(one: PairStart, other: PairStart): PairStart {
-  const sum = (start: DirectionalStart) => start.peaks.reduce((total, peak) => total + peak, 0)
-  const pick = (a: DirectionalStart, b: DirectionalStart) => (sum(a) <= sum(b) ? a : b)
-  return { u: pick(one.u, other.u), v: pick(one.v, other.v), a: pick(one.a, other.a) }
+/** The oscillators' indices by damping ratio (in the order first met), each list in period order. */
+function periodChains(oscillators: readonly OscillatorSpec[]): number[][] {
+  const byDamping = new Map<number, number[]>()
+  oscillators.forEach((oscillator, index) => {
+    const chain = byDamping.get(oscillator.dampingRatio) ?? []
+    chain.push(index)
+    byDamping.set(oscillator.dampingRatio, chain)
+  })
+  const chains = [...byDamping.values()]
+  for (const chain of chains) chain.sort((a, b) => oscillators[a]!.periodS - oscillators[b]!.periodS || a - b)
+  return chains
 }
 
 /** An oscillator's peaks in the 180 directions: relative displacement u, relative velocity v, absolute acceleration a. */
@@ -741,10 +747,10 @@ const STEPS_PER_REPORT = 3_000_000
 /**
  * Solves each oscillator under both components of the pair on `kernel`'s history mode (both
  * components at once, with the oscillator's own sub-steps) and returns its peaks in every
- * direction, in the order given. In two stages, as the record sweep (stagedOrder): every 8th
- * period of each damping ratio first, from 0; then the rest, each started at half the directional
- * peaks of the smaller of its two nearest first-stage neighbours. Starting points only let the
- * search skip more samples; the peaks are the same bits as from 0 (see solvePairOscillator).
+ * direction, in the order given. They are solved one after another in period order within each
+ * damping ratio, and each (but the first) starts at half the directional peaks of the one before,
+ * where that one's period lies within NEIGHBOUR_PERIOD_RATIO of its own. Starting points only let
+ * the search skip more samples; the peaks are the same bits as from 0 (see solvePairOscillator).
  * `onSolvedAgain` gets the oscillator-steps of each oscillator run again from 0.
  */
 export function solvePairOscillators(
@@ -780,8 +786,6 @@ export function solvePairOscillators(
   for (const { subSteps } of oscillators) total += intervals * subSteps
   let done = 0
   let reported = 0
-  const { first, rest, neighbours } = stagedOrder(oscillators)
-  const kept = new Map<number, PairStart>()
   const results: PairPeaks[] = new Array<PairPeaks>(oscillators.length)
   const solve = (index: number, start: PairStart | undefined, keep: boolean) => {
     const { periodS, dampingRatio, subSteps } = oscillators[index]!
@@ -801,20 +805,21 @@ export function solvePairOscillators(
       keep,
       onSolvedAgain && (() => onSolvedAgain(2 * intervals * subSteps)),
     )
-    if (snapshot) kept.set(index, snapshot)
     results[index] = { u: work.u.peaks.slice(), v: work.v.peaks.slice(), a: work.a.peaks.slice() }
     done += intervals * subSteps
     if (onProgress && done - reported >= STEPS_PER_REPORT) {
       reported = done
       onProgress(done / total)
     }
+    return snapshot
   }
-  const seeding = new Set<number>()
-  for (const [below, above] of neighbours.values()) seeding.add(below).add(above)
-  for (const index of first) solve(index, undefined, seeding.has(index))
-  for (const index of rest) {
-    const pairOf = neighbours.get(index)
-    solve(index, pairOf && smallerStart(kept.get(pairOf[0])!, kept.get(pairOf[1])!), false)
+  for (const chain of periodChains(oscillators)) {
+    let previous: PairStart | undefined
+    chain.forEach((index, at) => {
+      const near =
+        at > 0 && oscillators[index]!.periodS / oscillators[chain[at - 1]!]!.periodS <= NEIGHBOUR_PERIOD_RATIO
+      previous = solve(index, near ? previous : undefined, at + 1 < chain.length)
+    })
   }
   return results
 }

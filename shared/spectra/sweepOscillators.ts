@@ -234,7 +234,7 @@ const STAGE_STRIDE = 8
 /** The rest start at this share of the smaller of their nearest swept neighbours' peaks... */
 export const NEIGHBOUR_SHARE = 0.5
 /** ...when those neighbours' periods lie within this ratio of theirs (else from 0). */
-const NEIGHBOUR_PERIOD_RATIO = 1.5
+export const NEIGHBOUR_PERIOD_RATIO = 1.5
 
 /** The two stages of a staged pass (see sweepOscillatorsStaged), by index into the oscillators. */
 export interface StagedOrder {

@@ -246,8 +246,8 @@ function sweepTwo(
 //   kept (3 i32, written): how many samples of u, v and A were kept
 //   out: six arrays of `stride` f64 — u₁, u₂, v₁, v₂, A₁, A₂ (A = cc·v + kk·u, signed) — with the
 //        kept values at the ends of the sub-steps of intervals [first, first + intervals), in order.
-// Every sample is stored, and the count of a quantity moves on only past one that is kept, so
-// there is no branch in the loop.
+// Only kept samples are stored: kept ones come in runs (strong motion), so the branches are
+// well predicted, and this measured faster than storing every sample and moving on branch-free.
 
 @inline
 function storeLanes(at: usize, stride: usize, x: v128): void {
@@ -308,12 +308,18 @@ export function pairHistories(
       u = lin(a11, u0, a12, v0, b1, f, c1, next)
       v = lin(a21, u0, a22, v0, b2, f, c2, next)
       const a = f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u))
-      storeLanes(outU + atU, stride, u)
-      storeLanes(outV + atV, stride, v)
-      storeLanes(outA + atA, stride, a)
-      atU += keep(u, skipU)
-      atV += keep(v, skipV)
-      atA += keep(a, skipA)
+      if (keep(u, skipU)) {
+        storeLanes(outU + atU, stride, u)
+        atU += 8
+      }
+      if (keep(v, skipV)) {
+        storeLanes(outV + atV, stride, v)
+        atV += 8
+      }
+      if (keep(a, skipA)) {
+        storeLanes(outA + atA, stride, a)
+        atA += 8
+      }
       f = next
     }
     start = end
