@@ -13,7 +13,7 @@
  *    the medians (the issue's target: pair ≤ 3× record); the machine may be shared, so medians and
  *    ratios are what to quote, and the same for the process's CPU time, which load disturbs less;
  * 2. where the pair's time goes, in its first pass: the engine's own solve (solvePairOscillators:
- *    in period order, each oscillator started from half the directional peaks of the one before,
+ *    in period order, each oscillator started from three quarters of the directional peaks of the one before,
  *    and the kernel leaving out the samples inside each tracker's floor circle); the same pass
  *    with every oscillator from 0 and every sample handed to the search (DirectionalPeaks.addMany);
  *    the histories alone on each kernel; then the search's CPU time in both ways, less that of the
@@ -154,7 +154,7 @@ console.log(
   `2. Where the pair time goes (its first pass: ${oscillators.length} oscillators, ${(firstPassSteps / 1e6).toFixed(1)} M oscillator-steps, kernel ${engineKernel.name}):`,
 )
 console.log(
-  `   the engine's solve (in period order, each oscillator started from half the directional peaks of the one before; samples inside each floor circle left out by the kernel): ${engineMs.toFixed(0)} ms, CPU ${engineCpuMs.toFixed(0)} ms`,
+  `   the engine's solve (in period order, each oscillator started from three quarters of the directional peaks of the one before; samples inside each floor circle left out by the kernel): ${engineMs.toFixed(0)} ms, CPU ${engineCpuMs.toFixed(0)} ms`,
 )
 console.log(
   `   the same with every oscillator from 0 and every sample searched: ${plainMs.toFixed(0)} ms, CPU ${plainCpuMs.toFixed(0)} ms`,

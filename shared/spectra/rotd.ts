@@ -69,16 +69,14 @@ const SEEDED_BLOCK = 64
 /** The seeds are looked for among every SEED_STRIDE-th sample: any samples serve, the extremes only tighten the polygon. */
 const SEED_STRIDE = 8
 
-/**
- * A tracker's peaks and setters, to start another from. START_SHARE is a power of two, so scaling
- * by it is exact: the scaled setters' projections are exactly the scaled peaks.
- */
+/** The setters of a tracker's peaks (its polygon's vertices), to start another from. */
 export interface DirectionalStart {
-  peaks: Float64Array
-  setterX: Float64Array
-  setterY: Float64Array
+  /** Each distinct setter of the directions 0°…179° once, in direction order. */
+  xs: Float64Array
+  ys: Float64Array
 }
-const START_SHARE = 0.5
+/** A started tracker begins with this share of the other's setters (so of its peaks). */
+const START_SHARE = 0.75
 
 /**
  * Running peaks max_t |x(t)cosθ + y(t)sinθ| over θ = 0°…179° of a pair of histories fed one
@@ -128,6 +126,8 @@ export class DirectionalPeaks {
   private floorStale = false
   /** The largest peak. */
   private top = 0
+  /** The peaks as startFrom left them. */
+  private readonly startPeaks = new Float64Array(ROTATION_ANGLE_COUNT)
 
   reset(): void {
     this.peaks.fill(0)
@@ -142,32 +142,42 @@ export class DirectionalPeaks {
     this.loadWedge()
   }
 
-  /** The peaks and their setters, for starting another tracker from them ({@link startFrom}). */
+  /** The setters of the peaks so far, for starting another tracker from them ({@link startFrom}). */
   snapshot(): DirectionalStart {
-    return { peaks: this.peaks.slice(), setterX: this.setterX.slice(), setterY: this.setterY.slice() }
+    const xs: number[] = []
+    const ys: number[] = []
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      const x = this.setterX[k] as number
+      const y = this.setterY[k] as number
+      if (k > 0 && x === this.setterX[k - 1] && y === this.setterY[k - 1]) continue
+      xs.push(x)
+      ys.push(y)
+    }
+    return { xs: Float64Array.from(xs), ys: Float64Array.from(ys) }
   }
 
   /**
-   * Starts from START_SHARE × a polygon taken from another tracker: the peaks and the setters
-   * scaled by a power of two, so exactly (the scaled setters still touch the scaled polygon's
-   * edges, and every test below holds as for samples seen). Samples inside it are then skipped
-   * from the first one. The peaks end exact wherever they rise above their start
-   * ({@link heldAbove}); where one does not, the caller starts again from 0.
+   * Starts from START_SHARE × another tracker's setters, taken in as if they were samples (each
+   * scanned in every direction, then the runs built once): the state is one this tracker reaches
+   * from those points, so every test holds as for samples seen, and samples inside their polygon
+   * are skipped from the first one. The peaks end the samples' own, bit for bit, wherever they
+   * rise above their start ({@link heldAbove}); where one does not, the caller starts again from 0.
    */
   startFrom(start: DirectionalStart): void {
     this.reset()
-    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) this.peaks[k] = START_SHARE * (start.peaks[k] as number)
-    for (let j = 0; j < FULL_TURN; j++) {
-      this.setterX[j] = START_SHARE * (start.setterX[j] as number)
-      this.setterY[j] = START_SHARE * (start.setterY[j] as number)
+    let raised = false
+    for (let i = 0; i < start.xs.length; i++) {
+      raised =
+        this.scanAll(START_SHARE * (start.xs[i] as number), START_SHARE * (start.ys[i] as number)) || raised
     }
-    this.rebuildRuns()
+    if (raised) this.rebuildRuns()
+    this.startPeaks.set(this.peaks)
   }
 
-  /** Whether every peak ended strictly above where startFrom(start) put it, so is the samples' own. */
-  heldAbove(start: DirectionalStart): boolean {
+  /** Whether every peak ended strictly above where startFrom put it, so is the samples' own. */
+  heldAbove(): boolean {
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-      if (!((this.peaks[k] as number) > START_SHARE * (start.peaks[k] as number))) return false
+      if (!((this.peaks[k] as number) > (this.startPeaks[k] as number))) return false
     }
     return true
   }
@@ -397,6 +407,11 @@ export class DirectionalPeaks {
 
   /** The definition: (x, y) against every direction; then the runs afresh. */
   private raiseEverywhere(x: number, y: number): void {
+    if (this.scanAll(x, y)) this.rebuildRuns()
+  }
+
+  /** (x, y) against every direction, raising each peak it beats; whether it raised any. */
+  private scanAll(x: number, y: number): boolean {
     let raised = false
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
       const projection = x * (COS[k] as number) + y * (SIN[k] as number)
@@ -411,7 +426,7 @@ export class DirectionalPeaks {
         raised = true
       }
     }
-    if (raised) this.rebuildRuns()
+    return raised
   }
 
   private refreshFloor(): void {
@@ -658,7 +673,7 @@ export function pairCoefficients(
   return out
 }
 
-/** Where an oscillator's directional peaks start: START_SHARE × another oscillator's, for u, v and A. */
+/** Where an oscillator's directional peaks start: START_SHARE × another oscillator's setters, for u, v and A. */
 interface PairStart {
   u: DirectionalStart
   v: DirectionalStart
@@ -703,7 +718,7 @@ function solvePairOscillator(
     return kernel.pairHistories(record.accel1MPerS2, record.accel2MPerS2, subSteps, coeffs, fold, skip)
   }
   let end = run(start)
-  if (start && !(out.u.heldAbove(start.u) && out.v.heldAbove(start.v) && out.a.heldAbove(start.a))) {
+  if (start && !(out.u.heldAbove() && out.v.heldAbove() && out.a.heldAbove())) {
     onSolvedAgain?.()
     end = run(undefined)
   }
@@ -748,7 +763,7 @@ const STEPS_PER_REPORT = 3_000_000
  * Solves each oscillator under both components of the pair on `kernel`'s history mode (both
  * components at once, with the oscillator's own sub-steps) and returns its peaks in every
  * direction, in the order given. They are solved one after another in period order within each
- * damping ratio, and each (but the first) starts at half the directional peaks of the one before,
+ * damping ratio, and each (but the first) starts at three quarters of the directional peaks of the one before,
  * where that one's period lies within NEIGHBOUR_PERIOD_RATIO of its own. Starting points only let
  * the search skip more samples; the peaks are the same bits as from 0 (see solvePairOscillator).
  * `onSolvedAgain` gets the oscillator-steps of each oscillator run again from 0.
