@@ -856,12 +856,19 @@ export function pairOrdinates(peaks: PairPeaks, of: Combination | PairComponent)
     return { sdM: mean(peaks.u), svMPerS: mean(peaks.v), saMPerS2: mean(peaks.a) }
   }
   const key = of === 'rotd50' ? 'rotD50' : 'rotD100'
-  return {
-    sdM: rotDFromPeaks(peaks.u)[key],
-    svMPerS: rotDFromPeaks(peaks.v)[key],
-    saMPerS2: rotDFromPeaks(peaks.a)[key],
+  let known = rotDOf.get(peaks)
+  if (!known) {
+    known = { u: rotDFromPeaks(peaks.u), v: rotDFromPeaks(peaks.v), a: rotDFromPeaks(peaks.a) }
+    rotDOf.set(peaks, known)
   }
+  return { sdM: known.u[key], svMPerS: known.v[key], saMPerS2: known.a[key] }
 }
+
+/**
+ * RotD50 and RotD100 of an oscillator's peaks, found once: the refinement asks for them after
+ * every pass, and the curves again. A solve makes new PairPeaks; nothing changes one after.
+ */
+const rotDOf = new WeakMap<PairPeaks, Record<'u' | 'v' | 'a', { rotD50: number; rotD100: number }>>()
 
 export const PAIR_COMBINATION_STATEMENT =
   'Two components: each oscillator solved once per component; responses rotated as u(θ,t) = u₁(t)cosθ + u₂(t)sinθ ' +
