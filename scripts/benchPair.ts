@@ -13,11 +13,13 @@
  *    the medians (the issue's target: pair ≤ 3× record); the machine may be shared, so medians and
  *    ratios are what to quote, and the same for the process's CPU time, which load disturbs less;
  * 2. where the pair's time goes, in its first pass: the engine's own solve (solvePairOscillators:
- *    in period order, each oscillator started from three quarters of the directional peaks of the one before,
- *    and the kernel leaving out the samples inside each tracker's floor circle); the same pass
- *    with every oscillator from 0 and every sample handed to the search (DirectionalPeaks.addMany);
- *    the histories alone on each kernel; then the search's CPU time in both ways, less that of the
- *    histories alone (CPU time is less disturbed by a shared machine).
+ *    in period order, two at a time where neighbours share their sub-steps, each started from three
+ *    quarters of the directional peaks of the last one solved, and the kernel leaving out the
+ *    samples inside each tracker's floor circle); the same pass with every oscillator from 0, one
+ *    at a time, and every sample handed to the search (DirectionalPeaks.addMany); the histories
+ *    alone on each kernel, one at a time and two at a time; then the CPU time of the search and
+ *    the rest in both ways, less that of the histories two at a time (CPU time is less disturbed
+ *    by a shared machine).
  */
 import { computeSpectrum, planSpectrum } from '../shared/spectra/computeSpectrum.js'
 import { demoRecord } from '../shared/spectra/demo/demoRecords.js'
@@ -154,23 +156,48 @@ console.log(
   `2. Where the pair time goes (its first pass: ${oscillators.length} oscillators, ${(firstPassSteps / 1e6).toFixed(1)} M oscillator-steps, kernel ${engineKernel.name}):`,
 )
 console.log(
-  `   the engine's solve (in period order, each oscillator started from three quarters of the directional peaks of the one before; samples inside each floor circle left out by the kernel): ${engineMs.toFixed(0)} ms, CPU ${engineCpuMs.toFixed(0)} ms`,
+  `   the engine's solve (in period order, two at a time where neighbours share their sub-steps, each started from three quarters of the directional peaks of the last one solved; samples inside each floor circle left out by the kernel): ${engineMs.toFixed(0)} ms, CPU ${engineCpuMs.toFixed(0)} ms`,
 )
 console.log(
   `   the same with every oscillator from 0 and every sample searched: ${plainMs.toFixed(0)} ms, CPU ${plainCpuMs.toFixed(0)} ms`,
 )
 const noFold: HistoryFold = () => {}
+/** The histories alone as the engine runs them: neighbours in the plan's order with equal sub-steps two at a time. */
+const replayTwo = (kernel: SweepKernel) =>
+  clock(() => {
+    const lanes = [new Float64Array(PAIR_COEFFICIENTS), new Float64Array(PAIR_COEFFICIENTS)] as const
+    for (let at = 0; at < oscillators.length;) {
+      const one = oscillators[at]!
+      const other = oscillators[at + 1]
+      pairCoefficients(settings.method, one.periodS, one.dampingRatio, dtS / one.subSteps, lanes[0])
+      if (other && other.subSteps === one.subSteps && other.dampingRatio === one.dampingRatio) {
+        pairCoefficients(settings.method, other.periodS, other.dampingRatio, dtS / other.subSteps, lanes[1])
+        kernel.pairHistoriesTwo(
+          accel1,
+          accel2,
+          one.subSteps,
+          { coeffs: lanes[0], fold: noFold },
+          { coeffs: lanes[1], fold: noFold },
+        )
+        at += 2
+      } else {
+        kernel.pairHistories(accel1, accel2, one.subSteps, lanes[0], noFold)
+        at += 1
+      }
+    }
+  })
 let historiesCpuMs = 0
 for (const kernel of new Set([engineKernel, jsKernel()])) {
-  const [ms, cpuMs] = replay(kernel, noFold)
-  if (kernel === engineKernel) historiesCpuMs = cpuMs
+  const [ms] = replay(kernel, noFold)
+  const [twoMs, twoCpuMs] = replayTwo(kernel)
+  if (kernel === engineKernel) historiesCpuMs = twoCpuMs
   console.log(
-    `   histories alone, kernel ${kernel.name}: ${ms.toFixed(0)} ms (${perStep(ms)} ns per oscillator-step)`,
+    `   histories alone, kernel ${kernel.name}: one oscillator at a time ${ms.toFixed(0)} ms (${perStep(ms)} ns per oscillator-step), two at a time as the engine runs them ${twoMs.toFixed(0)} ms (${perStep(twoMs)} ns)`,
   )
 }
 // CPU time, less disturbed by other work on the machine than the wall times above.
 const searchCpu = (cpuMs: number) =>
   `${(cpuMs - historiesCpuMs).toFixed(0)} ms (${(((cpuMs - historiesCpuMs) * 1e6) / (firstPassSteps / 2)).toFixed(2)} ns per time step of the pair)`
 console.log(
-  `   directional search, CPU time less the histories alone: the engine's ${searchCpu(engineCpuMs)}; every sample from 0 ${searchCpu(plainCpuMs)}`,
+  `   directional search and the rest, CPU time less the histories two at a time: the engine's ${searchCpu(engineCpuMs)}; every sample from 0 ${searchCpu(plainCpuMs)}`,
 )

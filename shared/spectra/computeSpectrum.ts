@@ -685,6 +685,8 @@ function pairSolver(
         kernel,
         onProgress,
         (steps) => (solver.stepsRun += steps),
+        // A refinement pass starts each oscillator from its own last pass.
+        indices.map((index) => peaks[index]?.setters),
       ).forEach((solved, slot) => {
         peaks[indices[slot]!] = solved
       })

@@ -498,7 +498,7 @@ describe('computeSpectrum of a pair', () => {
           Math.sin((2 * Math.PI * i * dtS) / 1 + phase) + Math.sin((2 * Math.PI * i * dtS) / 1.4 + 2 * phase),
       )
     const pair = { accel1MPerS2: wave(0), accel2MPerS2: wave(1), dtS }
-    const oscillators = [1, 1.2, 1.4].map((periodS) => ({ periodS, dampingRatio: 0.02, subSteps: 2 }))
+    const oscillators = [0.8, 1, 1.2, 1.4].map((periodS) => ({ periodS, dampingRatio: 0.02, subSteps: 2 }))
     // Periods near each other, with starts that hold: the neighbours of a smooth stretch.
     const smooth = Array.from({ length: 12 }, (_, p) => ({
       periodS: 2 + 0.05 * p,

@@ -16,8 +16,10 @@ import type { OrdinatePeaks } from './computeSpectrum.js'
 import { freeVibrationTailPeaks } from './freeVibration.js'
 import {
   type HistoryFold,
+  type HistoryLane,
   type HistorySkip,
   PAIR_COEFFICIENTS,
+  type PairEndState,
   type SweepKernel,
 } from './kernel/sweepKernel.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
@@ -674,66 +676,116 @@ export function pairCoefficients(
 }
 
 /** Where an oscillator's directional peaks start: START_SHARE × another oscillator's setters, for u, v and A. */
-interface PairStart {
+export interface PairStart {
   u: DirectionalStart
   v: DirectionalStart
   a: DirectionalStart
 }
 
 /**
- * Solves one oscillator under both components on the kernel's history mode (the same recurrence
- * and sub-steps as the single-record sweep, with the ground acceleration interpolated linearly
- * between samples), folding each block of the histories into the directional peaks, then adds
- * the closed-form peaks of the free vibration after the record in every direction
- * (freeVibration.ts). With a start, the peaks begin there, and if any of them does not end above
- * it the histories are run again from 0 (`onSolvedAgain` says so), so the peaks are the same
- * bits either way. Returns the snapshot of the histories' own peaks when `keep` is set.
+ * Whether the free vibration after the record provably raises no directional peak, so its
+ * closed-form peaks need not be found in each direction. In direction θ it is
+ * e^(−σt)(P·cos ω_D t + Q·sin ω_D t) (freeVibrationTailPeaks), never above √(P² + Q²); P and Q
+ * are linear in the end state projected on θ, so bounded through the end state's resultant
+ * lengths |u| and |v|. With a margin far above rounding, below the smallest peak of each of u,
+ * v and A means below every one.
  */
-function solvePairOscillator(
-  record: PairRecord,
-  kernel: SweepKernel,
-  periodS: number,
+function tailBelowPeaks(
+  end: PairEndState,
+  omega: number,
   zeta: number,
-  subSteps: number,
-  coeffs: Float64Array,
-  out: OscillatorDirections,
-  fold: HistoryFold,
-  skip: HistorySkip,
-  refreshSkip: () => void,
-  start: PairStart | undefined,
-  keep: boolean,
-  onSolvedAgain: (() => void) | undefined,
-): PairStart | undefined {
-  const run = (from: PairStart | undefined) => {
-    if (from) {
-      out.u.startFrom(from.u)
-      out.v.startFrom(from.v)
-      out.a.startFrom(from.a)
+  peaks: OscillatorDirections,
+): boolean {
+  const u = Math.hypot(end.u1, end.u2)
+  const v = Math.hypot(end.v1, end.v2)
+  const sigma = zeta * omega
+  const omegaD = omega * Math.sqrt(1 - zeta * zeta)
+  const k = omega * omega
+  const uQ = (v + sigma * u) / omegaD
+  const vQ = (k * u + sigma * v) / omegaD
+  const margin = 1 + 1e-9
+  return (
+    margin * Math.hypot(u, uQ) < smallest(peaks.u.peaks) &&
+    margin * Math.hypot(v, vQ) < smallest(peaks.v.peaks) &&
+    margin * Math.hypot(2 * sigma * v + k * u, 2 * sigma * vQ + k * uQ) < smallest(peaks.a.peaks)
+  )
+}
+
+function smallest(values: Float64Array): number {
+  let least = Infinity
+  for (let i = 0; i < values.length; i++) least = Math.min(least, values[i] as number)
+  return least
+}
+
+/**
+ * One oscillator's directional search as the kernel feeds it: the trackers of u, v and A, the
+ * coefficients, and the squared radii inside which the kernel leaves samples out (each tracker's
+ * floor circle, as addMany would skip them first), refreshed after every block.
+ */
+class SearchLane implements HistoryLane {
+  readonly out: OscillatorDirections = {
+    u: new DirectionalPeaks(),
+    v: new DirectionalPeaks(),
+    a: new DirectionalPeaks(),
+  }
+  readonly coeffs = new Float64Array(PAIR_COEFFICIENTS)
+  readonly skip: HistorySkip = new Float64Array(3)
+  readonly fold: HistoryFold = (block) => {
+    this.out.u.addMany(block.u1, block.u2, block.kept[0]!)
+    this.out.v.addMany(block.v1, block.v2, block.kept[1]!)
+    this.out.a.addMany(block.a1, block.a2, block.kept[2]!)
+    this.refreshSkip()
+  }
+
+  /** Readies the trackers for a new oscillator: from a start, or from 0. */
+  begin(start: PairStart | undefined): void {
+    const { u, v, a } = this.out
+    if (start) {
+      u.startFrom(start.u)
+      v.startFrom(start.v)
+      a.startFrom(start.a)
     } else {
-      out.u.reset()
-      out.v.reset()
-      out.a.reset()
+      u.reset()
+      v.reset()
+      a.reset()
     }
-    refreshSkip()
-    return kernel.pairHistories(record.accel1MPerS2, record.accel2MPerS2, subSteps, coeffs, fold, skip)
+    this.refreshSkip()
   }
-  let end = run(start)
-  if (start && !(out.u.heldAbove() && out.v.heldAbove() && out.a.heldAbove())) {
-    onSolvedAgain?.()
-    end = run(undefined)
+
+  /** Whether every peak ended above its start, so is the samples' own (see DirectionalPeaks.startFrom). */
+  held(): boolean {
+    return this.out.u.heldAbove() && this.out.v.heldAbove() && this.out.a.heldAbove()
   }
-  const kept = keep ? { u: out.u.snapshot(), v: out.v.snapshot(), a: out.a.snapshot() } : undefined
-  const { u1, v1, u2, v2 } = end
-  const omega = (2 * Math.PI) / periodS
-  for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
-    const c = COS[k] as number
-    const s = SIN[k] as number
-    const tail = freeVibrationTailPeaks(c * u1 + s * u2, c * v1 + s * v2, omega, zeta)
-    if (tail.u.value > (out.u.peaks[k] as number)) out.u.peaks[k] = tail.u.value
-    if (tail.v.value > (out.v.peaks[k] as number)) out.v.peaks[k] = tail.v.value
-    if (tail.a.value > (out.a.peaks[k] as number)) out.a.peaks[k] = tail.a.value
+
+  /**
+   * The histories' peaks, with the closed-form peaks of the free vibration after the record in
+   * every direction (freeVibration.ts) added; and the setters of the histories' own peaks.
+   */
+  finish(end: PairEndState, periodS: number, zeta: number): [PairPeaks, PairStart] {
+    const { u, v, a } = this.out
+    const kept = { u: u.snapshot(), v: v.snapshot(), a: a.snapshot() }
+    const omega = (2 * Math.PI) / periodS
+    if (tailBelowPeaks(end, omega, zeta, this.out)) return [this.copy(), kept]
+    for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+      const c = COS[k] as number
+      const s = SIN[k] as number
+      const tail = freeVibrationTailPeaks(c * end.u1 + s * end.u2, c * end.v1 + s * end.v2, omega, zeta)
+      if (tail.u.value > (u.peaks[k] as number)) u.peaks[k] = tail.u.value
+      if (tail.v.value > (v.peaks[k] as number)) v.peaks[k] = tail.v.value
+      if (tail.a.value > (a.peaks[k] as number)) a.peaks[k] = tail.a.value
+    }
+    return [this.copy(), kept]
   }
-  return kept
+
+  private copy(): PairPeaks {
+    return { u: this.out.u.peaks.slice(), v: this.out.v.peaks.slice(), a: this.out.a.peaks.slice() }
+  }
+
+  private refreshSkip(): void {
+    this.skip[0] = this.out.u.skipBelow()
+    this.skip[1] = this.out.v.skipBelow()
+    this.skip[2] = this.out.a.skipBelow()
+  }
 }
 
 /** The oscillators' indices by damping ratio (in the order first met), each list in period order. */
@@ -754,6 +806,8 @@ export interface PairPeaks {
   u: Float64Array
   v: Float64Array
   a: Float64Array
+  /** The setters of the histories' own peaks (before the free vibration), for a later pass to start from. */
+  setters?: PairStart
 }
 
 /** Oscillator-steps of a pair's first pass between progress reports. */
@@ -761,12 +815,16 @@ const STEPS_PER_REPORT = 3_000_000
 
 /**
  * Solves each oscillator under both components of the pair on `kernel`'s history mode (both
- * components at once, with the oscillator's own sub-steps) and returns its peaks in every
- * direction, in the order given. They are solved one after another in period order within each
- * damping ratio, and each (but the first) starts at three quarters of the directional peaks of the one before,
- * where that one's period lies within NEIGHBOUR_PERIOD_RATIO of its own. Starting points only let
- * the search skip more samples; the peaks are the same bits as from 0 (see solvePairOscillator).
- * `onSolvedAgain` gets the oscillator-steps of each oscillator run again from 0.
+ * components at once, with the oscillator's own sub-steps, the same recurrence as the
+ * single-record sweep and the ground acceleration interpolated linearly between samples) and
+ * returns its peaks in every direction, in the order given. They are solved in period order
+ * within each damping ratio, two at a time where neighbours share their sub-steps (the kernel
+ * then advances both side by side), and each starts at three quarters of the directional peaks
+ * of the last one solved before it, where that one's period lies within NEIGHBOUR_PERIOD_RATIO
+ * of its own. Where a peak does not end above its start, the oscillator is run again from 0, so
+ * the peaks are the same bits as from 0 in any case; `onSolvedAgain` gets the oscillator-steps
+ * of each such run. `startsGiven` (by the oscillators' order) replaces those starts where set:
+ * a later pass of the same oscillators starts from the setters of the last (PairPeaks.setters).
  */
 export function solvePairOscillators(
   pair: PairRecord,
@@ -775,53 +833,43 @@ export function solvePairOscillators(
   kernel: SweepKernel,
   onProgress?: (fraction: number) => void,
   onSolvedAgain?: (oscillatorSteps: number) => void,
+  startsGiven?: readonly (PairStart | undefined)[],
 ): PairPeaks[] {
-  const work: OscillatorDirections = {
-    u: new DirectionalPeaks(),
-    v: new DirectionalPeaks(),
-    a: new DirectionalPeaks(),
-  }
-  // The kernel leaves out the samples inside each tracker's floor circle (as addMany would skip
-  // them first), from radii refreshed after every block.
-  const skip = new Float64Array(3)
-  const refreshSkip = () => {
-    skip[0] = work.u.skipBelow()
-    skip[1] = work.v.skipBelow()
-    skip[2] = work.a.skipBelow()
-  }
-  const fold: HistoryFold = (block) => {
-    work.u.addMany(block.u1, block.u2, block.kept[0]!)
-    work.v.addMany(block.v1, block.v2, block.kept[1]!)
-    work.a.addMany(block.a1, block.a2, block.kept[2]!)
-    refreshSkip()
-  }
-  const coeffs = new Float64Array(PAIR_COEFFICIENTS)
-  const intervals = pair.accel1MPerS2.length - 1
+  const { accel1MPerS2: first, accel2MPerS2: second, dtS } = pair
+  const lanes = [new SearchLane(), new SearchLane()] as const
+  const intervals = first.length - 1
   let total = 0
   for (const { subSteps } of oscillators) total += intervals * subSteps
   let done = 0
   let reported = 0
   const results: PairPeaks[] = new Array<PairPeaks>(oscillators.length)
-  const solve = (index: number, start: PairStart | undefined, keep: boolean) => {
-    const { periodS, dampingRatio, subSteps } = oscillators[index]!
-    pairCoefficients(method, periodS, dampingRatio, pair.dtS / subSteps, coeffs)
-    const snapshot = solvePairOscillator(
-      pair,
-      kernel,
-      periodS,
-      dampingRatio,
-      subSteps,
-      coeffs,
-      work,
-      fold,
-      skip,
-      refreshSkip,
-      start,
-      keep,
-      onSolvedAgain && (() => onSolvedAgain(2 * intervals * subSteps)),
-    )
-    results[index] = { u: work.u.peaks.slice(), v: work.v.peaks.slice(), a: work.a.peaks.slice() }
-    done += intervals * subSteps
+  /** Solves the oscillators at `indices` (one, or two with the same sub-steps) from their starts. */
+  const solve = (indices: readonly number[], starts: readonly (PairStart | undefined)[]) => {
+    const { subSteps } = oscillators[indices[0]!]!
+    indices.forEach((index, l) => {
+      const { periodS, dampingRatio } = oscillators[index]!
+      pairCoefficients(method, periodS, dampingRatio, dtS / subSteps, lanes[l]!.coeffs)
+      lanes[l]!.begin(starts[l])
+    })
+    const ends =
+      indices.length === 2
+        ? kernel.pairHistoriesTwo(first, second, subSteps, lanes[0], lanes[1])
+        : [kernel.pairHistories(first, second, subSteps, lanes[0].coeffs, lanes[0].fold, lanes[0].skip)]
+    let snapshot: PairStart | undefined
+    indices.forEach((index, l) => {
+      const lane = lanes[l]!
+      let end = ends[l]!
+      if (starts[l] && !lane.held()) {
+        onSolvedAgain?.(2 * intervals * subSteps)
+        lane.begin(undefined)
+        end = kernel.pairHistories(first, second, subSteps, lane.coeffs, lane.fold, lane.skip)
+      }
+      const { periodS, dampingRatio } = oscillators[index]!
+      const [peaks, setters] = lane.finish(end, periodS, dampingRatio)
+      results[index] = { ...peaks, setters }
+      snapshot = setters
+      done += intervals * subSteps
+    })
     if (onProgress && done - reported >= STEPS_PER_REPORT) {
       reported = done
       onProgress(done / total)
@@ -830,11 +878,22 @@ export function solvePairOscillators(
   }
   for (const chain of periodChains(oscillators)) {
     let previous: PairStart | undefined
-    chain.forEach((index, at) => {
-      const near =
-        at > 0 && oscillators[index]!.periodS / oscillators[chain[at - 1]!]!.periodS <= NEIGHBOUR_PERIOD_RATIO
-      previous = solve(index, near ? previous : undefined, at + 1 < chain.length)
-    })
+    let previousPeriodS = 0
+    for (let at = 0; at < chain.length;) {
+      const next = chain[at + 1]
+      const together = next !== undefined && oscillators[next]!.subSteps === oscillators[chain[at]!]!.subSteps
+      const indices = together ? [chain[at]!, next] : [chain[at]!]
+      const starts = indices.map((index) => {
+        const given = startsGiven?.[index]
+        if (given) return given
+        const periodS = oscillators[index]!.periodS
+        const near = Math.max(periodS, previousPeriodS) / Math.min(periodS, previousPeriodS)
+        return previous && near <= NEIGHBOUR_PERIOD_RATIO ? previous : undefined
+      })
+      at += indices.length
+      previous = solve(indices, starts)
+      previousPeriodS = oscillators[indices.at(-1)!]!.periodS
+    }
   }
   return results
 }

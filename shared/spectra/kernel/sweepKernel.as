@@ -330,3 +330,120 @@ export function pairHistories(
   store<i32>(kept, <i32>(atV >> 3), 4)
   store<i32>(kept, <i32>(atA >> 3), 8)
 }
+
+// Two oscillators with the same sub-steps at once (pairHistoriesTwo): their recurrences are
+// independent, so running them side by side hides each one's chain of dependent operations behind
+// the other's; each is operation for operation the one-oscillator loop above, so the same bits.
+// Memory as above for each, the second's at: coeffs + 80, state + 32, skip + 32, kept + 16 and
+// out + 6·stride.
+export function pairHistoriesTwo(
+  record: usize,
+  first: i32,
+  intervals: i32,
+  subSteps: i32,
+  coeffs: usize,
+  state: usize,
+  out: usize,
+  stride: usize,
+  skip: usize,
+  kept: usize,
+): void {
+  const a11 = f64x2.splat(load<f64>(coeffs))
+  const a12 = f64x2.splat(load<f64>(coeffs, 8))
+  const b1 = f64x2.splat(load<f64>(coeffs, 16))
+  const c1 = f64x2.splat(load<f64>(coeffs, 24))
+  const a21 = f64x2.splat(load<f64>(coeffs, 32))
+  const a22 = f64x2.splat(load<f64>(coeffs, 40))
+  const b2 = f64x2.splat(load<f64>(coeffs, 48))
+  const c2 = f64x2.splat(load<f64>(coeffs, 56))
+  const cc = f64x2.splat(load<f64>(coeffs, 64))
+  const kk = f64x2.splat(load<f64>(coeffs, 72))
+  const p11 = f64x2.splat(load<f64>(coeffs, 80))
+  const p12 = f64x2.splat(load<f64>(coeffs, 88))
+  const q1 = f64x2.splat(load<f64>(coeffs, 96))
+  const r1 = f64x2.splat(load<f64>(coeffs, 104))
+  const p21 = f64x2.splat(load<f64>(coeffs, 112))
+  const p22 = f64x2.splat(load<f64>(coeffs, 120))
+  const q2 = f64x2.splat(load<f64>(coeffs, 128))
+  const r2 = f64x2.splat(load<f64>(coeffs, 136))
+  const ccB = f64x2.splat(load<f64>(coeffs, 144))
+  const kkB = f64x2.splat(load<f64>(coeffs, 152))
+  const skipU = load<f64>(skip)
+  const skipV = load<f64>(skip, 8)
+  const skipA = load<f64>(skip, 16)
+  const skipUB = load<f64>(skip, 32)
+  const skipVB = load<f64>(skip, 40)
+  const skipAB = load<f64>(skip, 48)
+  const m = f64x2.splat(<f64>subSteps)
+  let u = v128.load(state)
+  let v = v128.load(state, 16)
+  let uB = v128.load(state, 32)
+  let vB = v128.load(state, 48)
+  const outU = out
+  const outV = out + 2 * stride
+  const outA = out + 4 * stride
+  const outUB = out + 6 * stride
+  const outVB = out + 8 * stride
+  const outAB = out + 10 * stride
+  let atU: usize = 0
+  let atV: usize = 0
+  let atA: usize = 0
+  let atUB: usize = 0
+  let atVB: usize = 0
+  let atAB: usize = 0
+  let start = v128.load(record + ((<usize>first) << 4))
+  for (let i: i32 = 1; i <= intervals; i++) {
+    const end = v128.load(record + ((<usize>(first + i)) << 4))
+    const slope = f64x2.div(f64x2.sub(end, start), m)
+    let f = start
+    for (let j: i32 = 1; j <= subSteps; j++) {
+      const next = j == subSteps ? end : f64x2.add(start, f64x2.mul(slope, f64x2.splat(<f64>j)))
+      const u0 = u
+      const v0 = v
+      const u0B = uB
+      const v0B = vB
+      u = lin(a11, u0, a12, v0, b1, f, c1, next)
+      v = lin(a21, u0, a22, v0, b2, f, c2, next)
+      uB = lin(p11, u0B, p12, v0B, q1, f, r1, next)
+      vB = lin(p21, u0B, p22, v0B, q2, f, r2, next)
+      const a = f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u))
+      const aB = f64x2.add(f64x2.mul(ccB, vB), f64x2.mul(kkB, uB))
+      if (keep(u, skipU)) {
+        storeLanes(outU + atU, stride, u)
+        atU += 8
+      }
+      if (keep(v, skipV)) {
+        storeLanes(outV + atV, stride, v)
+        atV += 8
+      }
+      if (keep(a, skipA)) {
+        storeLanes(outA + atA, stride, a)
+        atA += 8
+      }
+      if (keep(uB, skipUB)) {
+        storeLanes(outUB + atUB, stride, uB)
+        atUB += 8
+      }
+      if (keep(vB, skipVB)) {
+        storeLanes(outVB + atVB, stride, vB)
+        atVB += 8
+      }
+      if (keep(aB, skipAB)) {
+        storeLanes(outAB + atAB, stride, aB)
+        atAB += 8
+      }
+      f = next
+    }
+    start = end
+  }
+  v128.store(state, u)
+  v128.store(state, v, 16)
+  v128.store(state, uB, 32)
+  v128.store(state, vB, 48)
+  store<i32>(kept, <i32>(atU >> 3))
+  store<i32>(kept, <i32>(atV >> 3), 4)
+  store<i32>(kept, <i32>(atA >> 3), 8)
+  store<i32>(kept, <i32>(atUB >> 3), 16)
+  store<i32>(kept, <i32>(atVB >> 3), 20)
+  store<i32>(kept, <i32>(atAB >> 3), 24)
+}

@@ -160,13 +160,13 @@ describe('history mode (pairs)', () => {
 
   /** Every block's values joined into whole histories, with the block lengths and the end state. */
   type Whole = Record<(typeof keys)[number], Float64Array>
-  function histories(kernel: SweepKernel, subSteps: number) {
+  function histories(kernel: SweepKernel, subSteps: number, withCoeffs: Float64Array = coeffs) {
     const total = (samples - 1) * subSteps
     const make = () => new Float64Array(total)
     const whole: Whole = { u1: make(), u2: make(), v1: make(), v2: make(), a1: make(), a2: make() }
     const counts: number[] = []
     let at = 0
-    const end = kernel.pairHistories(first, second, subSteps, coeffs, (block: HistoryBlock, count) => {
+    const end = kernel.pairHistories(first, second, subSteps, withCoeffs, (block: HistoryBlock, count) => {
       // With no skip, every sample of every quantity is kept.
       expect(Array.from(block.kept)).toEqual([count, count, count])
       counts.push(count)
@@ -179,7 +179,12 @@ describe('history mode (pairs)', () => {
   const bytes = (whole: Whole) => keys.map((key) => Buffer.from(whole[key].buffer).toString('base64'))
 
   /** With a skip that rises from block to block: each quantity's kept samples, joined. */
-  function keptSamples(kernel: SweepKernel, subSteps: number, radii: (block: number) => number[]) {
+  function keptSamples(
+    kernel: SweepKernel,
+    subSteps: number,
+    radii: (block: number) => number[],
+    withCoeffs: Float64Array = coeffs,
+  ) {
     const kept: Whole = {
       u1: new Float64Array(0),
       u2: new Float64Array(0),
@@ -195,7 +200,7 @@ describe('history mode (pairs)', () => {
       first,
       second,
       subSteps,
-      coeffs,
+      withCoeffs,
       (block) => {
         perBlock.push(Array.from(skip))
         keys.forEach((key, k) => {
@@ -260,6 +265,69 @@ describe('history mode (pairs)', () => {
       expect(fromJs.whole.u1.at(-1)).toBe(fromJs.end.u1)
       expect(fromJs.whole.v2.at(-1)).toBe(fromJs.end.v2)
       expect(fromJs.whole.u1.at(-1)).not.toBe(fromJs.whole.u2.at(-1))
+    }
+  })
+
+  it('two oscillators at once: each gets the bits, blocks and kept samples it gets alone, in both kernels', () => {
+    const other = Float64Array.from({ length: PAIR_COEFFICIENTS }, () => random() - 0.5)
+    for (const subSteps of [1, 8]) {
+      const alone = [histories(createJsKernel(), subSteps), histories(createJsKernel(), subSteps, other)]
+      const radii = (block: number) => [0.5, 0.4, 0.3].map((r) => r * (1 + 0.1 * block))
+      const keptAlone = [coeffs, other].map((c) => keptSamples(createJsKernel(), subSteps, radii, c))
+      for (const kernel of [createWasmKernel()!, createJsKernel()]) {
+        // Whole histories, every sample kept.
+        const lanes = [coeffs, other].map((c) => {
+          const total = (samples - 1) * subSteps
+          const whole: Whole = {
+            u1: new Float64Array(total),
+            u2: new Float64Array(total),
+            v1: new Float64Array(total),
+            v2: new Float64Array(total),
+            a1: new Float64Array(total),
+            a2: new Float64Array(total),
+          }
+          let at = 0
+          const fold = (block: HistoryBlock, count: number) => {
+            for (const key of keys) whole[key].set(block[key].subarray(0, count), at)
+            at += count
+          }
+          return { whole, lane: { coeffs: c, fold } }
+        })
+        const ends = kernel.pairHistoriesTwo(first, second, subSteps, lanes[0]!.lane, lanes[1]!.lane)
+        lanes.forEach((lane, l) => {
+          expect(bytes(lane.whole)).toEqual(bytes(alone[l]!.whole))
+          expect(ends[l]).toEqual(alone[l]!.end)
+        })
+        // With skips that rise block by block, each lane's own.
+        const kept = [coeffs, other].map(() => ({
+          samples: [] as number[][],
+          skip: Float64Array.from(radii(0)),
+          blocks: 0,
+        }))
+        const skipLanes = [coeffs, other].map((c, l) => ({
+          coeffs: c,
+          skip: kept[l]!.skip,
+          fold: (block: HistoryBlock) => {
+            const lane = kept[l]!
+            keys.forEach((key, k) => {
+              lane.samples[k] = [
+                ...(lane.samples[k] ?? []),
+                ...block[key].subarray(0, block.kept[Math.floor(k / 2)]!),
+              ]
+            })
+            lane.blocks++
+            lane.skip.set(radii(lane.blocks))
+          },
+        }))
+        kernel.pairHistoriesTwo(first, second, subSteps, skipLanes[0]!, skipLanes[1]!)
+        kept.forEach((lane, l) => {
+          keys.forEach((key, k) =>
+            expect(lane.samples[k], `${kernel.name} lane ${l} ${key}`).toEqual(
+              Array.from(keptAlone[l]!.kept[key]),
+            ),
+          )
+        })
+      }
     }
   })
 

@@ -57,8 +57,11 @@ export const PAIR_COEFFICIENTS = 10
 export const HISTORY_BLOCK = 4096
 /** Keeps every sample of a history (no squared radius is below −1). */
 const KEEP_ALL: HistorySkip = Float64Array.of(-1, -1, -1)
-/** Bytes of the history mode's coefficients, state, skip and kept, before its arrays (a multiple of 16). */
-const PAIR_HEADER_BYTES = (PAIR_COEFFICIENTS + 4 + 4) * 8 + 4 * 4
+/**
+ * Bytes of the history mode's coefficients, state, skip and kept, for two oscillators, before its
+ * arrays: 2 × PAIR_COEFFICIENTS f64, 2 × 4 f64, 2 × 4 f64 and 2 × 4 i32 (a multiple of 16).
+ */
+const PAIR_HEADER_BYTES = (2 * PAIR_COEFFICIENTS + 8 + 8) * 8 + 8 * 4
 
 /**
  * One block of a pair oscillator's response histories: u, v and A of the first and second
@@ -138,6 +141,25 @@ export interface SweepKernel {
     fold: HistoryFold,
     skip?: HistorySkip,
   ): PairEndState
+  /**
+   * pairHistories for two oscillators with the same sub-steps at once (each with its own
+   * coefficients, fold and skip; the same bits as one at a time): the WebAssembly kernel advances
+   * them side by side, which runs faster than one after the other.
+   */
+  pairHistoriesTwo(
+    first: Float64Array,
+    second: Float64Array,
+    subSteps: number,
+    one: HistoryLane,
+    other: HistoryLane,
+  ): [PairEndState, PairEndState]
+}
+
+/** One oscillator's part of a pairHistoriesTwo call. */
+export interface HistoryLane {
+  coeffs: Float64Array
+  fold: HistoryFold
+  skip?: HistorySkip
 }
 
 /**
@@ -396,6 +418,7 @@ export function createJsKernel(): SweepKernel {
   let record: Float64Array = new Float64Array(0)
   let loaded: Float64Array | null = null
   let block: HistoryBlock | undefined
+  let otherBlock: HistoryBlock | undefined
   return {
     name: 'js',
     lanes: 1,
@@ -413,6 +436,15 @@ export function createJsKernel(): SweepKernel {
     pairHistories(first, second, subSteps, coeffs, fold, skip) {
       block ??= historyBlock()
       return jsPairHistories(first, second, subSteps, coeffs, block, fold, skip)
+    },
+    pairHistoriesTwo(first, second, subSteps, one, other) {
+      // One after the other: each oscillator's blocks, skips and folds are as when run alone.
+      block ??= historyBlock()
+      otherBlock ??= historyBlock()
+      return [
+        jsPairHistories(first, second, subSteps, one.coeffs, block, one.fold, one.skip),
+        jsPairHistories(first, second, subSteps, other.coeffs, otherBlock, other.fold, other.skip),
+      ]
     },
   }
 }
@@ -437,19 +469,23 @@ interface KernelExports {
     scratch: number,
     candidates: number,
   ): number
-  pairHistories(
-    record: number,
-    first: number,
-    intervals: number,
-    subSteps: number,
-    coeffs: number,
-    state: number,
-    out: number,
-    stride: number,
-    skip: number,
-    kept: number,
-  ): void
+  pairHistories: PairHistoriesExport
+  pairHistoriesTwo: PairHistoriesExport
 }
+
+/** The history mode's exports (one oscillator, or two side by side; layout in sweepKernel.as). */
+type PairHistoriesExport = (
+  record: number,
+  first: number,
+  intervals: number,
+  subSteps: number,
+  coeffs: number,
+  state: number,
+  out: number,
+  stride: number,
+  skip: number,
+  kept: number,
+) => void
 
 function decodeBase64(base64: string): Uint8Array<ArrayBuffer> {
   const binary = atob(base64)
@@ -493,25 +529,31 @@ export function createWasmKernel(): SweepKernel | null {
     if (missing > 0) exports.memory.grow(Math.ceil(missing / PAGE_BYTES))
   }
   const recordBytes = () => samples * 8
-  // History mode: the pair interleaved at `base` (over any record), then coefficients (10 f64),
-  // state (4 f64), skip (3 f64 and a spare), kept (3 i32 and a spare) and the six history arrays,
-  // each HISTORY_BLOCK values.
+  // History mode: the pair interleaved at `base` (over any record), then, for two oscillators
+  // (the second's after the first's in each), coefficients (2 × 10 f64), state (2 × 4 f64), skip
+  // (2 × 3 f64 and a spare) and kept (2 × 3 i32 and a spare), then six history arrays of
+  // HISTORY_BLOCK values for each.
   let pairFirst: Float64Array | null = null
   let pairSecond: Float64Array | null = null
   let pairCoeffsAt = 0
-  let views: {
-    buffer: ArrayBuffer
+  interface LaneViews {
     block: HistoryBlock
     coeffs: Float64Array
     state: Float64Array
     skip: Float64Array
-    kept: Int32Array
+  }
+  let views: {
+    buffer: ArrayBuffer
+    lanes: [LaneViews, LaneViews]
+    stateAt: number
+    skipAt: number
+    keptAt: number
   } | null = null
   const historyBytes = HISTORY_BLOCK * 8
   const loadPair = (first: Float64Array, second: Float64Array) => {
     const pairSamples = first.length
     pairCoeffsAt = align16(base + 2 * pairSamples * 8)
-    ensureBytes(pairCoeffsAt + PAIR_HEADER_BYTES + 6 * historyBytes)
+    ensureBytes(pairCoeffsAt + PAIR_HEADER_BYTES + 12 * historyBytes)
     const interleaved = new Float64Array(exports.memory.buffer, base, 2 * pairSamples)
     for (let i = 0; i < pairSamples; i++) {
       interleaved[2 * i] = first[i]!
@@ -525,30 +567,58 @@ export function createWasmKernel(): SweepKernel | null {
   const pairViews = () => {
     const buffer = exports.memory.buffer
     if (views?.buffer !== buffer) {
-      const stateAt = pairCoeffsAt + PAIR_COEFFICIENTS * 8
-      const skipAt = stateAt + 4 * 8
-      const keptAt = skipAt + 4 * 8
+      const stateAt = pairCoeffsAt + 2 * PAIR_COEFFICIENTS * 8
+      const skipAt = stateAt + 8 * 8
+      const keptAt = skipAt + 8 * 8
       const outAt = pairCoeffsAt + PAIR_HEADER_BYTES
       const array = (k: number) => new Float64Array(buffer, outAt + k * historyBytes, HISTORY_BLOCK)
-      const kept = new Int32Array(buffer, keptAt, 4)
-      views = {
-        buffer,
-        coeffs: new Float64Array(buffer, pairCoeffsAt, PAIR_COEFFICIENTS),
-        state: new Float64Array(buffer, stateAt, 4),
-        skip: new Float64Array(buffer, skipAt, 3),
-        kept,
+      const lane = (l: number): LaneViews => ({
+        coeffs: new Float64Array(buffer, pairCoeffsAt + l * PAIR_COEFFICIENTS * 8, PAIR_COEFFICIENTS),
+        state: new Float64Array(buffer, stateAt + l * 32, 4),
+        skip: new Float64Array(buffer, skipAt + l * 32, 3),
         block: {
-          u1: array(0),
-          u2: array(1),
-          v1: array(2),
-          v2: array(3),
-          a1: array(4),
-          a2: array(5),
-          kept: kept.subarray(0, 3),
+          u1: array(6 * l),
+          u2: array(6 * l + 1),
+          v1: array(6 * l + 2),
+          v2: array(6 * l + 3),
+          a1: array(6 * l + 4),
+          a2: array(6 * l + 5),
+          kept: new Int32Array(buffer, keptAt + l * 16, 3),
         },
-      }
+      })
+      views = { buffer, lanes: [lane(0), lane(1)], stateAt, skipAt, keptAt }
     }
     return views
+  }
+  /** Runs `run` (one oscillator's export, or two's) over the pair a block at a time, folding each lane's block. */
+  const historiesOver = (
+    first: Float64Array,
+    second: Float64Array,
+    subSteps: number,
+    lanes: readonly HistoryLane[],
+    run: PairHistoriesExport,
+  ): PairEndState[] => {
+    checkPairHistories(first, second, subSteps)
+    // A nested sweep (from a progress report between oscillators) may have loaded a record meanwhile.
+    if (pairFirst !== first || pairSecond !== second) loadPair(first, second)
+    const { lanes: parts, stateAt, skipAt, keptAt } = pairViews()
+    lanes.forEach((lane, l) => {
+      parts[l]!.coeffs.set(lane.coeffs.subarray(0, PAIR_COEFFICIENTS))
+      parts[l]!.state.fill(0)
+    })
+    const outAt = parts[0].block.u1.byteOffset
+    const intervals = first.length - 1
+    const perBlock = Math.floor(HISTORY_BLOCK / subSteps)
+    for (let done = 0; done < intervals; done += perBlock) {
+      const count = Math.min(perBlock, intervals - done)
+      lanes.forEach((lane, l) => parts[l]!.skip.set((lane.skip ?? KEEP_ALL).subarray(0, 3)))
+      run(base, done, count, subSteps, pairCoeffsAt, stateAt, outAt, historyBytes, skipAt, keptAt)
+      lanes.forEach((lane, l) => lane.fold(parts[l]!.block, count * subSteps))
+    }
+    return lanes.map((_, l) => {
+      const state = parts[l]!.state
+      return { u1: state[0]!, v1: state[2]!, u2: state[1]!, v2: state[3]! }
+    })
   }
   return {
     name: 'wasm-simd',
@@ -593,35 +663,12 @@ export function createWasmKernel(): SweepKernel | null {
       candidates.values.set(new Float64Array(exports.memory.buffer, candidatesAt, CANDIDATE_VALUES * found))
       return found
     },
-    pairHistories(first, second, subSteps, coeffs, fold, skip = KEEP_ALL) {
-      checkPairHistories(first, second, subSteps)
-      // A nested sweep (from a progress report between oscillators) may have loaded a record meanwhile.
-      if (pairFirst !== first || pairSecond !== second) loadPair(first, second)
-      const { coeffs: coeffsIn, state, block, skip: skipIn, kept } = pairViews()
-      coeffsIn.set(coeffs.subarray(0, PAIR_COEFFICIENTS))
-      state.fill(0)
-      const stateAt = state.byteOffset
-      const outAt = block.u1.byteOffset
-      const intervals = first.length - 1
-      const perBlock = Math.floor(HISTORY_BLOCK / subSteps)
-      for (let done = 0; done < intervals; done += perBlock) {
-        const count = Math.min(perBlock, intervals - done)
-        skipIn.set(skip.subarray(0, 3))
-        exports.pairHistories(
-          base,
-          done,
-          count,
-          subSteps,
-          pairCoeffsAt,
-          stateAt,
-          outAt,
-          historyBytes,
-          skipIn.byteOffset,
-          kept.byteOffset,
-        )
-        fold(block, count * subSteps)
-      }
-      return { u1: state[0]!, v1: state[2]!, u2: state[1]!, v2: state[3]! }
+    pairHistories(first, second, subSteps, coeffs, fold, skip) {
+      return historiesOver(first, second, subSteps, [{ coeffs, fold, skip }], exports.pairHistories)[0]!
+    },
+    pairHistoriesTwo(first, second, subSteps, one, other) {
+      const [a, b] = historiesOver(first, second, subSteps, [one, other], exports.pairHistoriesTwo)
+      return [a!, b!]
     },
   }
 }
