@@ -2,7 +2,9 @@ import { describe, expect, it } from 'vitest'
 import { computeSpectrum } from './computeSpectrum.js'
 import {
   DirectionalPeaks,
+  type PairRecord,
   ROTATION_ANGLE_COUNT,
+  pairCoefficients,
   pairOrdinates,
   peakAbs,
   rotD,
@@ -11,6 +13,7 @@ import {
   solvePairOscillators,
 } from './rotd.js'
 import { mulberry32 } from './demo/demoRecords.js'
+import { freeVibrationTailPeaks } from './freeVibration.js'
 import { jsKernel } from './kernel/sweepKernel.js'
 import { SPECTRUM_METHODS } from './oscillatorRecurrence.js'
 
@@ -521,6 +524,93 @@ describe('computeSpectrum of a pair', () => {
       if (list === oscillators) expect(again).toBeGreaterThan(0)
       else expect(again).toBe(0)
     }
+  })
+
+  it('adds the free vibration after the record in every direction, as the definition does, whether or not it can raise a peak', () => {
+    // The definition: the peaks over every step end of the histories, in every direction, then
+    // each direction's closed-form free-vibration peaks from its own end state.
+    const definition = (
+      pair: PairRecord,
+      oscillator: { periodS: number; dampingRatio: number; subSteps: number },
+    ) => {
+      const { periodS, dampingRatio, subSteps } = oscillator
+      const coeffs = pairCoefficients('newmark-average', periodS, dampingRatio, pair.dtS / subSteps)
+      const whole: Record<'u1' | 'u2' | 'v1' | 'v2' | 'a1' | 'a2', number[]> = {
+        u1: [],
+        u2: [],
+        v1: [],
+        v2: [],
+        a1: [],
+        a2: [],
+      }
+      const end = jsKernel().pairHistories(
+        pair.accel1MPerS2,
+        pair.accel2MPerS2,
+        subSteps,
+        coeffs,
+        (block, count) => {
+          for (const key of Object.keys(whole) as (keyof typeof whole)[])
+            whole[key].push(...block[key].subarray(0, count))
+        },
+      )
+      const peaks = {
+        u: rotatedPeaks(whole.u1, whole.u2),
+        v: rotatedPeaks(whole.v1, whole.v2),
+        a: rotatedPeaks(whole.a1, whole.a2),
+      }
+      let raised = 0
+      const omega = (2 * Math.PI) / periodS
+      for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
+        const c = Math.cos((k * Math.PI) / 180)
+        const sn = k === 90 ? 1 : Math.sin((k * Math.PI) / 180)
+        const cs = k === 90 ? 0 : c
+        const tail = freeVibrationTailPeaks(
+          cs * end.u1 + sn * end.u2,
+          cs * end.v1 + sn * end.v2,
+          omega,
+          dampingRatio,
+        )
+        for (const q of ['u', 'v', 'a'] as const) {
+          if (tail[q].value > peaks[q][k]!) {
+            peaks[q][k] = tail[q].value
+            raised++
+          }
+        }
+      }
+      return { peaks, raised }
+    }
+    const dtS = 0.01
+    const n = 1001
+    // Ends at full swing: the oscillator is left moving, so its free vibration raises peaks.
+    const cut = (phase: number) =>
+      Float64Array.from({ length: n }, (_, i) => Math.sin((2 * Math.PI * i * dtS) / 0.5 + phase) * (i / n))
+    const abrupt = { accel1MPerS2: cut(0), accel2MPerS2: cut(1), dtS }
+    // Dies away long before its end: the free vibration raises nothing.
+    const quiet = {
+      accel1MPerS2: cut(0).map((a, i) => a * Math.exp(-i / 50)),
+      accel2MPerS2: cut(1).map((a, i) => a * Math.exp(-i / 50)),
+      dtS,
+    }
+    const oscillators = [0.45, 0.5, 0.55, 2, 4].map((periodS) => ({
+      periodS,
+      dampingRatio: 0.02,
+      subSteps: 4,
+    }))
+    let raisedSomewhere = 0
+    for (const pair of [abrupt, quiet]) {
+      const solved = solvePairOscillators(pair, oscillators, 'newmark-average', jsKernel())
+      oscillators.forEach((oscillator, index) => {
+        const { peaks, raised } = definition(pair, oscillator)
+        if (pair === abrupt) raisedSomewhere += raised
+        else expect(raised, `T = ${oscillator.periodS} s`).toBe(0)
+        for (const q of ['u', 'v', 'a'] as const) {
+          expect(Buffer.from(solved[index]![q].buffer), `T = ${oscillator.periodS} s ${q}`).toEqual(
+            Buffer.from(peaks[q].buffer),
+          )
+        }
+      })
+    }
+    expect(raisedSomewhere).toBeGreaterThan(0)
   })
 
   it('runs the histories on the kernel it is given, with the same bits, and names it in the method statement', () => {
