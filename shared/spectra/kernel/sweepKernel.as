@@ -331,6 +331,18 @@ export function pairHistories(
   store<i32>(kept, <i32>(atA >> 3), 8)
 }
 
+/**
+ * Bit 0 set when x₁² + x₂² exceeds lane 0 of `skip`, bit 1 when y₁² + y₂² exceeds lane 1 (each
+ * lane 0 squared plus lane 1 squared, as in keep, so the same samples are kept).
+ */
+@inline
+function outsideBits(x: v128, y: v128, skip: v128): i32 {
+  const sx = f64x2.mul(x, x)
+  const sy = f64x2.mul(y, y)
+  const lengths = f64x2.add(v128.shuffle<f64>(sx, sy, 0, 2), v128.shuffle<f64>(sx, sy, 1, 3))
+  return i64x2.bitmask(f64x2.gt(lengths, skip))
+}
+
 // Two oscillators with the same sub-steps at once (pairHistoriesTwo): their recurrences are
 // independent, so running them side by side hides each one's chain of dependent operations behind
 // the other's; each is operation for operation the one-oscillator loop above, so the same bits.
@@ -368,12 +380,9 @@ export function pairHistoriesTwo(
   const r2 = f64x2.splat(load<f64>(coeffs, 136))
   const ccB = f64x2.splat(load<f64>(coeffs, 144))
   const kkB = f64x2.splat(load<f64>(coeffs, 152))
-  const skipU = load<f64>(skip)
-  const skipV = load<f64>(skip, 8)
-  const skipA = load<f64>(skip, 16)
-  const skipUB = load<f64>(skip, 32)
-  const skipVB = load<f64>(skip, 40)
-  const skipAB = load<f64>(skip, 48)
+  const skipUV = f64x2.replace_lane(f64x2.splat(load<f64>(skip)), 1, load<f64>(skip, 8))
+  const skipAUB = f64x2.replace_lane(f64x2.splat(load<f64>(skip, 16)), 1, load<f64>(skip, 32))
+  const skipVAB = f64x2.replace_lane(f64x2.splat(load<f64>(skip, 40)), 1, load<f64>(skip, 48))
   const m = f64x2.splat(<f64>subSteps)
   let u = v128.load(state)
   let v = v128.load(state, 16)
@@ -408,29 +417,34 @@ export function pairHistoriesTwo(
       vB = lin(p21, u0B, p22, v0B, q2, f, r2, next)
       const a = f64x2.add(f64x2.mul(cc, v), f64x2.mul(kk, u))
       const aB = f64x2.add(f64x2.mul(ccB, vB), f64x2.mul(kkB, uB))
-      if (keep(u, skipU)) {
-        storeLanes(outU + atU, stride, u)
-        atU += 8
-      }
-      if (keep(v, skipV)) {
-        storeLanes(outV + atV, stride, v)
-        atV += 8
-      }
-      if (keep(a, skipA)) {
-        storeLanes(outA + atA, stride, a)
-        atA += 8
-      }
-      if (keep(uB, skipUB)) {
-        storeLanes(outUB + atUB, stride, uB)
-        atUB += 8
-      }
-      if (keep(vB, skipVB)) {
-        storeLanes(outVB + atVB, stride, vB)
-        atVB += 8
-      }
-      if (keep(aB, skipAB)) {
-        storeLanes(outAB + atAB, stride, aB)
-        atAB += 8
+      // Which of the six samples are kept, three pairs of squared lengths at a time.
+      const outside =
+        outsideBits(u, v, skipUV) | (outsideBits(a, uB, skipAUB) << 2) | (outsideBits(vB, aB, skipVAB) << 4)
+      if (outside != 0) {
+        if (outside & 1) {
+          storeLanes(outU + atU, stride, u)
+          atU += 8
+        }
+        if (outside & 2) {
+          storeLanes(outV + atV, stride, v)
+          atV += 8
+        }
+        if (outside & 4) {
+          storeLanes(outA + atA, stride, a)
+          atA += 8
+        }
+        if (outside & 8) {
+          storeLanes(outUB + atUB, stride, uB)
+          atUB += 8
+        }
+        if (outside & 16) {
+          storeLanes(outVB + atVB, stride, vB)
+          atVB += 8
+        }
+        if (outside & 32) {
+          storeLanes(outAB + atAB, stride, aB)
+          atAB += 8
+        }
       }
       f = next
     }
