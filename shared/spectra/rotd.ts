@@ -818,9 +818,10 @@ const STEPS_PER_REPORT = 3_000_000
  * components at once, with the oscillator's own sub-steps, the same recurrence as the
  * single-record sweep and the ground acceleration interpolated linearly between samples) and
  * returns its peaks in every direction, in the order given. They are solved in period order
- * within each damping ratio, two at a time where neighbours share their sub-steps (the kernel
- * then advances both side by side), and each starts at three quarters of the directional peaks
- * of the last one solved before it, where that one's period lies within NEIGHBOUR_PERIOD_RATIO
+ * within each damping ratio (the largest damping first), two at a time where neighbours share
+ * their sub-steps (the kernel then advances both side by side), and each starts at three
+ * quarters of the directional peaks of the last one solved before it (for the first of a damping
+ * ratio, the first of the one before), where that one's period lies within NEIGHBOUR_PERIOD_RATIO
  * of its own. Where a peak does not end above its start, the oscillator is run again from 0, so
  * the peaks are the same bits as from 0 in any case; `onSolvedAgain` gets the oscillator-steps
  * of each such run. `startsGiven` (by the oscillators' order) replaces those starts where set:
@@ -876,9 +877,16 @@ export function solvePairOscillators(
     }
     return snapshot
   }
-  for (const chain of periodChains(oscillators)) {
-    let previous: PairStart | undefined
-    let previousPeriodS = 0
+  // The most damped first: each chain's first oscillator then starts from the one before at the
+  // same or a near period, whose response is the smaller for its larger damping.
+  const chains = periodChains(oscillators).sort(
+    (a, b) => oscillators[b[0]!]!.dampingRatio - oscillators[a[0]!]!.dampingRatio,
+  )
+  let head: number | undefined
+  for (const chain of chains) {
+    let previous = head === undefined ? undefined : results[head]!.setters
+    let previousPeriodS = head === undefined ? 0 : oscillators[head]!.periodS
+    head = chain[0]
     for (let at = 0; at < chain.length;) {
       const next = chain[at + 1]
       const together = next !== undefined && oscillators[next]!.subSteps === oscillators[chain[at]!]!.subSteps
