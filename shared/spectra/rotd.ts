@@ -23,7 +23,7 @@ import {
   type SweepKernel,
 } from './kernel/sweepKernel.js'
 import { type SpectrumMethod, recurrenceCoefficients } from './oscillatorRecurrence.js'
-import { NEIGHBOUR_PERIOD_RATIO, type OscillatorSpec } from './sweepOscillators.js'
+import { NEIGHBOUR_PERIOD_RATIO, type OscillatorSpec, periodChains } from './sweepOscillators.js'
 
 /** Angles 0°–179° in 1° steps (Boore 2010): 180 non-redundant orientations. */
 export const ROTATION_ANGLE_COUNT = 180
@@ -189,9 +189,14 @@ export class DirectionalPeaks {
    * the rounding margin): a sample within it can raise no peak now or later, as peaks only rise.
    */
   skipBelow(): number {
-    if (this.floorStale) this.refreshFloor()
-    const shrunk = this.floor * SHRINK
+    const shrunk = this.smallestPeak() * SHRINK
     return shrunk * shrunk
+  }
+
+  /** The smallest peak (the floor, refreshed where the direction that had it has risen since). */
+  smallestPeak(): number {
+    if (this.floorStale) this.refreshFloor()
+    return this.floor
   }
 
   add(x: number, y: number): void {
@@ -705,16 +710,10 @@ function tailBelowPeaks(
   const vQ = (k * u + sigma * v) / omegaD
   const margin = 1 + 1e-9
   return (
-    margin * Math.hypot(u, uQ) < smallest(peaks.u.peaks) &&
-    margin * Math.hypot(v, vQ) < smallest(peaks.v.peaks) &&
-    margin * Math.hypot(2 * sigma * v + k * u, 2 * sigma * vQ + k * uQ) < smallest(peaks.a.peaks)
+    margin * Math.hypot(u, uQ) < peaks.u.smallestPeak() &&
+    margin * Math.hypot(v, vQ) < peaks.v.smallestPeak() &&
+    margin * Math.hypot(2 * sigma * v + k * u, 2 * sigma * vQ + k * uQ) < peaks.a.smallestPeak()
   )
-}
-
-function smallest(values: Float64Array): number {
-  let least = Infinity
-  for (let i = 0; i < values.length; i++) least = Math.min(least, values[i] as number)
-  return least
 }
 
 /**
@@ -759,13 +758,13 @@ class SearchLane implements HistoryLane {
 
   /**
    * The histories' peaks, with the closed-form peaks of the free vibration after the record in
-   * every direction (freeVibration.ts) added; and the setters of the histories' own peaks.
+   * every direction (freeVibration.ts) added, and the setters of the histories' own peaks.
    */
-  finish(end: PairEndState, periodS: number, zeta: number): [PairPeaks, PairStart] {
+  finish(end: PairEndState, periodS: number, zeta: number): PairPeaks {
     const { u, v, a } = this.out
-    const kept = { u: u.snapshot(), v: v.snapshot(), a: a.snapshot() }
+    const setters = { u: u.snapshot(), v: v.snapshot(), a: a.snapshot() }
     const omega = (2 * Math.PI) / periodS
-    if (tailBelowPeaks(end, omega, zeta, this.out)) return [this.copy(), kept]
+    if (tailBelowPeaks(end, omega, zeta, this.out)) return this.copy(setters)
     for (let k = 0; k < ROTATION_ANGLE_COUNT; k++) {
       const c = COS[k] as number
       const s = SIN[k] as number
@@ -774,11 +773,12 @@ class SearchLane implements HistoryLane {
       if (tail.v.value > (v.peaks[k] as number)) v.peaks[k] = tail.v.value
       if (tail.a.value > (a.peaks[k] as number)) a.peaks[k] = tail.a.value
     }
-    return [this.copy(), kept]
+    return this.copy(setters)
   }
 
-  private copy(): PairPeaks {
-    return { u: this.out.u.peaks.slice(), v: this.out.v.peaks.slice(), a: this.out.a.peaks.slice() }
+  private copy(setters: PairStart): PairPeaks {
+    const { u, v, a } = this.out
+    return { u: u.peaks.slice(), v: v.peaks.slice(), a: a.peaks.slice(), setters }
   }
 
   private refreshSkip(): void {
@@ -786,19 +786,6 @@ class SearchLane implements HistoryLane {
     this.skip[1] = this.out.v.skipBelow()
     this.skip[2] = this.out.a.skipBelow()
   }
-}
-
-/** The oscillators' indices by damping ratio (in the order first met), each list in period order. */
-function periodChains(oscillators: readonly OscillatorSpec[]): number[][] {
-  const byDamping = new Map<number, number[]>()
-  oscillators.forEach((oscillator, index) => {
-    const chain = byDamping.get(oscillator.dampingRatio) ?? []
-    chain.push(index)
-    byDamping.set(oscillator.dampingRatio, chain)
-  })
-  const chains = [...byDamping.values()]
-  for (const chain of chains) chain.sort((a, b) => oscillators[a]!.periodS - oscillators[b]!.periodS || a - b)
-  return chains
 }
 
 /** An oscillator's peaks in the 180 directions: relative displacement u, relative velocity v, absolute acceleration a. */
@@ -856,7 +843,6 @@ export function solvePairOscillators(
       indices.length === 2
         ? kernel.pairHistoriesTwo(first, second, subSteps, lanes[0], lanes[1])
         : [kernel.pairHistories(first, second, subSteps, lanes[0].coeffs, lanes[0].fold, lanes[0].skip)]
-    let snapshot: PairStart | undefined
     indices.forEach((index, l) => {
       const lane = lanes[l]!
       let end = ends[l]!
@@ -866,16 +852,14 @@ export function solvePairOscillators(
         end = kernel.pairHistories(first, second, subSteps, lane.coeffs, lane.fold, lane.skip)
       }
       const { periodS, dampingRatio } = oscillators[index]!
-      const [peaks, setters] = lane.finish(end, periodS, dampingRatio)
-      results[index] = { ...peaks, setters }
-      snapshot = setters
+      results[index] = lane.finish(end, periodS, dampingRatio)
       done += intervals * subSteps
     })
     if (onProgress && done - reported >= STEPS_PER_REPORT) {
       reported = done
       onProgress(done / total)
     }
-    return snapshot
+    return results[indices.at(-1)!]!.setters
   }
   // The most damped first: each chain's first oscillator then starts from the one before at the
   // same or a near period, whose response is the smaller for its larger damping.

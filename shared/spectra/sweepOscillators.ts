@@ -232,50 +232,26 @@ function startHeld(peak: number, start: number): boolean {
 /** Every STAGE_STRIDE-th oscillator of a damping ratio, in period order, is swept first, from 0. */
 const STAGE_STRIDE = 8
 /** The rest start at this share of the smaller of their nearest swept neighbours' peaks... */
-export const NEIGHBOUR_SHARE = 0.5
+const NEIGHBOUR_SHARE = 0.5
 /** ...when those neighbours' periods lie within this ratio of theirs (else from 0). */
 export const NEIGHBOUR_PERIOD_RATIO = 1.5
 
-/** The two stages of a staged pass (see sweepOscillatorsStaged), by index into the oscillators. */
-export interface StagedOrder {
-  /** Swept first, from 0: every STAGE_STRIDE-th oscillator of each damping ratio in period order, and the last. */
-  first: number[]
-  /** The rest, in the same order. */
-  rest: number[]
-  /** For those of the rest whose nearest first-stage neighbours lie within NEIGHBOUR_PERIOD_RATIO: the two. */
-  neighbours: Map<number, [number, number]>
-}
-
-/** Splits a pass's oscillators into its two stages (shared by the record sweep and the pair solve). */
-export function stagedOrder(
+/**
+ * The oscillators' indices by damping ratio (in the order first met), each list in period order
+ * (then index): the order in which staged and chained passes start oscillators from neighbours.
+ */
+export function periodChains(
   oscillators: readonly Pick<OscillatorSpec, 'periodS' | 'dampingRatio'>[],
-): StagedOrder {
+): number[][] {
   const byDamping = new Map<number, number[]>()
   oscillators.forEach((oscillator, index) => {
-    const list = byDamping.get(oscillator.dampingRatio) ?? []
-    list.push(index)
-    byDamping.set(oscillator.dampingRatio, list)
+    const chain = byDamping.get(oscillator.dampingRatio) ?? []
+    chain.push(index)
+    byDamping.set(oscillator.dampingRatio, chain)
   })
-  const first: number[] = []
-  const rest: number[] = []
-  const neighbours = new Map<number, [number, number]>()
-  for (const list of byDamping.values()) {
-    list.sort((a, b) => oscillators[a]!.periodS - oscillators[b]!.periodS || a - b)
-    const chosen = list.filter((_, at) => at % STAGE_STRIDE === 0 || at === list.length - 1)
-    first.push(...chosen)
-    list.forEach((index, at) => {
-      if (at % STAGE_STRIDE === 0 || at === list.length - 1) return
-      const below = list[at - (at % STAGE_STRIDE)]!
-      const above = list[Math.min(list.length - 1, at - (at % STAGE_STRIDE) + STAGE_STRIDE)]!
-      rest.push(index)
-      const periodS = oscillators[index]!.periodS
-      const near =
-        periodS / oscillators[below]!.periodS <= NEIGHBOUR_PERIOD_RATIO &&
-        oscillators[above]!.periodS / periodS <= NEIGHBOUR_PERIOD_RATIO
-      if (near) neighbours.set(index, [below, above])
-    })
-  }
-  return { first, rest, neighbours }
+  const chains = [...byDamping.values()]
+  for (const chain of chains) chain.sort((a, b) => oscillators[a]!.periodS - oscillators[b]!.periodS || a - b)
+  return chains
 }
 
 /**
@@ -294,7 +270,24 @@ export function sweepOscillatorsStaged(
   options: SweepOptions = {},
 ): OscillatorPeaks {
   const count = oscillators.length
-  const { first, rest, neighbours } = stagedOrder(oscillators)
+  const first: number[] = []
+  const rest: number[] = []
+  const neighbours = new Map<number, [number, number]>()
+  for (const list of periodChains(oscillators)) {
+    const chosen = list.filter((_, at) => at % STAGE_STRIDE === 0 || at === list.length - 1)
+    first.push(...chosen)
+    list.forEach((index, at) => {
+      if (at % STAGE_STRIDE === 0 || at === list.length - 1) return
+      const below = list[at - (at % STAGE_STRIDE)]!
+      const above = list[Math.min(list.length - 1, at - (at % STAGE_STRIDE) + STAGE_STRIDE)]!
+      rest.push(index)
+      const periodS = oscillators[index]!.periodS
+      const near =
+        periodS / oscillators[below]!.periodS <= NEIGHBOUR_PERIOD_RATIO &&
+        oscillators[above]!.periodS / periodS <= NEIGHBOUR_PERIOD_RATIO
+      if (near) neighbours.set(index, [below, above])
+    })
+  }
   if (rest.length === 0 || first.length === 0) return sweepOscillators(record, oscillators, method, options)
   let firstSteps = 0
   let totalSteps = 0
