@@ -9,10 +9,10 @@ const env = useBrowserTestEnvironment()
 const small = creditPacks[0]
 
 /**
- * Chooses a test card, buys the chosen pack, confirms the charge with the keyboard and waits for the
- * server's answer and then the outcome. Each
- * step is checked before the next, and a wrong or missing outcome fails with the text the page
- * shows (a CI run once timed out here with nothing to go on).
+ * Chooses a test card, buys the chosen pack, confirms the charge with the keyboard, and waits for
+ * the server's answer and then the outcome. Each step is checked before the next, and a wrong or
+ * missing outcome fails with the text the page shows (a CI run once timed out here with nothing
+ * to go on).
  */
 async function buyWithTestCard(page: Page, card: string, outcome: RegExp) {
   const choice = page.locator('[data-test="test-card"]', { hasText: card })
